@@ -1,0 +1,66 @@
+"""What every command shares: the `--db` option, opening the store, output, exit codes."""
+
+from __future__ import annotations
+
+import json
+import sys
+from enum import IntEnum
+from pathlib import Path
+from typing import Annotated, Any, NoReturn
+
+import typer
+
+from inspectkit.paths import default_db_path
+from inspectkit.store import Store, StoreError
+
+
+class Exit(IntEnum):
+    """Exit codes that mean something to a script."""
+
+    OK = 0
+    #: Something the user must act on: a failing reading, an overdue site, an altered file.
+    ACT = 1
+    #: Bad input: a wrong option, a file that cannot be read, a record that does not validate.
+    BAD_INPUT = 2
+
+
+DbOption = Annotated[
+    Path | None,
+    typer.Option(
+        "--db",
+        help="Database file (default: the one in your user data folder).",
+        dir_okay=False,
+        show_default=False,
+    ),
+]
+
+JsonOption = Annotated[bool, typer.Option("--json", help="Print JSON for scripts instead of a table.")]
+
+
+def resolve_db(ctx: typer.Context, db: Path | None) -> Path:
+    """`--db` given after the command wins over one given before it, then the default."""
+    if db is not None:
+        return db
+    root = ctx.find_root().obj or {}
+    return root.get("db") or default_db_path()
+
+
+def open_store(ctx: typer.Context, db: Path | None, *, create: bool = False) -> Store:
+    """Open the database a command works on, or stop with exit 2 and the reason."""
+    path = resolve_db(ctx, db)
+    try:
+        return Store.open(path, create=create or path == default_db_path())
+    except StoreError as exc:
+        fail(str(exc))
+
+
+def fail(message: str, code: Exit = Exit.BAD_INPUT) -> NoReturn:
+    """Print the message on stderr and stop."""
+    typer.echo(f"inspectkit: {message}", err=True)
+    raise typer.Exit(int(code))
+
+
+def emit_json(data: Any) -> None:
+    """JSON on stdout, dates and enums as text."""
+    json.dump(data, sys.stdout, indent=2, ensure_ascii=False, default=str)
+    sys.stdout.write("\n")

@@ -1,0 +1,646 @@
+"""The vocabulary of inspectkit: the records an inspection produces, as pydantic models.
+
+Every record has a UUID text key so that records made on two laptops can be
+merged later, and `created_at` / `updated_at` / `updated_by` so a merge can tell
+which copy is newer. Validation messages name the field and say what to type
+instead, because they are shown to an inspector on a roof, not to a programmer.
+
+Values are kept in SI base units (Ω, Ω·m, counts); `units.py` turns what people
+type into those.
+"""
+
+from __future__ import annotations
+
+import uuid
+from datetime import UTC, date, datetime, timedelta
+from enum import StrEnum
+from typing import Any, ClassVar
+
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    ValidationError,
+    ValidationInfo,
+    field_validator,
+    model_validator,
+)
+
+#: A reading may carry a time this far past the laptop's clock before it is refused:
+#: instrument clocks and laptop clocks drift apart, and time zones get mixed up.
+CLOCK_SKEW = timedelta(hours=12)
+
+#: Above this an earth, continuity or bonding resistance is not a resistance an
+#: instrument shows but a typing slip (our default).
+MAX_RESISTANCE_OHM = 1.0e6
+#: Highest plausible soil resistivity; rock and dry sand reach 10⁴ Ω·m (common practice).
+MAX_RESISTIVITY_OHM_M = 1.0e6
+#: Strike counters are six-digit at most (common practice).
+MAX_COUNT = 999_999
+
+
+def new_id() -> str:
+    """A fresh record key; random, so two offline laptops never collide."""
+    return str(uuid.uuid4())
+
+
+def utcnow() -> datetime:
+    """The current time, timezone-aware in UTC, to the second."""
+    return datetime.now(UTC).replace(microsecond=0)
+
+
+class ProtectionLevel(StrEnum):
+    """Lightning protection level (class of LPS) of IEC 62305: I is the most stringent."""
+
+    I = "I"  # noqa: E741 - the standard's own name
+    II = "II"
+    III = "III"
+    IV = "IV"
+
+
+class ComponentKind(StrEnum):
+    """Parts of an LPS, in the trade's terms."""
+
+    AIR_TERMINAL = "air_terminal"
+    AIR_CONDUCTOR = "air_conductor"
+    DOWN_CONDUCTOR = "down_conductor"
+    TEST_JOINT = "test_joint"
+    EARTH_ELECTRODE = "earth_electrode"
+    BONDING = "bonding"
+    SPD = "spd"
+    STRIKE_COUNTER = "strike_counter"
+
+    @property
+    def label(self) -> str:
+        return _KIND_LABELS[self]
+
+
+_KIND_LABELS = {
+    ComponentKind.AIR_TERMINAL: "air terminal",
+    ComponentKind.AIR_CONDUCTOR: "air-termination conductor",
+    ComponentKind.DOWN_CONDUCTOR: "down conductor",
+    ComponentKind.TEST_JOINT: "test joint",
+    ComponentKind.EARTH_ELECTRODE: "earth electrode",
+    ComponentKind.BONDING: "equipotential bonding",
+    ComponentKind.SPD: "surge protective device",
+    ComponentKind.STRIKE_COUNTER: "strike counter",
+}
+
+#: The order an inspector walks a site: roof first, then down the building, then
+#: the ground-level test joints and what hangs off them.
+WALKING_ORDER: tuple[ComponentKind, ...] = (
+    ComponentKind.AIR_TERMINAL,
+    ComponentKind.AIR_CONDUCTOR,
+    ComponentKind.DOWN_CONDUCTOR,
+    ComponentKind.TEST_JOINT,
+    ComponentKind.EARTH_ELECTRODE,
+    ComponentKind.BONDING,
+    ComponentKind.SPD,
+    ComponentKind.STRIKE_COUNTER,
+)
+
+
+class ElectrodeType(StrEnum):
+    """Form of an earth electrode; type A are rods and plates, type B rings and foundations."""
+
+    ROD = "rod"
+    PLATE = "plate"
+    RING = "ring"
+    FOUNDATION = "foundation"
+
+
+class InspectionKind(StrEnum):
+    """Why a visit was made (IEC 62305-3 Annex E; NFPA 780 Annex D)."""
+
+    INITIAL = "initial"
+    VISUAL = "visual"
+    COMPLETE = "complete"
+    POST_STRIKE = "post_strike"
+    AMENDMENT = "amendment"
+
+
+class InspectionState(StrEnum):
+    """A draft can be edited; a signed inspection is frozen."""
+
+    DRAFT = "draft"
+    SIGNED = "signed"
+
+
+class Quantity(StrEnum):
+    """What a reading measures."""
+
+    EARTH_ISOLATED = "earth_isolated"
+    EARTH_COMBINED = "earth_combined"
+    CONTINUITY = "continuity"
+    BONDING = "bonding"
+    SOIL_RESISTIVITY = "soil_resistivity"
+    STRIKE_COUNT = "strike_count"
+
+    @property
+    def unit(self) -> str:
+        """The SI unit the value is stored in."""
+        return _QUANTITY_UNITS[self]
+
+    @property
+    def label(self) -> str:
+        return _QUANTITY_LABELS[self]
+
+
+_QUANTITY_UNITS = {
+    Quantity.EARTH_ISOLATED: "Ω",
+    Quantity.EARTH_COMBINED: "Ω",
+    Quantity.CONTINUITY: "Ω",
+    Quantity.BONDING: "Ω",
+    Quantity.SOIL_RESISTIVITY: "Ω·m",
+    Quantity.STRIKE_COUNT: "count",
+}
+
+_QUANTITY_LABELS = {
+    Quantity.EARTH_ISOLATED: "earth resistance, electrode isolated",
+    Quantity.EARTH_COMBINED: "earth resistance, combined system",
+    Quantity.CONTINUITY: "continuity",
+    Quantity.BONDING: "bonding resistance",
+    Quantity.SOIL_RESISTIVITY: "soil resistivity",
+    Quantity.STRIKE_COUNT: "strike counter value",
+}
+
+_QUANTITY_MAX = {
+    Quantity.EARTH_ISOLATED: MAX_RESISTANCE_OHM,
+    Quantity.EARTH_COMBINED: MAX_RESISTANCE_OHM,
+    Quantity.CONTINUITY: MAX_RESISTANCE_OHM,
+    Quantity.BONDING: MAX_RESISTANCE_OHM,
+    Quantity.SOIL_RESISTIVITY: MAX_RESISTIVITY_OHM_M,
+    Quantity.STRIKE_COUNT: float(MAX_COUNT),
+}
+
+
+class Method(StrEnum):
+    """How a reading was taken."""
+
+    FALL_OF_POTENTIAL_3P = "fall_of_potential_3p"
+    FOUR_POLE = "four_pole"
+    CLAMP_ON = "clamp_on"
+    LOW_OHM_2W = "low_ohm_2w"
+    LOW_OHM_4W = "low_ohm_4w"
+    WENNER = "wenner"
+    COUNTER_READ = "counter_read"
+
+
+#: Which methods make sense for which quantity; anything else is refused.
+METHODS_FOR: dict[Quantity, frozenset[Method]] = {
+    Quantity.EARTH_ISOLATED: frozenset({Method.FALL_OF_POTENTIAL_3P, Method.FOUR_POLE}),
+    # A clamp-on meter needs a parallel network: combined system only (common practice).
+    Quantity.EARTH_COMBINED: frozenset(
+        {Method.FALL_OF_POTENTIAL_3P, Method.FOUR_POLE, Method.CLAMP_ON}
+    ),
+    Quantity.CONTINUITY: frozenset({Method.LOW_OHM_2W, Method.LOW_OHM_4W}),
+    Quantity.BONDING: frozenset({Method.LOW_OHM_2W, Method.LOW_OHM_4W}),
+    Quantity.SOIL_RESISTIVITY: frozenset({Method.WENNER, Method.FOUR_POLE}),
+    Quantity.STRIKE_COUNT: frozenset({Method.COUNTER_READ}),
+}
+
+
+class JointState(StrEnum):
+    """Whether the test joint was open (electrode alone) or closed (whole system)."""
+
+    OPEN = "open"
+    CLOSED = "closed"
+
+
+class SoilCondition(StrEnum):
+    """Ground state at the time of an earth reading; readings rise in dry or frozen ground."""
+
+    DRY = "dry"
+    NORMAL = "normal"
+    WET = "wet"
+    FROZEN = "frozen"
+
+
+class Grade(StrEnum):
+    """How a component was found."""
+
+    SOUND = "sound"
+    NEEDS_ATTENTION = "needs_attention"
+    DEFECT = "defect"
+
+
+class Severity(StrEnum):
+    """Outcome of a check, from harmless to urgent."""
+
+    OK = "ok"
+    WATCH = "watch"
+    INCOMPLETE = "incomplete"
+    FAIL = "fail"
+    OVERDUE = "overdue"
+
+    @property
+    def rank(self) -> int:
+        """Bigger is worse; used to sort worst first."""
+        return _SEVERITY_RANK[self]
+
+
+_SEVERITY_RANK = {
+    Severity.OK: 0,
+    Severity.WATCH: 1,
+    Severity.INCOMPLETE: 2,
+    Severity.FAIL: 3,
+    Severity.OVERDUE: 4,
+}
+
+
+class Record(BaseModel):
+    """Fields every stored record carries."""
+
+    model_config = ConfigDict(extra="forbid", validate_assignment=True, use_enum_values=False)
+
+    #: Table this record lives in; set by each subclass.
+    table: ClassVar[str] = ""
+
+    id: str = Field(default_factory=new_id, description="UUID text key")
+    created_at: datetime = Field(default_factory=utcnow)
+    updated_at: datetime = Field(default_factory=utcnow)
+    updated_by: str = Field(default="", max_length=200)
+
+    @field_validator("id")
+    @classmethod
+    def _id_is_uuid(cls, value: str) -> str:
+        try:
+            uuid.UUID(value)
+        except ValueError:
+            raise ValueError(
+                "must be a UUID such as 3f2b…; leave it empty to get a new one"
+            ) from None
+        return value
+
+    @field_validator("created_at", "updated_at")
+    @classmethod
+    def _aware(cls, value: datetime) -> datetime:
+        return _as_utc(value)
+
+
+def _as_utc(value: datetime) -> datetime:
+    """Naive times are taken as UTC so that comparisons never mix the two."""
+    if value.tzinfo is None:
+        return value.replace(tzinfo=UTC)
+    return value.astimezone(UTC)
+
+
+def _now_from(info: ValidationInfo) -> datetime | None:
+    """The 'now' a record is checked against: from the validation context, else the clock.
+
+    The demo generator and imports pass their own `now` so that a scenario anchored
+    on another date validates the same way; records read back from the store pass
+    `stored=True` and are not checked against the clock at all, since they were
+    checked when they were written.
+    """
+    context = info.context or {}
+    if context.get("stored"):
+        return None
+    now = context.get("now")
+    if isinstance(now, datetime):
+        return _as_utc(now)
+    if isinstance(now, date):
+        return datetime(now.year, now.month, now.day, 23, 59, 59, tzinfo=UTC)
+    return utcnow()
+
+
+class Site(Record):
+    """A protected structure."""
+
+    table: ClassVar[str] = "site"
+
+    name: str = Field(min_length=1, max_length=200)
+    client: str = Field(default="", max_length=200)
+    address: str = Field(default="", max_length=500)
+    town: str = Field(default="", max_length=200)
+    latitude: float | None = None
+    longitude: float | None = None
+    protection_level: ProtectionLevel
+    profile: str = Field(default="iec-62305-3", min_length=1, max_length=100)
+    critical: bool = False
+    explosive_risk: bool = False
+    height_m: float | None = None
+    notes: str = ""
+    #: Date of the last alteration to the structure; it calls for an inspection.
+    altered_on: date | None = None
+
+    @field_validator("name")
+    @classmethod
+    def _name_not_blank(cls, value: str) -> str:
+        if not value.strip():
+            raise ValueError("must not be blank; type the site's name")
+        return value.strip()
+
+    @field_validator("protection_level", mode="before")
+    @classmethod
+    def _level(cls, value: Any) -> Any:
+        if isinstance(value, str) and value.strip().upper() in ProtectionLevel.__members__:
+            return value.strip().upper()
+        if isinstance(value, int) and 1 <= value <= 4:
+            return ("I", "II", "III", "IV")[value - 1]
+        if isinstance(value, str | int) and not isinstance(value, ProtectionLevel):
+            raise ValueError(f"{value!r} is not a protection level; use I, II, III or IV")
+        return value
+
+    @field_validator("latitude")
+    @classmethod
+    def _latitude(cls, value: float | None) -> float | None:
+        if value is not None and not -90.0 <= value <= 90.0:
+            raise ValueError(f"{value} is out of range; latitude runs from -90 to 90 degrees")
+        return value
+
+    @field_validator("longitude")
+    @classmethod
+    def _longitude(cls, value: float | None) -> float | None:
+        if value is not None and not -180.0 <= value <= 180.0:
+            raise ValueError(f"{value} is out of range; longitude runs from -180 to 180 degrees")
+        return value
+
+    @field_validator("height_m")
+    @classmethod
+    def _height(cls, value: float | None) -> float | None:
+        if value is not None and not 0 < value <= 1000:
+            raise ValueError(f"{value} m is not a building height; give metres between 0 and 1000")
+        return value
+
+    @model_validator(mode="after")
+    def _both_coordinates(self) -> Site:
+        if (self.latitude is None) != (self.longitude is None):
+            raise ValueError("latitude and longitude go together; give both or neither")
+        return self
+
+
+class Component(Record):
+    """One part of a site's LPS, known on site by the tag painted on it."""
+
+    table: ClassVar[str] = "component"
+
+    site_id: str
+    kind: ComponentKind
+    tag: str = Field(min_length=1, max_length=40)
+    location: str = Field(default="", max_length=300)
+    material: str = Field(default="", max_length=100)
+    installed_on: date | None = None
+    #: A test joint's down conductor, an electrode's test joint.
+    parent_id: str | None = None
+    electrode_type: ElectrodeType | None = None
+    #: Retired components keep their history but are no longer inspected.
+    retired_on: date | None = None
+
+    @field_validator("kind", mode="before")
+    @classmethod
+    def _kind(cls, value: Any) -> Any:
+        return _enum_or_hint(value, ComponentKind, "component kind")
+
+    @field_validator("tag")
+    @classmethod
+    def _tag(cls, value: str) -> str:
+        value = value.strip().upper()
+        if not value:
+            raise ValueError("must not be blank; type the tag painted on site, e.g. TJ-03")
+        return value
+
+    @model_validator(mode="after")
+    def _electrode_type_only_on_electrodes(self) -> Component:
+        if self.electrode_type is not None and self.kind is not ComponentKind.EARTH_ELECTRODE:
+            raise ValueError("electrode_type applies to earth electrodes only; leave it empty")
+        return self
+
+
+class Instrument(Record):
+    """A test instrument; a reading taken after its calibration lapsed proves nothing."""
+
+    table: ClassVar[str] = "instrument"
+
+    description: str = Field(min_length=1, max_length=200)
+    serial: str = Field(min_length=1, max_length=100)
+    calibration_due: date | None = None
+
+
+class Inspector(Record):
+    """A person who signs inspections."""
+
+    table: ClassVar[str] = "inspector"
+
+    name: str = Field(min_length=1, max_length=200)
+    organisation: str = Field(default="", max_length=200)
+    qualification: str = Field(default="", max_length=200)
+    #: Path of the inspector's PKCS#12 key file, relative to the data folder.
+    signing_key: str = ""
+    #: The inspector's certificate (PEM), so reports can be checked against it.
+    certificate_pem: str = ""
+
+
+class Inspection(Record):
+    """One visit to a site."""
+
+    table: ClassVar[str] = "inspection"
+
+    site_id: str
+    kind: InspectionKind
+    date: date
+    inspector_id: str | None = None
+    weather: str = Field(default="", max_length=200)
+    soil: SoilCondition | None = None
+    state: InspectionState = InspectionState.DRAFT
+    #: Marked complete by the inspector at the end of the walkdown.
+    finished: bool = False
+    signed_at: datetime | None = None
+    report_sha256: str | None = None
+    report_revision: int = 0
+    #: The signed inspection this one corrects (kind amendment).
+    amends_id: str | None = None
+    #: What could not be inspected and why (no roof access, buried, locked).
+    not_inspected: str = ""
+    notes: str = ""
+
+    @field_validator("kind", mode="before")
+    @classmethod
+    def _kind(cls, value: Any) -> Any:
+        return _enum_or_hint(value, InspectionKind, "inspection kind")
+
+    @field_validator("date")
+    @classmethod
+    def _not_in_future(cls, value: date, info: ValidationInfo) -> date:
+        now = _now_from(info)
+        if now is not None and value > (now + CLOCK_SKEW).date():
+            raise ValueError(f"{value.isoformat()} is in the future; give the day of the visit")
+        return value
+
+    @model_validator(mode="after")
+    def _amendment_names_original(self) -> Inspection:
+        if self.kind is InspectionKind.AMENDMENT and not self.amends_id:
+            raise ValueError("an amendment must name the signed inspection it corrects (amends_id)")
+        if self.state is InspectionState.SIGNED and self.signed_at is None:
+            raise ValueError("a signed inspection needs signed_at; sign it through the report")
+        return self
+
+
+class Reading(Record):
+    """One measured value, in the SI base unit of its quantity.
+
+    An instrument that shows over-range (`OL`, `>2000`) gives no number: the
+    reading is kept with `over_range=True` and `value` holding the bound it is
+    above (or None when the display gave none), so it fails any limit below it.
+    """
+
+    table: ClassVar[str] = "reading"
+
+    inspection_id: str
+    component_id: str
+    quantity: Quantity
+    value: float | None
+    over_range: bool = False
+    method: Method
+    joint_state: JointState | None = None
+    instrument_id: str | None = None
+    taken_at: datetime
+    soil: SoilCondition | None = None
+    #: Set by the inspector when a reading is doubtful (wet probe, disturbed ground).
+    unreliable: bool = False
+    note: str = Field(default="", max_length=1000)
+
+    @field_validator("quantity", mode="before")
+    @classmethod
+    def _quantity(cls, value: Any) -> Any:
+        return _enum_or_hint(value, Quantity, "quantity")
+
+    @field_validator("method", mode="before")
+    @classmethod
+    def _method(cls, value: Any) -> Any:
+        return _enum_or_hint(value, Method, "method")
+
+    @field_validator("taken_at")
+    @classmethod
+    def _taken_at(cls, value: datetime, info: ValidationInfo) -> datetime:
+        value = _as_utc(value)
+        now = _now_from(info)
+        if now is not None and value > now + CLOCK_SKEW:
+            raise ValueError(
+                f"{value.isoformat(timespec='minutes')} is later than now; "
+                "check the instrument's clock and give the time the reading was taken"
+            )
+        return value
+
+    @model_validator(mode="after")
+    def _value_fits_quantity(self) -> Reading:
+        quantity = self.quantity
+        if self.value is None:
+            if not self.over_range:
+                raise ValueError("value is missing; type the reading, or OL for over-range")
+        else:
+            if self.value != self.value or self.value in (float("inf"), float("-inf")):
+                raise ValueError("value must be a finite number")
+            if self.value < 0:
+                raise ValueError(
+                    f"value {self.value:g} {quantity.unit} is negative; "
+                    f"a {quantity.label} is never below zero, check the sign or the leads"
+                )
+            if self.value > _QUANTITY_MAX[quantity]:
+                raise ValueError(
+                    f"value {self.value:g} {quantity.unit} is not plausible for a "
+                    f"{quantity.label}; check the unit (kΩ or Ω?)"
+                )
+            if quantity is Quantity.STRIKE_COUNT and self.value != int(self.value):
+                raise ValueError("a strike counter value is a whole number")
+        if self.over_range and quantity is Quantity.STRIKE_COUNT:
+            raise ValueError("a strike counter cannot be over-range; type the number it shows")
+        if self.method not in METHODS_FOR[quantity]:
+            allowed = ", ".join(sorted(m.value for m in METHODS_FOR[quantity]))
+            raise ValueError(
+                f"method {self.method.value} does not measure {quantity.label}; use one of: {allowed}"
+            )
+        if quantity is Quantity.EARTH_ISOLATED and self.joint_state is JointState.CLOSED:
+            raise ValueError(
+                "an isolated electrode reading needs the test joint open; "
+                "set joint_state to open, or record it as earth_combined"
+            )
+        if quantity is Quantity.EARTH_COMBINED and self.joint_state is JointState.OPEN:
+            raise ValueError(
+                "a combined-system reading needs the test joint closed; "
+                "set joint_state to closed, or record it as earth_isolated"
+            )
+        return self
+
+
+class Finding(Record):
+    """A condition observed on a component."""
+
+    table: ClassVar[str] = "finding"
+
+    inspection_id: str
+    component_id: str | None = None
+    grade: Grade
+    category: str = Field(default="", max_length=100)
+    text: str = Field(default="", max_length=2000)
+    remedial_action: str = Field(default="", max_length=2000)
+    due_by: date | None = None
+    #: The inspection that found the defect put right.
+    resolved_by: str | None = None
+
+    @field_validator("grade", mode="before")
+    @classmethod
+    def _grade(cls, value: Any) -> Any:
+        return _enum_or_hint(value, Grade, "grade")
+
+    @model_validator(mode="after")
+    def _defect_needs_words(self) -> Finding:
+        if self.grade is not Grade.SOUND and not self.text.strip():
+            raise ValueError("text is empty; say what was found, e.g. 'clamp loose at TJ-03'")
+        return self
+
+
+class Photo(Record):
+    """A photo; the file lives in a content-addressed folder beside the database."""
+
+    table: ClassVar[str] = "photo"
+
+    sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
+    original_name: str = Field(default="", max_length=300)
+    caption: str = Field(default="", max_length=500)
+    taken_at: datetime | None = None
+    inspection_id: str | None = None
+    component_id: str | None = None
+    #: EXIF orientation tag (1–8); reports rotate by it.
+    orientation: int = Field(default=1, ge=1, le=8)
+    width: int | None = None
+    height: int | None = None
+
+
+#: Every record type, in an order where a record's references come before it.
+RECORD_TYPES: tuple[type[Record], ...] = (
+    Site,
+    Component,
+    Instrument,
+    Inspector,
+    Inspection,
+    Reading,
+    Finding,
+    Photo,
+)
+
+MODEL_FOR_TABLE: dict[str, type[Record]] = {m.table: m for m in RECORD_TYPES}
+
+
+def _enum_or_hint(value: Any, enum: type[StrEnum], what: str) -> Any:
+    """Accept an enum's value or name in any case, with spaces or dashes; refuse with the list."""
+    if isinstance(value, enum):
+        return value
+    if isinstance(value, str):
+        key = value.strip().lower().replace("-", "_").replace(" ", "_")
+        for member in enum:
+            if key in (member.value, member.name.lower()):
+                return member
+        allowed = ", ".join(m.value for m in enum)
+        raise ValueError(f"{value!r} is not a known {what}; use one of: {allowed}")
+    return value
+
+
+def explain(error: ValidationError) -> str:
+    """One line per problem, each naming the field, for people rather than programmers."""
+    lines = []
+    for item in error.errors():
+        field = ".".join(str(p) for p in item["loc"]) or "record"
+        message = item["msg"].removeprefix("Value error, ")
+        lines.append(f"{field}: {message}")
+    return "\n".join(lines)

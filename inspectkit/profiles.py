@@ -1,0 +1,194 @@
+"""Rule sets ("profiles"): inspection intervals and acceptance limits a site is held to.
+
+Profiles are TOML files so that a contractor can keep the figures their local code
+or authority requires without touching code. Built-in ones ship in
+`templates/profiles/`; a user's own go in the user config folder under `profiles/`
+and win over a built-in one of the same name. Every number is checked on load, and a
+bad one is reported with the file and the key so it can be fixed.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+
+from inspectkit.model import ProtectionLevel, Quantity
+from inspectkit.paths import templates_dir, user_config_dir
+from inspectkit.units import UnitError, parse
+
+
+class ProfileError(ValueError):
+    """A profile file is missing, malformed or holds a figure that cannot be used."""
+
+
+class LevelIntervals(BaseModel):
+    """Maximum months between inspections for one protection level."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    visual_months: int = Field(gt=0, le=120)
+    complete_months: int = Field(gt=0, le=240)
+    critical_complete_months: int = Field(gt=0, le=240)
+
+
+class ExplosiveIntervals(BaseModel):
+    """Shorter periods for structures with a risk of explosion."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    visual_months: int = Field(gt=0, le=120)
+    complete_months: int = Field(gt=0, le=240)
+
+
+_LIMIT_QUANTITY = {
+    "earth_combined": Quantity.EARTH_COMBINED,
+    "earth_isolated": Quantity.EARTH_ISOLATED,
+    "earth_isolated_per_electrode": Quantity.EARTH_ISOLATED,
+    "continuity": Quantity.CONTINUITY,
+    "bonding": Quantity.BONDING,
+}
+
+
+class Limits(BaseModel):
+    """Acceptance limits, in SI base units (Ω); written in the file with their unit."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    earth_combined: float = Field(gt=0)
+    #: A fixed limit for each electrode with its test joint open...
+    earth_isolated: float | None = Field(default=None, gt=0)
+    #: ...or this many ohms times the number of electrodes (BS 6651 practice).
+    earth_isolated_per_electrode: float | None = Field(default=None, gt=0)
+    continuity: float = Field(gt=0)
+    bonding: float = Field(gt=0)
+    #: A rise by more than this fraction on the baseline or previous reading is `watch`.
+    rise_fraction: float = Field(gt=0, le=10)
+
+    @field_validator(*_LIMIT_QUANTITY, mode="before")
+    @classmethod
+    def _with_unit(cls, value: Any, info: Any) -> Any:
+        if isinstance(value, str):
+            measured = parse(value, _LIMIT_QUANTITY[info.field_name])
+            if measured.over_range or measured.value is None:
+                raise ValueError("a limit is a plain value such as '10 Ω', not over-range")
+            return measured.value
+        return value
+
+
+class Triggers(BaseModel):
+    """How soon after an event an inspection falls due."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    post_strike_days: int = Field(ge=0, le=365)
+    alteration_days: int = Field(ge=0, le=365)
+    due_soon_days: int = Field(ge=0, le=365)
+
+
+class Profile(BaseModel):
+    """One rule set; a site names the profile it is held to."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    name: str = Field(min_length=1)
+    title: str = ""
+    standard: str = ""
+    intervals: dict[ProtectionLevel, LevelIntervals]
+    explosive: ExplosiveIntervals
+    limits: Limits
+    triggers: Triggers
+    #: The file it was read from, for messages.
+    source: str = ""
+
+    @field_validator("intervals")
+    @classmethod
+    def _every_level(
+        cls, value: dict[ProtectionLevel, LevelIntervals]
+    ) -> dict[ProtectionLevel, LevelIntervals]:
+        missing = [level.value for level in ProtectionLevel if level not in value]
+        if missing:
+            raise ValueError(
+                f"no intervals for level {', '.join(missing)}; add [intervals.<level>]"
+            )
+        return value
+
+    def limit_for(self, quantity: Quantity, electrode_count: int = 1) -> float | None:
+        """The acceptance limit for a quantity, or None where the profile sets none."""
+        limits = self.limits
+        if quantity is Quantity.EARTH_ISOLATED:
+            if limits.earth_isolated_per_electrode is not None:
+                return limits.earth_isolated_per_electrode * max(electrode_count, 1)
+            return limits.earth_isolated
+        return {
+            Quantity.EARTH_COMBINED: limits.earth_combined,
+            Quantity.CONTINUITY: limits.continuity,
+            Quantity.BONDING: limits.bonding,
+        }.get(quantity)
+
+
+def builtin_profiles_dir() -> Path:
+    return templates_dir() / "profiles"
+
+
+def user_profiles_dir() -> Path:
+    return user_config_dir() / "profiles"
+
+
+def load_profile_file(path: Path) -> Profile:
+    """Read and check one profile file; errors name the file and the key."""
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except OSError as exc:
+        raise ProfileError(f"{path}: cannot read the profile ({exc.strerror})") from exc
+    except tomllib.TOMLDecodeError as exc:
+        raise ProfileError(f"{path}: not valid TOML ({exc})") from exc
+    try:
+        return Profile.model_validate({**data, "source": str(path)})
+    except ValidationError as exc:
+        problems = []
+        for item in exc.errors():
+            key = ".".join(str(p) for p in item["loc"])
+            problems.append(f"{path}: {key}: {_plain(item)}")
+        raise ProfileError("\n".join(problems)) from None
+
+
+def _plain(item: Any) -> str:
+    """A pydantic error message, shortened and with a hint for the usual slips."""
+    if item["type"] == "missing":
+        return "missing; add this key"
+    cause = item.get("ctx", {}).get("error")
+    if isinstance(cause, UnitError):
+        return str(cause)
+    return str(item["msg"]).removeprefix("Value error, ")
+
+
+def profile_paths() -> dict[str, Path]:
+    """Every profile file by name; the user's own win over built-in ones."""
+    found: dict[str, Path] = {}
+    for folder in (builtin_profiles_dir(), user_profiles_dir()):
+        if folder.is_dir():
+            for path in sorted(folder.glob("*.toml")):
+                found[path.stem] = path
+    return found
+
+
+def load_profile(name: str) -> Profile:
+    """The profile of that name, from the user's folder or the built-in ones."""
+    path = profile_paths().get(name)
+    if path is None:
+        known = ", ".join(sorted(profile_paths())) or "none"
+        raise ProfileError(f"no profile named {name!r}; known profiles: {known}")
+    profile = load_profile_file(path)
+    if profile.name != name:
+        raise ProfileError(
+            f"{path}: name: is {profile.name!r}; it must match the file name {name!r}"
+        )
+    return profile
+
+
+def load_all_profiles() -> dict[str, Profile]:
+    """Every profile, checked; used where many sites are checked at once."""
+    return {name: load_profile(name) for name in profile_paths()}

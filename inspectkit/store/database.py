@@ -1,0 +1,388 @@
+"""Opening the database, migrating it, and every write with its audit row."""
+
+from __future__ import annotations
+
+import getpass
+import sqlite3
+from collections.abc import Iterable, Iterator, Sequence
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Any, TypeVar
+
+import sqlite_utils
+
+from inspectkit import __version__
+from inspectkit.model import (
+    Finding,
+    Inspection,
+    InspectionState,
+    Photo,
+    Reading,
+    Record,
+    utcnow,
+)
+from inspectkit.store import audit
+from inspectkit.store.rows import from_row, to_row
+from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION
+
+R = TypeVar("R", bound=Record)
+
+#: A second process (the TUI and a command at once) waits this long for the lock.
+BUSY_TIMEOUT_MS = 10_000
+#: Rows fetched per query when looking up many ids at once (SQLite's variable limit).
+_CHUNK = 500
+#: Fields every save stamps; a save that changes only these changes nothing.
+_STAMP_FIELDS = frozenset({"updated_at", "updated_by"})
+#: Fields a later inspection may still set on a finding from a signed inspection.
+_RESOLUTION_FIELDS = _STAMP_FIELDS | {"resolved_by"}
+
+
+class StoreError(Exception):
+    """The database cannot be used as asked; the message says why and what to do."""
+
+
+class NewerSchemaError(StoreError):
+    """The database was made by a newer inspectkit than this one."""
+
+
+class FrozenRecordError(StoreError):
+    """A signed inspection, or something recorded in it, was about to change."""
+
+
+def _pragmas(conn: sqlite3.Connection) -> None:
+    conn.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
+    conn.execute("PRAGMA foreign_keys = ON")
+
+
+class Store:
+    """One open database and the folder of photos beside it."""
+
+    def __init__(self, db: sqlite_utils.Database, path: Path | None, user: str) -> None:
+        self.db = db
+        self.path = path
+        self.user = user
+
+    # ----------------------------------------------------------------- opening
+
+    @classmethod
+    def open(cls, path: Path | str, *, user: str | None = None, create: bool = True) -> Store:
+        """Open (or create) a database file and bring its schema up to date.
+
+        Raises:
+            StoreError: the file is missing (and `create` is off) or is not a database.
+            NewerSchemaError: the file was made by a newer inspectkit.
+        """
+        path = Path(path)
+        if not create and not path.exists():
+            raise StoreError(f"{path}: no such database; check --db or create one first")
+        path.parent.mkdir(parents=True, exist_ok=True)
+        try:
+            conn = sqlite3.connect(str(path), timeout=BUSY_TIMEOUT_MS / 1000)
+            _pragmas(conn)
+            db = sqlite_utils.Database(conn)
+            db.enable_wal()
+            store = cls(db, path, user if user is not None else _default_user())
+            store._migrate()
+        except sqlite3.DatabaseError as exc:
+            raise StoreError(f"{path}: not an inspectkit database ({exc})") from exc
+        return store
+
+    @classmethod
+    def memory(cls, *, user: str = "test") -> Store:
+        """A throwaway in-memory database, for tests and dry runs."""
+        conn = sqlite3.connect(":memory:")
+        _pragmas(conn)
+        store = cls(sqlite_utils.Database(conn), None, user)
+        store._migrate()
+        return store
+
+    def close(self) -> None:
+        self.db.close()
+
+    def __enter__(self) -> Store:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    @property
+    def photos_dir(self) -> Path:
+        """Content-addressed photo folder beside the database (`demo.sqlite` → `demo-photos/`)."""
+        if self.path is None:
+            raise StoreError("an in-memory database has no photo folder")
+        return self.path.with_name(f"{self.path.stem}-photos")
+
+    def schema_version(self) -> int:
+        if "meta" not in self.db.table_names():
+            return 0
+        row = self.db.execute("SELECT value FROM meta WHERE key = 'schema_version'").fetchone()
+        return int(row[0]) if row else 0
+
+    def _migrate(self) -> None:
+        version = self.schema_version()
+        if version > SCHEMA_VERSION:
+            raise NewerSchemaError(
+                f"{self.path}: made by a newer inspectkit (schema {version}, this one reads up "
+                f"to {SCHEMA_VERSION}); upgrade inspectkit to open it"
+            )
+        if version == SCHEMA_VERSION:
+            return
+        if version > 0 and self.path is not None:
+            self.backup(self.path.with_name(f"{self.path.name}.before-schema-{version + 1}.bak"))
+        apply_migrations(self.db, upto=SCHEMA_VERSION)
+
+    def backup(self, target: Path) -> Path:
+        """A consistent copy through SQLite's online backup API, safe while others write."""
+        target.parent.mkdir(parents=True, exist_ok=True)
+        with sqlite3.connect(str(target)) as out:
+            self.db.conn.backup(out)
+        out.close()
+        return target
+
+    # ------------------------------------------------------------ transactions
+
+    @contextmanager
+    def transaction(self) -> Iterator[Store]:
+        """All writes inside happen together or not at all.
+
+        The outermost block takes the write lock at once (BEGIN IMMEDIATE), so the
+        audit chain's last hash cannot change under it; inner blocks are savepoints.
+        """
+        conn = self.db.conn
+        if conn.in_transaction:
+            with self.db.atomic():
+                yield self
+            return
+        conn.execute("BEGIN IMMEDIATE")
+        try:
+            yield self
+        except BaseException:
+            if conn.in_transaction:
+                conn.execute("ROLLBACK")
+            raise
+        else:
+            conn.execute("COMMIT")
+
+    # ------------------------------------------------------------------ reading
+
+    def get(self, model: type[R], record_id: str) -> R | None:
+        row = self._row(model.table, record_id)
+        return None if row is None else from_row(model, row)  # type: ignore[return-value]
+
+    def select(
+        self,
+        model: type[R],
+        where: str | None = None,
+        params: Sequence[Any] | dict[str, Any] = (),
+        order_by: str | None = None,
+    ) -> list[R]:
+        """Records of one type; `where` is an SQL condition with `?` placeholders."""
+        return [
+            from_row(model, row)  # type: ignore[misc]
+            for row in self.db[model.table].rows_where(where, params, order_by=order_by)
+        ]
+
+    def _row(self, table: str, record_id: str) -> dict[str, Any] | None:
+        cursor = self.db.execute(f"SELECT * FROM [{table}] WHERE id = ?", [record_id])
+        values = cursor.fetchone()
+        if values is None:
+            return None
+        return dict(zip([d[0] for d in cursor.description], values, strict=True))
+
+    def _rows(self, table: str, ids: Sequence[str]) -> dict[str, dict[str, Any]]:
+        found: dict[str, dict[str, Any]] = {}
+        for start in range(0, len(ids), _CHUNK):
+            chunk = list(ids[start : start + _CHUNK])
+            marks = ",".join("?" * len(chunk))
+            cursor = self.db.execute(f"SELECT * FROM [{table}] WHERE id IN ({marks})", chunk)
+            names = [d[0] for d in cursor.description]
+            for values in cursor:
+                row = dict(zip(names, values, strict=True))
+                found[row["id"]] = row
+        return found
+
+    # ------------------------------------------------------------------ writing
+
+    def save(self, record: R, *, touch: bool = True) -> R:
+        """Insert or update one record, with its audit row, in one transaction."""
+        return self.save_all([record], touch=touch)[0]
+
+    def save_all(self, records: Iterable[R], *, touch: bool = True) -> list[R]:
+        """Insert or update many records in one transaction; all or none are written.
+
+        Args:
+            records: records of any types, references before the records that use them.
+            touch: stamp `updated_at`/`updated_by` now; off when merging records that
+                keep the time and author they were made with elsewhere.
+        """
+        records = list(records)
+        if not records:
+            return []
+        now = utcnow()
+        if touch:
+            records = [
+                r.model_copy(update={"updated_at": now, "updated_by": self.user}) for r in records
+            ]
+        with self.transaction():
+            self._write(records, now.isoformat())
+        return records
+
+    def _write(self, records: list[R], at: str) -> None:
+        by_table: dict[str, list[R]] = {}
+        for record in records:
+            by_table.setdefault(record.table, []).append(record)
+        existing = {
+            table: self._rows(table, [r.id for r in group]) for table, group in by_table.items()
+        }
+        self._refuse_frozen(records, existing)
+        changes = []
+        for record in records:
+            before = existing[record.table].get(record.id)
+            after = to_row(record)
+            if before is not None:
+                after = {**after, "created_at": before["created_at"]}
+                if after == before:
+                    continue
+                self.db[record.table].update(record.id, after)
+                changes.append((record.table, record.id, "update", before, after))
+            else:
+                self.db[record.table].insert(after)
+                changes.append((record.table, record.id, "insert", None, after))
+            existing[record.table][record.id] = after
+        self._log(changes, at)
+
+    def _log(self, changes: list[Any], at: str) -> None:
+        if changes:
+            entries = audit.make_entries(audit.last_hash(self.db), changes, at=at, who=self.user)
+            self.db["audit"].insert_all(entries, batch_size=1000)
+
+    def delete(self, model: type[Record], record_id: str) -> None:
+        """Remove a record made by mistake; signed records and their parts stay."""
+        with self.transaction():
+            before = self._row(model.table, record_id)
+            if before is None:
+                raise StoreError(f"no {model.table} with id {record_id}")
+            self._refuse_frozen(
+                [from_row(model, before)], {model.table: {record_id: before}}, deleting=True
+            )
+            self.db.execute(f"DELETE FROM [{model.table}] WHERE id = ?", [record_id])
+            self._log([(model.table, record_id, "delete", before, None)], utcnow().isoformat())
+
+    def _refuse_frozen(
+        self,
+        records: Sequence[Record],
+        existing: dict[str, dict[str, dict[str, Any]]],
+        *,
+        deleting: bool = False,
+    ) -> None:
+        """A signed inspection and what was recorded in it never change.
+
+        The one exception: a later inspection may mark a finding of a signed
+        inspection as resolved, which adds to the record rather than rewriting it.
+        """
+        stored_of = {r.id: existing.get(r.table, {}).get(r.id) for r in records}
+        signed = self._signed_inspections(
+            {r.inspection_id for r in records if isinstance(r, Reading | Finding | Photo)}
+            | {s["inspection_id"] for s in stored_of.values() if s and s.get("inspection_id")}
+        )
+        for record in records:
+            stored = stored_of[record.id]
+            changed = _changed_fields(record, stored) if stored and not deleting else None
+            if isinstance(record, Inspection):
+                if stored is None or stored["state"] != InspectionState.SIGNED.value:
+                    continue
+                if changed is not None and changed <= _STAMP_FIELDS:
+                    continue
+                raise FrozenRecordError(
+                    f"inspection {record.id} of {stored['date']} is signed and cannot be "
+                    "changed; create an amendment inspection that references it"
+                )
+            if not isinstance(record, Reading | Finding | Photo):
+                continue
+            if record.inspection_id not in signed and (
+                stored is None or stored.get("inspection_id") not in signed
+            ):
+                continue
+            if (
+                isinstance(record, Finding)
+                and changed is not None
+                and changed <= _RESOLUTION_FIELDS
+            ):
+                continue
+            raise FrozenRecordError(
+                f"{record.table} {record.id} belongs to a signed inspection and cannot be "
+                "changed; create an amendment inspection that references it"
+            )
+
+    def _signed_inspections(self, ids: set[str | None]) -> set[str]:
+        wanted = sorted(i for i in ids if i)
+        signed: set[str] = set()
+        for start in range(0, len(wanted), _CHUNK):
+            chunk = wanted[start : start + _CHUNK]
+            marks = ",".join("?" * len(chunk))
+            signed.update(
+                row[0]
+                for row in self.db.execute(
+                    f"SELECT id FROM inspection WHERE state = 'signed' AND id IN ({marks})", chunk
+                )
+            )
+        return signed
+
+    # ----------------------------------------------------------------- settings
+
+    def get_setting(self, key: str, default: str | None = None) -> str | None:
+        row = self.db.execute("SELECT value FROM setting WHERE key = ?", [key]).fetchone()
+        return row[0] if row else default
+
+    def set_setting(self, key: str, value: str) -> None:
+        """Keep a setting in the database (cautions acknowledged, default instrument…)."""
+        at = utcnow().isoformat()
+        with self.transaction():
+            before = self.db.execute(
+                "SELECT key, value FROM setting WHERE key = ?", [key]
+            ).fetchone()
+            self.db["setting"].upsert({"key": key, "value": value, "updated_at": at}, pk="key")
+            self._log(
+                [
+                    (
+                        "setting",
+                        key,
+                        "update" if before else "insert",
+                        {"key": before[0], "value": before[1]} if before else None,
+                        {"key": key, "value": value},
+                    )
+                ],
+                at,
+            )
+
+    # ------------------------------------------------------------------- checks
+
+    def verify_audit(self) -> list[audit.AuditProblem]:
+        """Records or audit rows changed behind the tool's back, each named."""
+        return audit.verify(self.db)
+
+
+def apply_migrations(db: sqlite_utils.Database, *, upto: int) -> None:
+    """Run the migration steps after the database's version, up to `upto`, each in a transaction."""
+    current = 0
+    if "meta" in db.table_names():
+        row = db.execute("SELECT value FROM meta WHERE key = 'schema_version'").fetchone()
+        current = int(row[0]) if row else 0
+    for version in range(current + 1, upto + 1):
+        with db.atomic():
+            MIGRATIONS[version - 1](db)
+            db["meta"].upsert({"key": "schema_version", "value": str(version)}, pk="key")
+            if version == 1:
+                db["meta"].upsert({"key": "created_by_version", "value": __version__}, pk="key")
+
+
+def _changed_fields(record: Record, stored: dict[str, Any]) -> set[str]:
+    new = to_row(record)
+    return {key for key in new if key != "created_at" and new[key] != stored.get(key)}
+
+
+def _default_user() -> str:
+    try:
+        return getpass.getuser()
+    except (KeyError, OSError):
+        return "unknown"

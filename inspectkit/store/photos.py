@@ -1,0 +1,107 @@
+"""Photos in a content-addressed folder beside the database.
+
+A file is named by its sha256, so the same photo attached twice is stored once,
+and a bundle or a doctor run can tell a damaged file from a good one.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import shutil
+import tempfile
+from datetime import datetime, timezone
+from pathlib import Path
+
+from PIL import Image, UnidentifiedImageError
+
+from inspectkit.model import Photo
+from inspectkit.store.database import Store, StoreError
+
+_EXIF_ORIENTATION = 0x0112
+_EXIF_IFD = 0x8769
+_EXIF_DATETIME_ORIGINAL = 0x9003
+_EXIF_DATETIME = 0x0132
+
+
+def file_sha256(path: Path) -> str:
+    digest = hashlib.sha256()
+    with path.open("rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def photo_path(store: Store, sha256: str) -> Path:
+    """Where the file of that hash lives (two-letter fan-out keeps folders small)."""
+    return store.photos_dir / sha256[:2] / sha256
+
+
+def read_exif(path: Path) -> tuple[int, datetime | None, int, int]:
+    """Orientation, taken-at time, width and height of an image file.
+
+    EXIF times carry no zone; they are taken as UTC, which keeps their order.
+
+    Raises:
+        StoreError: the file is not an image Pillow can read.
+    """
+    try:
+        with Image.open(path) as image:
+            exif = image.getexif()
+            width, height = image.size
+    except (UnidentifiedImageError, OSError) as exc:
+        raise StoreError(f"{path}: not a photo that can be read ({exc})") from exc
+    orientation = exif.get(_EXIF_ORIENTATION, 1)
+    if not isinstance(orientation, int) or not 1 <= orientation <= 8:
+        orientation = 1
+    stamp = exif.get_ifd(_EXIF_IFD).get(_EXIF_DATETIME_ORIGINAL) or exif.get(_EXIF_DATETIME)
+    taken_at = None
+    if isinstance(stamp, str):
+        try:
+            taken_at = datetime.strptime(stamp.strip(), "%Y:%m:%d %H:%M:%S").replace(
+                tzinfo=timezone.utc
+            )
+        except ValueError:
+            taken_at = None
+    return orientation, taken_at, width, height
+
+
+def put_file(store: Store, source: Path) -> str:
+    """Copy a file into the photo folder under its hash; return the hash."""
+    sha = file_sha256(source)
+    target = photo_path(store, sha)
+    if not target.exists():
+        target.parent.mkdir(parents=True, exist_ok=True)
+        handle, temp = tempfile.mkstemp(dir=target.parent, prefix=".incoming-")
+        os.close(handle)
+        shutil.copyfile(source, temp)
+        os.replace(temp, target)
+    return sha
+
+
+def attach_photo(
+    store: Store,
+    source: Path,
+    *,
+    inspection_id: str | None = None,
+    component_id: str | None = None,
+    caption: str = "",
+) -> Photo:
+    """Store a photo file and record it; the file is in place before the record says so."""
+    source = Path(source)
+    if not source.is_file():
+        raise StoreError(f"{source}: no such file; give the path of a photo")
+    orientation, taken_at, width, height = read_exif(source)
+    sha = put_file(store, source)
+    photo = Photo(
+        sha256=sha,
+        original_name=source.name,
+        caption=caption,
+        taken_at=taken_at,
+        inspection_id=inspection_id,
+        component_id=component_id,
+        orientation=orientation,
+        width=width,
+        height=height,
+    )
+    return store.save(photo)

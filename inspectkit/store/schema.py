@@ -1,0 +1,172 @@
+"""The database schema as forward-only migrations; each step is frozen once released.
+
+A migration never reads the current pydantic models: the tables it creates are the
+tables of its own version, so a database made years ago migrates the same way.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+import sqlite_utils
+
+_STAMPS = """
+    created_at TEXT NOT NULL,
+    updated_at TEXT NOT NULL,
+    updated_by TEXT NOT NULL DEFAULT ''
+"""
+
+_V1 = f"""
+CREATE TABLE meta (
+    key TEXT PRIMARY KEY,
+    value TEXT NOT NULL
+);
+CREATE TABLE site (
+    id TEXT PRIMARY KEY,
+    name TEXT NOT NULL,
+    client TEXT NOT NULL DEFAULT '',
+    address TEXT NOT NULL DEFAULT '',
+    town TEXT NOT NULL DEFAULT '',
+    latitude REAL,
+    longitude REAL,
+    protection_level TEXT NOT NULL,
+    profile TEXT NOT NULL,
+    critical INTEGER NOT NULL DEFAULT 0,
+    explosive_risk INTEGER NOT NULL DEFAULT 0,
+    height_m REAL,
+    notes TEXT NOT NULL DEFAULT '',
+    altered_on TEXT,
+    {_STAMPS}
+);
+CREATE TABLE component (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    kind TEXT NOT NULL,
+    tag TEXT NOT NULL,
+    location TEXT NOT NULL DEFAULT '',
+    material TEXT NOT NULL DEFAULT '',
+    installed_on TEXT,
+    parent_id TEXT REFERENCES component(id),
+    electrode_type TEXT,
+    retired_on TEXT,
+    {_STAMPS}
+);
+CREATE TABLE instrument (
+    id TEXT PRIMARY KEY,
+    description TEXT NOT NULL,
+    serial TEXT NOT NULL,
+    calibration_due TEXT,
+    {_STAMPS}
+);
+CREATE TABLE inspector (
+    id TEXT PRIMARY KEY,
+    name TEXT NOT NULL,
+    organisation TEXT NOT NULL DEFAULT '',
+    qualification TEXT NOT NULL DEFAULT '',
+    signing_key TEXT NOT NULL DEFAULT '',
+    certificate_pem TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE TABLE inspection (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    kind TEXT NOT NULL,
+    date TEXT NOT NULL,
+    inspector_id TEXT REFERENCES inspector(id),
+    weather TEXT NOT NULL DEFAULT '',
+    soil TEXT,
+    state TEXT NOT NULL DEFAULT 'draft',
+    finished INTEGER NOT NULL DEFAULT 0,
+    signed_at TEXT,
+    report_sha256 TEXT,
+    report_revision INTEGER NOT NULL DEFAULT 0,
+    amends_id TEXT REFERENCES inspection(id),
+    not_inspected TEXT NOT NULL DEFAULT '',
+    notes TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE TABLE reading (
+    id TEXT PRIMARY KEY,
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    quantity TEXT NOT NULL,
+    value REAL,
+    over_range INTEGER NOT NULL DEFAULT 0,
+    method TEXT NOT NULL,
+    joint_state TEXT,
+    instrument_id TEXT REFERENCES instrument(id),
+    taken_at TEXT NOT NULL,
+    soil TEXT,
+    unreliable INTEGER NOT NULL DEFAULT 0,
+    note TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE TABLE finding (
+    id TEXT PRIMARY KEY,
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT REFERENCES component(id),
+    grade TEXT NOT NULL,
+    category TEXT NOT NULL DEFAULT '',
+    text TEXT NOT NULL DEFAULT '',
+    remedial_action TEXT NOT NULL DEFAULT '',
+    due_by TEXT,
+    resolved_by TEXT REFERENCES inspection(id),
+    {_STAMPS}
+);
+CREATE TABLE photo (
+    id TEXT PRIMARY KEY,
+    sha256 TEXT NOT NULL,
+    original_name TEXT NOT NULL DEFAULT '',
+    caption TEXT NOT NULL DEFAULT '',
+    taken_at TEXT,
+    inspection_id TEXT REFERENCES inspection(id),
+    component_id TEXT REFERENCES component(id),
+    orientation INTEGER NOT NULL DEFAULT 1,
+    width INTEGER,
+    height INTEGER,
+    {_STAMPS}
+);
+CREATE TABLE audit (
+    seq INTEGER PRIMARY KEY AUTOINCREMENT,
+    id TEXT NOT NULL UNIQUE,
+    at TEXT NOT NULL,
+    who TEXT NOT NULL,
+    table_name TEXT NOT NULL,
+    row_id TEXT NOT NULL,
+    action TEXT NOT NULL,
+    before TEXT,
+    after TEXT,
+    prev_hash TEXT NOT NULL,
+    hash TEXT NOT NULL
+);
+CREATE INDEX component_site ON component(site_id);
+CREATE INDEX inspection_site ON inspection(site_id, date);
+CREATE INDEX reading_inspection ON reading(inspection_id);
+CREATE INDEX finding_inspection ON finding(inspection_id);
+"""
+
+_V2 = """
+CREATE TABLE setting (
+    key TEXT PRIMARY KEY,
+    value TEXT NOT NULL,
+    updated_at TEXT NOT NULL
+);
+CREATE INDEX reading_component ON reading(component_id, quantity, taken_at, value);
+CREATE INDEX audit_row ON audit(table_name, row_id, seq);
+CREATE INDEX photo_sha ON photo(sha256);
+"""
+
+
+def _v1(db: sqlite_utils.Database) -> None:
+    """The first schema: every record table, the audit chain, meta."""
+    db.executescript(_V1)
+
+
+def _v2(db: sqlite_utils.Database) -> None:
+    """Settings kept in the database; indexes for per-electrode history and audit checks."""
+    db.executescript(_V2)
+
+
+#: Step N (1-based) brings a database from version N-1 to N.
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2)
+SCHEMA_VERSION = len(MIGRATIONS)

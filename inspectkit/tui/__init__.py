@@ -1,0 +1,1 @@
+"""Textual screens, dialogs and widgets; nothing here holds a business rule."""
