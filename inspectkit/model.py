@@ -644,3 +644,20 @@ def explain(error: ValidationError) -> str:
         message = item["msg"].removeprefix("Value error, ")
         lines.append(f"{field}: {message}")
     return "\n".join(lines)
+
+
+class SiteRecords(BaseModel):
+    """Everything recorded for one site: what the engine needs to judge it.
+
+    Instruments are those referenced by the site's readings.
+    """
+
+    model_config = ConfigDict(arbitrary_types_allowed=True)
+
+    site: Site
+    components: list[Component] = Field(default_factory=list)
+    inspections: list[Inspection] = Field(default_factory=list)
+    readings: list[Reading] = Field(default_factory=list)
+    findings: list[Finding] = Field(default_factory=list)
+    photos: list[Photo] = Field(default_factory=list)
+    instruments: dict[str, Instrument] = Field(default_factory=dict)

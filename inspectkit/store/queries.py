@@ -5,8 +5,17 @@ from __future__ import annotations
 from dataclasses import dataclass
 from datetime import date
 
-from inspectkit.model import Site
-from inspectkit.store.database import Store
+from inspectkit.model import (
+    Component,
+    Finding,
+    Inspection,
+    Instrument,
+    Photo,
+    Reading,
+    Site,
+    SiteRecords,
+)
+from inspectkit.store.database import Store, StoreError
 from inspectkit.store.rows import from_row
 
 
@@ -54,3 +63,37 @@ def find_site(store: Store, name_or_id: str) -> Site | None:
         return exact[0]
     prefix = store.select(Site, "lower(name) LIKE lower(?) || '%'", [name_or_id])
     return prefix[0] if len(prefix) == 1 else None
+
+
+def load_site_records(store: Store, site_id: str) -> SiteRecords:
+    """All of one site's records, for the engine and the report.
+
+    Raises:
+        StoreError: no site has that id.
+    """
+    site = store.get(Site, site_id)
+    if site is None:
+        raise StoreError(f"no site with id {site_id}")
+    inspections = store.select(Inspection, "site_id = ?", [site_id], order_by="date, created_at")
+    in_site = "inspection_id IN (SELECT id FROM inspection WHERE site_id = ?)"
+    readings = store.select(Reading, in_site, [site_id], order_by="taken_at")
+    instrument_ids = sorted({r.instrument_id for r in readings if r.instrument_id})
+    instruments = (
+        {
+            i.id: i
+            for i in store.select(
+                Instrument, f"id IN ({','.join('?' * len(instrument_ids))})", instrument_ids
+            )
+        }
+        if instrument_ids
+        else {}
+    )
+    return SiteRecords(
+        site=site,
+        components=store.select(Component, "site_id = ?", [site_id], order_by="kind, tag"),
+        inspections=inspections,
+        readings=readings,
+        findings=store.select(Finding, in_site, [site_id]),
+        photos=store.select(Photo, in_site, [site_id]),
+        instruments=instruments,
+    )
