@@ -172,6 +172,8 @@ _QUANTITY_MAX = {
     Quantity.SOIL_RESISTIVITY: MAX_RESISTIVITY_OHM_M,
     Quantity.STRIKE_COUNT: float(MAX_COUNT),
 }
+#: Most a value of each quantity can plausibly be, in its SI unit (public for units.py).
+QUANTITY_MAX = _QUANTITY_MAX
 
 
 class Method(StrEnum):

@@ -31,12 +31,7 @@ import math
 import re
 from dataclasses import dataclass
 
-from inspectkit.model import (
-    MAX_COUNT,
-    MAX_RESISTANCE_OHM,
-    MAX_RESISTIVITY_OHM_M,
-    Quantity,
-)
+from inspectkit.model import QUANTITY_MAX, Quantity
 
 __all__ = ["Measured", "UnitError", "format_value", "parse", "unit_of"]
 
@@ -76,15 +71,6 @@ _EXAMPLE = {
     Quantity.SOIL_RESISTIVITY: "85 or 85 Ω·m",
     Quantity.STRIKE_COUNT: "42",
 }
-_MAXIMUM = {
-    Quantity.EARTH_ISOLATED: MAX_RESISTANCE_OHM,
-    Quantity.EARTH_COMBINED: MAX_RESISTANCE_OHM,
-    Quantity.CONTINUITY: MAX_RESISTANCE_OHM,
-    Quantity.BONDING: MAX_RESISTANCE_OHM,
-    Quantity.SOIL_RESISTIVITY: MAX_RESISTIVITY_OHM_M,
-    Quantity.STRIKE_COUNT: float(MAX_COUNT),
-}
-
 # Look-alike characters keyboards and instruments produce, mapped to one spelling.
 # Not NFKC: that would also turn a superscript "²" into a "2" and accept "1²" as 12.
 _LOOKALIKES = str.maketrans(
@@ -207,7 +193,7 @@ def _parse_value(cleaned: str, typed: str, quantity: Quantity) -> float:
     value = float(f"{digits}e{exponent}")
     if not math.isfinite(value):
         raise UnitError(f"{typed!r} is not a finite number; type e.g. {_EXAMPLE[quantity]}")
-    maximum = _MAXIMUM[quantity]
+    maximum = QUANTITY_MAX[quantity]
     if value > maximum:
         raise UnitError(
             f"{typed!r} is above {format_value(maximum, quantity)}, more than "

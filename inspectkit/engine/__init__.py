@@ -1,0 +1,1 @@
+"""Pure computation: rules, schedule, trend and earthing formulas; no SQL, files or clock."""
