@@ -1,0 +1,113 @@
+"""Profiles load, are checked on load, and a user's own file wins over a built-in one."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+
+from inspectkit.model import ProtectionLevel, Quantity
+from inspectkit.profiles import (
+    ProfileError,
+    builtin_profiles_dir,
+    load_all_profiles,
+    load_profile,
+    user_profiles_dir,
+)
+
+BUILTIN = ("iec-62305-3", "nfpa-780", "bs-6651-practice")
+
+
+def test_every_builtin_profile_loads() -> None:
+    profiles = load_all_profiles()
+    assert set(BUILTIN) <= set(profiles)
+    for profile in profiles.values():
+        assert set(profile.intervals) == set(ProtectionLevel)
+
+
+def test_every_number_in_a_builtin_profile_names_its_source() -> None:
+    """Each figure carries a clause, `common practice`, `from memory` or `our default`."""
+    words = ("table", "clause", "annex", "common practice", "from memory", "our default", "bs 6651")
+    for path in builtin_profiles_dir().glob("*.toml"):
+        for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), 1):
+            value = line.split("=", 1)[1].split("#")[0] if "=" in line else ""
+            if re.match(r'\s*"?[\d.]', value):
+                comment = line.split("#", 1)[1].lower() if "#" in line else ""
+                assert any(w in comment for w in words), f"{path.name}:{number} has no source"
+
+
+def test_limits_are_read_with_their_units() -> None:
+    iec = load_profile("iec-62305-3")
+    # IEC 62305-3 clause 5.4: earth-termination system ≤ 10 Ω (as quoted).
+    assert iec.limit_for(Quantity.EARTH_COMBINED) == pytest.approx(10.0)
+    assert iec.limit_for(Quantity.CONTINUITY) == pytest.approx(0.2)
+    assert iec.limit_for(Quantity.SOIL_RESISTIVITY) is None
+
+
+def test_ten_times_the_number_of_electrodes() -> None:
+    # BS 6651 practice: each electrode ≤ 10 Ω × number of electrodes; 15 electrodes → 150 Ω.
+    bs = load_profile("bs-6651-practice")
+    assert bs.limit_for(Quantity.EARTH_ISOLATED, electrode_count=15) == pytest.approx(150.0)
+
+
+def write_user_profile(name: str, text: str) -> Path:
+    folder = user_profiles_dir()
+    folder.mkdir(parents=True, exist_ok=True)
+    path = folder / f"{name}.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def builtin_text(name: str) -> str:
+    return (builtin_profiles_dir() / f"{name}.toml").read_text(encoding="utf-8")
+
+
+def test_a_user_profile_wins_over_the_builtin_one() -> None:
+    text = builtin_text("iec-62305-3").replace('earth_combined = "10 Ω"', 'earth_combined = "5 Ω"')
+    write_user_profile("iec-62305-3", text)
+    assert load_profile("iec-62305-3").limits.earth_combined == pytest.approx(5.0)
+
+
+def test_a_missing_interval_names_the_file_and_key() -> None:
+    text = builtin_text("iec-62305-3").replace(
+        "visual_months = 24              # Table E.2: levels III and IV, visual, 2 years\ncomplete_months = 48",
+        "complete_months = 48",
+        1,
+    )
+    path = write_user_profile(
+        "site-rules", text.replace('name = "iec-62305-3"', 'name = "site-rules"')
+    )
+    with pytest.raises(ProfileError) as caught:
+        load_profile("site-rules")
+    assert str(path) in str(caught.value)
+    assert "intervals.III.visual_months: missing" in str(caught.value)
+
+
+def test_a_limit_in_the_wrong_unit_names_the_file_and_key() -> None:
+    text = builtin_text("iec-62305-3").replace('continuity = "0.2 Ω"', 'continuity = "0.2 Ω·m"')
+    path = write_user_profile(
+        "wrong-unit", text.replace('name = "iec-62305-3"', 'name = "wrong-unit"')
+    )
+    with pytest.raises(ProfileError) as caught:
+        load_profile("wrong-unit")
+    assert str(path) in str(caught.value)
+    assert "limits.continuity" in str(caught.value)
+
+
+def test_a_name_that_does_not_match_the_file() -> None:
+    write_user_profile("mine", builtin_text("nfpa-780"))
+    with pytest.raises(ProfileError, match="must match the file name"):
+        load_profile("mine")
+
+
+def test_an_unknown_profile_lists_the_known_ones() -> None:
+    with pytest.raises(ProfileError, match="known profiles: .*iec-62305-3"):
+        load_profile("nope")
+
+
+def test_broken_toml() -> None:
+    path = write_user_profile("broken", "name = [")
+    with pytest.raises(ProfileError, match="not valid TOML"):
+        load_profile("broken")
+    assert path.exists()
