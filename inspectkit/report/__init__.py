@@ -1,0 +1,1 @@
+"""Signed PDF inspection reports: the report model, rendering, signing and verification."""

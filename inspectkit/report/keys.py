@@ -1,0 +1,153 @@
+"""An inspector's signing key: a passphrase-protected PKCS#12 file and its certificate.
+
+A small contractor has no certificate authority, so `new_key` makes a
+self-signed certificate; a client then checks reports against the certificate
+the contractor hands over (or the one kept in the database). A key issued by a
+real CA is taken in with `read_key` and used the same way.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
+from pathlib import Path
+
+from cryptography import x509
+from cryptography.hazmat.primitives import hashes, serialization
+from cryptography.hazmat.primitives.asymmetric import rsa
+from cryptography.hazmat.primitives.serialization import pkcs12
+from cryptography.x509.oid import NameOID
+
+#: A self-signed inspector certificate is good for this long (our default).
+VALID_DAYS = 5 * 365
+#: RSA key size; 2048 bits is the usual floor for document signatures (common practice).
+KEY_BITS = 2048
+
+
+class KeyProblem(Exception):
+    """A key file that cannot be made or used; the message says what to do."""
+
+
+@dataclass(frozen=True)
+class SigningKey:
+    """What a report signature needs from a key file, and what the database keeps of it."""
+
+    path: Path
+    certificate_pem: str
+    subject: str
+    not_after: dt.datetime
+
+
+def new_key(
+    path: Path,
+    passphrase: bytes,
+    *,
+    name: str,
+    organisation: str = "",
+    qualification: str = "",
+    now: dt.datetime | None = None,
+) -> SigningKey:
+    """Make an RSA key and a self-signed certificate, saved together as PKCS#12.
+
+    Args:
+        path: Where to write the `.p12` file; an existing file is not overwritten.
+        passphrase: Protects the key in the file; must not be empty.
+        name: The inspector's name, the certificate's common name.
+        organisation: The contractor, the certificate's organisation.
+        qualification: Licence or qualification, kept in the certificate's title.
+        now: Start of validity (tests pass a fixed time).
+
+    Raises:
+        KeyProblem: empty passphrase, or the file exists already.
+    """
+    if not passphrase:
+        raise KeyProblem("passphrase is empty; give one to protect the key")
+    if path.exists():
+        raise KeyProblem(f"{path} exists already; choose another file with -o")
+    start = (now or dt.datetime.now(dt.UTC)).replace(microsecond=0)
+    key = rsa.generate_private_key(public_exponent=65537, key_size=KEY_BITS)
+    attributes = [x509.NameAttribute(NameOID.COMMON_NAME, name)]
+    if organisation:
+        attributes.append(x509.NameAttribute(NameOID.ORGANIZATION_NAME, organisation))
+    if qualification:
+        attributes.append(x509.NameAttribute(NameOID.TITLE, qualification))
+    subject = x509.Name(attributes)
+    certificate = (
+        x509.CertificateBuilder()
+        .subject_name(subject)
+        .issuer_name(subject)
+        .public_key(key.public_key())
+        .serial_number(x509.random_serial_number())
+        .not_valid_before(start - dt.timedelta(minutes=5))
+        .not_valid_after(start + dt.timedelta(days=VALID_DAYS))
+        .add_extension(x509.BasicConstraints(ca=False, path_length=None), critical=True)
+        .add_extension(
+            x509.KeyUsage(
+                digital_signature=True,
+                content_commitment=True,
+                key_encipherment=False,
+                data_encipherment=False,
+                key_agreement=False,
+                key_cert_sign=False,
+                crl_sign=False,
+                encipher_only=False,
+                decipher_only=False,
+            ),
+            critical=True,
+        )
+        .add_extension(x509.SubjectKeyIdentifier.from_public_key(key.public_key()), critical=False)
+        .sign(key, hashes.SHA256())
+    )
+    blob = pkcs12.serialize_key_and_certificates(
+        name.encode("utf-8"),
+        key,
+        certificate,
+        None,
+        serialization.BestAvailableEncryption(passphrase),
+    )
+    path.parent.mkdir(parents=True, exist_ok=True)
+    with path.open("xb") as handle:
+        handle.write(blob)
+    path.chmod(0o600)
+    return _describe(path, certificate)
+
+
+def read_key(path: Path, passphrase: bytes) -> SigningKey:
+    """Open a PKCS#12 file (made here or issued by a CA) and check it can sign.
+
+    Raises:
+        KeyProblem: the file is missing, the passphrase is wrong, or it holds no key.
+    """
+    try:
+        blob = path.read_bytes()
+    except OSError as exc:
+        raise KeyProblem(f"{path}: cannot read the key file ({exc.strerror})") from exc
+    try:
+        key, certificate, _ = pkcs12.load_key_and_certificates(blob, passphrase)
+    except ValueError as exc:
+        raise KeyProblem(
+            f"{path}: wrong passphrase, or not a PKCS#12 (.p12/.pfx) file"
+        ) from exc
+    if key is None or certificate is None:
+        raise KeyProblem(f"{path}: holds no private key and certificate; export both from the CA")
+    return _describe(path, certificate)
+
+
+def certificate_from_pem(pem: str) -> x509.Certificate:
+    """The certificate kept on an Inspector record."""
+    return x509.load_pem_x509_certificate(pem.encode("ascii"))
+
+
+def common_name(certificate: x509.Certificate) -> str:
+    """The person a certificate names, or its whole subject when it has no common name."""
+    names = certificate.subject.get_attributes_for_oid(NameOID.COMMON_NAME)
+    return str(names[0].value) if names else certificate.subject.rfc4514_string()
+
+
+def _describe(path: Path, certificate: x509.Certificate) -> SigningKey:
+    return SigningKey(
+        path=path,
+        certificate_pem=certificate.public_bytes(serialization.Encoding.PEM).decode("ascii"),
+        subject=common_name(certificate),
+        not_after=certificate.not_valid_after_utc,
+    )
