@@ -1,0 +1,234 @@
+"""Electrode trending: a robust slope through each electrode's isolated readings, and a forecast.
+
+Earth readings scatter with the season and the soil, so a straight least-squares
+line is pulled about by one dry summer. The Theil–Sen slope (the median of the
+slopes between every pair of readings) ignores such outliers; its spread is given
+as the 95 % confidence interval of Sen (1968, eq. 2.6), computed the way
+`scipy.stats.theilslopes` does, so the two can be compared.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import Counter
+from collections.abc import Sequence
+from dataclasses import dataclass
+from datetime import date, timedelta
+from statistics import NormalDist, median
+from typing import Any
+
+from inspectkit.engine.history import calibration_lapsed, electrode_count, in_service, series
+from inspectkit.model import Component, Quantity, Reading, SiteRecords
+from inspectkit.profiles import Profile
+
+#: Days in a mean calendar year, to turn dates into years.
+YEAR_DAYS = 365.25
+#: Fewest readings a forecast is made from (our default).
+MIN_READINGS = 3
+#: Shortest span of readings a forecast is made from, in years (our default).
+MIN_SPAN_YEARS = 1.0
+#: Forecasts further out than this are not given: they say nothing useful.
+HORIZON_YEARS = 100
+
+
+@dataclass(frozen=True)
+class TheilSen:
+    """A Theil–Sen line y = intercept + slope·x, with the confidence interval of its slope."""
+
+    slope: float
+    intercept: float
+    low_slope: float | None
+    high_slope: float | None
+
+
+def theil_sen(
+    xs: Sequence[float], ys: Sequence[float], confidence: float = 0.95
+) -> TheilSen | None:
+    """The median of pairwise slopes, or None when every x is the same.
+
+    The intercept is median(y) − slope·median(x) (scipy's "separate" method); the
+    slope's interval follows Sen (1968) eq. 2.6 with the tie corrections for
+    repeated x and y values, as `scipy.stats.theilslopes` computes it.
+    """
+    n = len(xs)
+    slopes = sorted(
+        (ys[j] - ys[i]) / (xs[j] - xs[i]) for i in range(n) for j in range(n) if xs[j] > xs[i]
+    )
+    if not slopes:
+        return None
+    slope = median(slopes)
+    intercept = median(ys) - slope * median(xs)
+    alpha = min(confidence, 1 - confidence)
+    z = NormalDist().inv_cdf(alpha / 2)
+
+    def ties(values: Sequence[float]) -> int:
+        return sum(k * (k - 1) * (2 * k + 5) for k in Counter(values).values())
+
+    sigma_sq = (n * (n - 1) * (2 * n + 5) - ties(xs) - ties(ys)) / 18
+    if sigma_sq < 0:
+        return TheilSen(slope, intercept, None, None)
+    sigma = math.sqrt(sigma_sq)
+    upper = min(int(round((len(slopes) - z * sigma) / 2)), len(slopes) - 1)
+    lower = max(int(round((len(slopes) + z * sigma) / 2)) - 1, 0)
+    return TheilSen(slope, intercept, slopes[lower], slopes[upper])
+
+
+@dataclass(frozen=True)
+class ElectrodeTrend:
+    """How one electrode's isolated resistance moves over time.
+
+    Attributes:
+        component_id, component_tag: the electrode (or the test joint the readings are on).
+        used: readings in the fit.
+        left_out_unreliable: readings marked doubtful or taken with a lapsed instrument.
+        left_out_over_range: over-range readings (no number to fit).
+        first_day, last_day: dates of the first and last reading used.
+        slope_ohm_per_year: Theil–Sen slope, Ω per year (None without a forecast).
+        slope_pct_per_year: the slope as a percentage of the fitted value at `first_day`.
+        slope_low, slope_high: the slope's 95 % confidence interval, Ω per year.
+        fitted_last: the line's value at `last_day`, Ω.
+        limit: the acceptance limit, Ω.
+        crossing: forecast date the line reaches the limit (None if not rising or no forecast).
+        next_complete: the next complete inspection's due date.
+        before_next_complete: the crossing falls on or before `next_complete`.
+        note: one sentence saying what the trend shows, or why there is no forecast.
+    """
+
+    component_id: str
+    component_tag: str
+    used: int
+    left_out_unreliable: int
+    left_out_over_range: int
+    first_day: date | None
+    last_day: date | None
+    slope_ohm_per_year: float | None
+    slope_pct_per_year: float | None
+    slope_low: float | None
+    slope_high: float | None
+    fitted_last: float | None
+    limit: float | None
+    crossing: date | None
+    next_complete: date | None
+    before_next_complete: bool
+    note: str
+
+    @property
+    def forecast(self) -> bool:
+        """A slope was fitted (enough readings over a long enough span)."""
+        return self.slope_ohm_per_year is not None
+
+
+def electrode_trends(
+    records: SiteRecords, profile: Profile, today: date, next_complete: date | None
+) -> list[ElectrodeTrend]:
+    """A trend for every component in service with isolated earth readings, by tag."""
+    tags = {c.id: c for c in records.components}
+    limit = profile.limit_for(Quantity.EARTH_ISOLATED, electrode_count(records, today))
+    trends = []
+    for (component_id, _), readings in series(records.readings, Quantity.EARTH_ISOLATED).items():
+        component = tags.get(component_id)
+        if component is None or not in_service(component, today):
+            continue
+        trends.append(_trend(records, component, readings, limit, next_complete))
+    return sorted(trends, key=lambda t: t.component_tag)
+
+
+def _trend(
+    records: SiteRecords,
+    component: Component,
+    readings: list[Reading],
+    limit: float | None,
+    next_complete: date | None,
+) -> ElectrodeTrend:
+    over_range = doubtful = 0
+    kept: list[Reading] = []
+    for reading in readings:
+        if reading.over_range or reading.value is None:
+            over_range += 1
+        elif reading.unreliable or calibration_lapsed(records, reading):
+            doubtful += 1
+        else:
+            kept.append(reading)
+    left_out = _left_out(doubtful, over_range)
+    days = [r.taken_at.date() for r in kept]
+    base: dict[str, Any] = dict(
+        component_id=component.id,
+        component_tag=component.tag,
+        used=len(kept),
+        left_out_unreliable=doubtful,
+        left_out_over_range=over_range,
+        first_day=days[0] if days else None,
+        last_day=days[-1] if days else None,
+        limit=limit,
+        next_complete=next_complete,
+    )
+    none: dict[str, Any] = dict(
+        slope_ohm_per_year=None,
+        slope_pct_per_year=None,
+        slope_low=None,
+        slope_high=None,
+        fitted_last=None,
+        crossing=None,
+        before_next_complete=False,
+    )
+    span = (days[-1] - days[0]).days / YEAR_DAYS if days else 0.0
+    if len(kept) < MIN_READINGS:
+        note = f"no forecast: {len(kept)} usable reading(s), {MIN_READINGS} needed{left_out}"
+        return ElectrodeTrend(**base, **none, note=note)
+    if span < MIN_SPAN_YEARS:
+        note = f"no forecast: readings span {span:.1f} years, at least 1 year needed{left_out}"
+        return ElectrodeTrend(**base, **none, note=note)
+    xs = [(d - days[0]).days / YEAR_DAYS for d in days]
+    fit = theil_sen(xs, [r.value for r in kept if r.value is not None])
+    assert fit is not None  # the span is at least a year, so two x values differ
+    fitted_first = fit.intercept
+    pct = 100 * fit.slope / fitted_first if fitted_first > 0 else None
+    crossing = _crossing(fit, days[0], limit)
+    soon = crossing is not None and next_complete is not None and crossing <= next_complete
+    return ElectrodeTrend(
+        **base,
+        slope_ohm_per_year=fit.slope,
+        slope_pct_per_year=pct,
+        slope_low=fit.low_slope,
+        slope_high=fit.high_slope,
+        fitted_last=fit.intercept + fit.slope * xs[-1],
+        crossing=crossing,
+        before_next_complete=soon,
+        note=_describe(fit.slope, pct, crossing, limit, next_complete, soon) + left_out,
+    )
+
+
+def _left_out(doubtful: int, over_range: int) -> str:
+    parts = []
+    if doubtful:
+        parts.append(f"{doubtful} doubtful or uncalibrated")
+    if over_range:
+        parts.append(f"{over_range} over-range")
+    return f" ({' and '.join(parts)} left out)" if parts else ""
+
+
+def _crossing(fit: TheilSen, first_day: date, limit: float | None) -> date | None:
+    """Where the fitted line reaches the limit, if it rises and does so within the horizon."""
+    if limit is None or fit.slope <= 0:
+        return None
+    years = (limit - fit.intercept) / fit.slope
+    if years > HORIZON_YEARS:
+        return None
+    return first_day + timedelta(days=round(max(years, 0.0) * YEAR_DAYS))
+
+
+def _describe(
+    slope: float,
+    pct: float | None,
+    crossing: date | None,
+    limit: float | None,
+    next_complete: date | None,
+    soon: bool,
+) -> str:
+    rate = f"{slope:+.2f} Ω/year" + (f" ({pct:+.1f} %/year)" if pct is not None else "")
+    if crossing is None:
+        return f"{rate}; not heading for the limit"
+    text = f"{rate}; reaches the {limit:g} Ω limit about {crossing.isoformat()}"
+    if soon and next_complete is not None:
+        return f"{text}, before the next complete inspection due {next_complete.isoformat()}"
+    return text
