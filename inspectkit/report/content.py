@@ -1,0 +1,175 @@
+"""The content of one inspection report as plain data, ready to render or to preview.
+
+Everything a page shows is worked out here, in words: results are "pass",
+"fail", "watch" and so on, never a colour alone, and values are already
+formatted with their units. The renderer and the TUI preview only lay it out.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from datetime import date
+from pathlib import Path
+
+#: The safety cautions every report carries (DOMAIN.md §7; the 30/30 rule is
+#: published by occupational safety authorities, the rest is common practice).
+CAUTIONS: tuple[str, ...] = (
+    "Stop outdoor and rooftop work and testing when thunder is heard or lightning is seen: "
+    "if thunder follows the flash within 30 seconds, take shelter, and resume only "
+    "30 minutes after the last thunder (the 30/30 rule).",
+    "Work at height only with the site's roof-access arrangements and fall protection; "
+    "lightning protection conductors are not anchor points.",
+    "An electrode disconnected at its test joint leaves that part of the structure "
+    "unprotected and can carry fault current: test one electrode at a time, do not touch "
+    "electrodes, spikes or leads during a test, and reconnect every test joint before leaving.",
+)
+
+#: Said on every report: what the tool does not do, and who decides.
+DEFERRAL = (
+    "This report records what was inspected and measured and applies the acceptance limits "
+    "of the rule set named above. It is not a design of the lightning protection system and "
+    "does not certify compliance. Local codes, the authority having jurisdiction and licensed "
+    "or accredited practice decide what is required."
+)
+
+
+@dataclass(frozen=True)
+class Field:
+    """One labelled line of a details table."""
+
+    label: str
+    value: str
+
+
+@dataclass(frozen=True)
+class ReadingRow:
+    """One reading as the report's table shows it; `result` is a word."""
+
+    reading_id: str
+    tag: str
+    component: str
+    quantity: str
+    method: str
+    value: str
+    limit: str
+    result: str
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class PhotoItem:
+    """A photo to embed, with the caption printed under it."""
+
+    photo_id: str
+    path: Path
+    caption: str
+
+
+@dataclass(frozen=True)
+class FindingRow:
+    """A visual finding with what to do about it and the photos that show it."""
+
+    tag: str
+    grade: str
+    category: str
+    text: str
+    remedial_action: str
+    due_by: str
+    photos: tuple[PhotoItem, ...] = ()
+
+
+@dataclass(frozen=True)
+class Notice:
+    """An engine result that is not one reading's pass or fail (calibration, missing tests…)."""
+
+    result: str
+    tag: str
+    message: str
+
+
+@dataclass(frozen=True)
+class TrendChart:
+    """One electrode's earth resistance over time, its fitted line and forecast.
+
+    Attributes:
+        tag: The electrode's (or test joint's) tag.
+        points: (date, ohms) of every reading used.
+        fit: Two (date, ohms) points of the fitted line, or empty with fewer than three readings.
+        limit: The acceptance limit in ohms, if any.
+        crossing: The date the fitted line reaches the limit, if it does.
+        summary: The trend in words, e.g. "rising 1.2 Ω a year; reaches 10 Ω about 2029-04".
+    """
+
+    tag: str
+    points: tuple[tuple[date, float], ...]
+    fit: tuple[tuple[date, float], ...]
+    limit: float | None
+    crossing: date | None
+    summary: str
+
+
+@dataclass(frozen=True)
+class ReportContent:
+    """Everything one inspection report says, section by section.
+
+    Attributes:
+        title: e.g. "Complete inspection report".
+        site_name, inspection_id, revision_label: for the footer of every page.
+        verdict: the summary verdict, one sentence.
+        verdict_word: "PASS", "ACTION NEEDED", … shown large on the summary page.
+        headline: short lines under the verdict (counts of fails, watches, findings).
+        site, structure, inspection, inspector: labelled detail lines.
+        instruments: rows of (description, serial, calibration due, state in words).
+        readings: every reading with its limit and result.
+        findings: every visual finding.
+        notices: engine results not tied to one reading's limit.
+        trends: electrode trend charts.
+        schedule: next inspections in words.
+        not_inspected: what could not be inspected and why.
+        amendment: lines saying what this amendment changed against the original.
+        amends: words naming the original inspection, for an amendment.
+        signer_name, signer_qualification: for the visible signature block.
+        general_photos: photos not attached to any finding.
+    """
+
+    title: str
+    site_name: str
+    inspection_id: str
+    revision_label: str
+    inspection_date: date
+    verdict: str
+    verdict_word: str
+    headline: tuple[str, ...]
+    site: tuple[Field, ...]
+    structure: tuple[Field, ...]
+    inspection: tuple[Field, ...]
+    instruments: tuple[tuple[str, str, str, str], ...]
+    readings: tuple[ReadingRow, ...]
+    findings: tuple[FindingRow, ...]
+    notices: tuple[Notice, ...]
+    trends: tuple[TrendChart, ...]
+    schedule: tuple[Field, ...]
+    not_inspected: str
+    signer_name: str
+    signer_qualification: str
+    signer_organisation: str = ""
+    amends: str = ""
+    amendment: tuple[str, ...] = ()
+    general_photos: tuple[PhotoItem, ...] = ()
+    cautions: tuple[str, ...] = CAUTIONS
+    deferral: str = DEFERRAL
+
+    def photos(self) -> list[PhotoItem]:
+        """Every photo the report embeds, findings' first."""
+        return [p for f in self.findings for p in f.photos] + list(self.general_photos)
+
+    def without_photos(self, keep: set[str]) -> ReportContent:
+        """The same report with only the photos whose ids are in `keep` (the TUI's choice)."""
+        return replace(
+            self,
+            findings=tuple(
+                replace(f, photos=tuple(p for p in f.photos if p.photo_id in keep))
+                for f in self.findings
+            ),
+            general_photos=tuple(p for p in self.general_photos if p.photo_id in keep),
+        )
