@@ -1,0 +1,401 @@
+"""The validator's rules: each a small function that looks at one site and yields results.
+
+Only the latest reading of each component and quantity decides the present state;
+earlier readings serve as history (baseline, previous reading, trend). A reading
+that proves nothing (doubtful, or taken with a lapsed instrument) never counts as
+a pass. Every rule takes the same `SiteFacts`, built once per site by `facts_for`.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable, Iterator
+from dataclasses import dataclass
+from datetime import date
+
+from inspectkit.engine.history import (
+    COMPLETE_KINDS,
+    calibration_lapsed,
+    counts_as_done,
+    electrode_count,
+    in_service,
+    series,
+    usable,
+)
+from inspectkit.engine.results import Result
+from inspectkit.engine.schedule import (
+    CounterRise,
+    DueKind,
+    DueStatus,
+    SiteSchedule,
+    counter_changes,
+)
+from inspectkit.engine.trend import ElectrodeTrend
+from inspectkit.model import (
+    Component,
+    ComponentKind,
+    Grade,
+    Inspection,
+    InspectionState,
+    Quantity,
+    Reading,
+    Severity,
+    SiteRecords,
+)
+from inspectkit.profiles import Profile
+from inspectkit.units import format_value
+
+#: Quantities with an acceptance limit, and what to do when a reading is above it.
+LIMIT_ACTIONS = {
+    Quantity.EARTH_ISOLATED: "check the electrode and its connection, then re-test",
+    Quantity.EARTH_COMBINED: "check the test joints and electrodes, then re-test the system",
+    Quantity.CONTINUITY: "check the joints and fixings along the conductor, then re-test",
+    Quantity.BONDING: "clean and tighten the bond, then re-test",
+}
+
+
+@dataclass(frozen=True)
+class SiteFacts:
+    """What every rule needs about one site, worked out once.
+
+    Attributes:
+        records: the site's records as of `today`.
+        profile: the rule set the site is held to.
+        today: the day judged.
+        schedule: the site's schedule.
+        trends: the electrode trends.
+        components: components by id.
+        latest: the latest reading of each (component, quantity) in service.
+        history: every reading of each (component, quantity), oldest first.
+    """
+
+    records: SiteRecords
+    profile: Profile
+    today: date
+    schedule: SiteSchedule
+    trends: list[ElectrodeTrend]
+    components: dict[str, Component]
+    latest: dict[tuple[str, Quantity], Reading]
+    history: dict[tuple[str, Quantity], list[Reading]]
+
+    def result(self, severity: Severity, rule: str, message: str, **fields: object) -> Result:
+        """A result about this site."""
+        site = self.records.site
+        return Result(severity, rule, site.id, site.name, message, **fields)  # type: ignore[arg-type]
+
+    def about(self, reading: Reading) -> dict[str, object]:
+        """The result fields that place a result on a reading and its component."""
+        component = self.components.get(reading.component_id)
+        return {
+            "component_id": reading.component_id,
+            "component_tag": component.tag if component else None,
+            "reading_id": reading.id,
+            "value": reading.value,
+            "unit": reading.quantity.unit,
+        }
+
+    def tag(self, component_id: str | None) -> str:
+        component = self.components.get(component_id or "")
+        return component.tag if component else "site"
+
+
+def facts_for(
+    records: SiteRecords,
+    profile: Profile,
+    today: date,
+    schedule: SiteSchedule,
+    trends: list[ElectrodeTrend],
+) -> SiteFacts:
+    """Index a site's records (already cut to `today`) for the rules."""
+    components = {c.id: c for c in records.components}
+    history = {
+        key: readings
+        for key, readings in series(records.readings).items()
+        if key[0] in components and in_service(components[key[0]], today)
+    }
+    latest = {key: readings[-1] for key, readings in history.items()}
+    return SiteFacts(records, profile, today, schedule, trends, components, latest, history)
+
+
+def _shown(reading: Reading) -> str:
+    return format_value(reading.value, reading.quantity, reading.over_range, digits=3)
+
+
+def _day(reading: Reading) -> str:
+    return reading.taken_at.date().isoformat()
+
+
+def reading_limits(facts: SiteFacts) -> Iterator[Result]:
+    """The latest reading of each component above the profile's limit for its quantity."""
+    count = electrode_count(facts.records, facts.today)
+    for (_, quantity), reading in sorted(facts.latest.items(), key=lambda kv: kv[1].taken_at):
+        limit = facts.profile.limit_for(quantity, count)
+        if limit is None or quantity not in LIMIT_ACTIONS:
+            continue
+        about = {**facts.about(reading), "limit": limit}
+        tag, shown = about["component_tag"], _shown(reading)
+        bound = reading.value
+        limit_text = format_value(limit, quantity, digits=3)
+        if reading.over_range and bound is not None and bound < limit:
+            yield facts.result(
+                Severity.WATCH,
+                "limit",
+                f"{tag} {quantity.label} showed {shown}, which does not say whether it is "
+                f"within the {limit_text} limit: re-test on a higher range.",
+                **about,
+            )
+        elif reading.over_range or (bound is not None and bound > limit):
+            yield facts.result(
+                Severity.FAIL,
+                "limit",
+                f"{tag} {quantity.label} {shown} on {_day(reading)} is above the "
+                f"{limit_text} limit: {LIMIT_ACTIONS[quantity]}.",
+                **about,
+            )
+
+
+def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
+    """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
+    step = facts.profile.limits.rise_fraction
+    for (_, quantity), readings in facts.history.items():
+        if quantity is not Quantity.EARTH_ISOLATED:
+            continue
+        good = [r for r in readings if usable(facts.records, r)]
+        if len(good) < 2:
+            continue
+        baseline, previous, last = good[0], good[-2], good[-1]
+        for name, earlier in (("baseline", baseline), ("previous reading", previous)):
+            if earlier.value and last.value is not None and last.value > earlier.value * (1 + step):
+                rise = 100 * (last.value / earlier.value - 1)
+                yield facts.result(
+                    Severity.WATCH,
+                    "rise",
+                    f"{facts.tag(last.component_id)} electrode {_shown(last)} on {_day(last)} is "
+                    f"{rise:.0f} % above its {name} of {_shown(earlier)} ({_day(earlier)}), more "
+                    f"than the {100 * step:.0f} % allowed: investigate the electrode and its "
+                    "connection.",
+                    **{**facts.about(last), "limit": earlier.value * (1 + step)},
+                )
+                break
+
+
+def lapsed_calibration(facts: SiteFacts) -> Iterator[Result]:
+    """Latest readings taken with an instrument whose calibration had lapsed: they prove nothing."""
+    for reading in facts.latest.values():
+        if not calibration_lapsed(facts.records, reading):
+            continue
+        instrument = facts.records.instruments[reading.instrument_id or ""]
+        due = instrument.calibration_due
+        yield facts.result(
+            Severity.FAIL,
+            "calibration",
+            f"{facts.tag(reading.component_id)} {reading.quantity.label} {_shown(reading)} of "
+            f"{_day(reading)} was taken with {instrument.description} {instrument.serial}, whose "
+            f"calibration lapsed on {due.isoformat() if due else '?'}: it proves nothing, "
+            "re-test with a calibrated instrument.",
+            **facts.about(reading),
+        )
+
+
+def doubtful_readings(facts: SiteFacts) -> Iterator[Result]:
+    """Latest readings the inspector marked doubtful: they do not count as a pass."""
+    for reading in facts.latest.values():
+        if reading.unreliable:
+            yield facts.result(
+                Severity.WATCH,
+                "unreliable",
+                f"{facts.tag(reading.component_id)} {reading.quantity.label} {_shown(reading)} "
+                f"of {_day(reading)} is marked doubtful: re-test it at the next visit.",
+                **facts.about(reading),
+            )
+
+
+def strike_counters(facts: SiteFacts) -> Iterator[Result]:
+    """A counter that rose owes a post-strike inspection; one that went back needs explaining."""
+    for item in facts.schedule.due_items:
+        if item.kind is not DueKind.POST_STRIKE:
+            continue
+        late = item.status is DueStatus.OVERDUE
+        when = f"{item.overdue_days} days overdue" if late else f"due by {item.due.isoformat()}"
+        yield facts.result(
+            Severity.OVERDUE if late else Severity.WATCH,
+            "strike-counter",
+            f"{item.reason.split(' + ')[0]}: a post-strike inspection of that down conductor, "
+            f"its joints, electrode and SPDs is {when}.",
+            component_id=item.component_id,
+            component_tag=facts.tag(item.component_id),
+            due=item.due,
+        )
+    last_change: dict[str, CounterRise] = {}
+    for change in counter_changes(facts.records):
+        last_change[change.component_id] = change
+    for change in last_change.values():
+        if change.rose or change.component_id not in facts.components:
+            continue
+        yield facts.result(
+            Severity.WATCH,
+            "strike-counter",
+            f"{facts.tag(change.component_id)} went back from {change.before} to "
+            f"{change.after} on {change.found_on.isoformat()}: record whether the counter "
+            "was reset or replaced.",
+            component_id=change.component_id,
+            component_tag=facts.tag(change.component_id),
+            value=float(change.after),
+            unit=Quantity.STRIKE_COUNT.unit,
+        )
+
+
+def missing_tests(facts: SiteFacts) -> Iterator[Result]:
+    """A complete inspection lacking an electrode's isolated reading or a conductor's continuity.
+
+    Judged: the latest counted complete inspection, and any unfinished draft of one.
+    """
+    complete = sorted(
+        (i for i in facts.records.inspections if i.kind in COMPLETE_KINDS), key=lambda i: i.date
+    )
+    done = [i for i in complete if counts_as_done(i)]
+    drafts = [i for i in complete if i.state is InspectionState.DRAFT and not i.finished]
+    judged = [(i, False) for i in done[-1:]] + [(i, True) for i in drafts]
+    for inspection, draft in judged:
+        missing = _missing(facts, inspection)
+        if not missing:
+            continue
+        what = "; ".join(f"{label} for {', '.join(tags)}" for label, tags in missing.items())
+        state, action = ("draft ", "before signing") if draft else ("", "at a return visit")
+        yield facts.result(
+            Severity.INCOMPLETE,
+            "incomplete",
+            f"The {state}complete inspection of {inspection.date.isoformat()} has no {what}: "
+            f"take them {action}.",
+        )
+
+
+def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
+    """The tags of components a complete inspection should have tested and did not."""
+    taken = {
+        (r.component_id, r.quantity)
+        for r in facts.records.readings
+        if r.inspection_id == inspection.id
+    }
+    present = [c for c in facts.records.components if in_service(c, inspection.date)]
+    children: dict[str, list[Component]] = {}
+    for component in present:
+        children.setdefault(component.parent_id or "", []).append(component)
+
+    def measured(component: Component, quantity: Quantity) -> bool:
+        near = [component, *children.get(component.id, [])]
+        return any((c.id, quantity) in taken for c in near)
+
+    earth, continuity = [], []
+    for component in sorted(present, key=lambda c: c.tag):
+        if component.kind is ComponentKind.TEST_JOINT:
+            electrodes = [
+                c for c in children.get(component.id, []) if c.kind is ComponentKind.EARTH_ELECTRODE
+            ]
+            for target in electrodes or [component]:
+                if not (
+                    measured(target, Quantity.EARTH_ISOLATED)
+                    or (component.id, Quantity.EARTH_ISOLATED) in taken
+                ):
+                    earth.append(target.tag)
+        elif component.kind is ComponentKind.DOWN_CONDUCTOR and not measured(
+            component, Quantity.CONTINUITY
+        ):
+            continuity.append(component.tag)
+    missing = {}
+    if earth:
+        missing["isolated earth reading"] = earth
+    if continuity:
+        missing["continuity reading"] = continuity
+    return missing
+
+
+def open_defects(facts: SiteFacts) -> Iterator[Result]:
+    """Defects and items needing attention not yet put right, with how long they have been open."""
+    found_on = {i.id: i.date for i in facts.records.inspections}
+    for finding in facts.records.findings:
+        if finding.grade is Grade.SOUND or finding.resolved_by is not None:
+            continue
+        since = found_on.get(finding.inspection_id)
+        if since is None:
+            continue
+        days = (facts.today - since).days
+        late = finding.due_by is not None and finding.due_by < facts.today
+        due = f"; the remedy was due by {finding.due_by.isoformat()}" if finding.due_by else ""
+        action = finding.remedial_action.strip().rstrip(".") or "put it right"
+        yield facts.result(
+            Severity.FAIL if late else Severity.WATCH,
+            "carried-defect",
+            f"{facts.tag(finding.component_id)}: {finding.grade.value.replace('_', ' ')} "
+            f'"{finding.text.strip()}" open since {since.isoformat()} ({days} days){due}: '
+            f"{action} and record the repair.",
+            component_id=finding.component_id,
+            component_tag=facts.tag(finding.component_id) if finding.component_id else None,
+            due=finding.due_by,
+        )
+
+
+def schedule_items(facts: SiteFacts) -> Iterator[Result]:
+    """Routine and alteration inspections that are due soon, due today or overdue."""
+    severity = {
+        DueStatus.OVERDUE: Severity.OVERDUE,
+        DueStatus.DUE: Severity.WATCH,
+        DueStatus.DUE_SOON: Severity.WATCH,
+    }
+    for item in facts.schedule.due_items:
+        if item.kind is DueKind.POST_STRIKE or item.status not in severity:
+            continue
+        name = (
+            "inspection after alteration"
+            if item.kind is DueKind.ALTERATION
+            else (f"{item.kind.value} inspection")
+        )
+        when = {
+            DueStatus.OVERDUE: f"{item.overdue_days} days overdue",
+            DueStatus.DUE: "due today",
+            DueStatus.DUE_SOON: f"due by {item.due.isoformat()}",
+        }[item.status]
+        yield facts.result(
+            severity[item.status],
+            "schedule",
+            f"The {name} is {when} ({item.reason} [{facts.schedule.interval_basis}]): "
+            "book the visit.",
+            due=item.due,
+        )
+
+
+def drifting_electrodes(facts: SiteFacts) -> Iterator[Result]:
+    """Electrodes forecast to pass their limit before the next complete inspection: act now."""
+    for trend in facts.trends:
+        if not trend.before_next_complete:
+            continue
+        latest = facts.latest.get((trend.component_id, Quantity.EARTH_ISOLATED))
+        if latest is None or (
+            latest.value is not None and trend.limit and latest.value > trend.limit
+        ):
+            continue
+        yield facts.result(
+            Severity.WATCH,
+            "trend",
+            f"{trend.component_tag} electrode is rising {trend.note}: plan remedial work "
+            "before then.",
+            component_id=trend.component_id,
+            component_tag=trend.component_tag,
+            value=trend.slope_ohm_per_year,
+            limit=trend.limit,
+            unit="Ω/year",
+            due=trend.crossing,
+        )
+
+
+#: Every rule, in the order their results are gathered (output is sorted afterwards).
+RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
+    reading_limits,
+    electrode_rises,
+    lapsed_calibration,
+    doubtful_readings,
+    strike_counters,
+    missing_tests,
+    open_defects,
+    schedule_items,
+    drifting_electrodes,
+)

@@ -1,0 +1,247 @@
+"""The validator's rules, each on a small site built for it, through `check_site`."""
+
+from __future__ import annotations
+
+from datetime import date
+
+import pytest
+
+from inspectkit.engine.check import check_all, check_site, worst_first
+from inspectkit.model import ComponentKind, Grade, InspectionKind, Quantity, Severity
+from inspectkit.profiles import ProfileError, load_profile
+from tests.engine_factories import SiteBuilder
+
+IEC = load_profile("iec-62305-3")
+BS = load_profile("bs-6651-practice")
+TODAY = date(2026, 6, 1)
+
+
+def _by_rule(site, rule, profile=IEC, today=TODAY):
+    return [r for r in check_site(site.records(), profile, today).results if r.rule == rule]
+
+
+def _one_electrode(*values, start=2024):
+    site = SiteBuilder("II")
+    joint, electrode = site.joint_with_electrode(1)
+    visits = []
+    for offset, value in enumerate(values):
+        visit = site.visit(date(start + offset, 3, 1))
+        site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value)
+        visits.append(visit)
+    return site, electrode, visits
+
+
+def test_reading_above_the_limit_fails_with_an_actionable_sentence():
+    site, electrode, _ = _one_electrode(14.2)
+    (result,) = _by_rule(site, "limit")
+    assert result.severity is Severity.FAIL
+    assert result.component_tag == "E-01"
+    assert result.value == 14.2 and result.limit == 10.0 and result.unit == "Ω"
+    # IEC 62305-3 clause 5.4 (as quoted): 10 Ω recommended; our profile applies it per electrode.
+    assert "14.2 Ω" in result.message and "10 Ω limit" in result.message
+    assert "re-test" in result.message
+
+
+def test_only_the_latest_reading_decides():
+    site, _, _ = _one_electrode(14.2, 6.0)
+    assert _by_rule(site, "limit") == []
+
+
+def test_over_range_fails_a_lower_limit_and_is_inconclusive_above_it():
+    site, electrode, visits = _one_electrode(5.0)
+    later = site.visit(date(2026, 3, 1))
+    site.reading(later, electrode, Quantity.EARTH_ISOLATED, 2000.0, over_range=True)
+    (result,) = _by_rule(site, "limit")
+    assert result.severity is Severity.FAIL and "> 2 kΩ" in result.message
+    low = site.visit(date(2026, 4, 1))
+    site.reading(low, electrode, Quantity.EARTH_ISOLATED, 2.0, over_range=True)
+    (result,) = _by_rule(site, "limit")
+    assert result.severity is Severity.WATCH and "higher range" in result.message
+
+
+def test_per_electrode_limit_scales_with_the_number_of_electrodes():
+    # BS 6651 practice (published in the old standard): each electrode ≤ 10 Ω × electrodes.
+    site = SiteBuilder("II", profile="bs-6651-practice")
+    electrodes = [site.joint_with_electrode(n)[1] for n in (1, 2, 3)]
+    visit = site.visit(date(2026, 3, 1))
+    for electrode, value in zip(electrodes, [25.0, 29.0, 31.0], strict=True):
+        site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value)
+    (result,) = _by_rule(site, "limit", BS)
+    assert result.component_tag == "E-03" and result.limit == 30.0
+
+
+def test_continuity_and_bonding_limits():
+    site = SiteBuilder("II")
+    down = site.component(ComponentKind.DOWN_CONDUCTOR, "DC-01")
+    bond = site.component(ComponentKind.BONDING, "B-01")
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, down, Quantity.CONTINUITY, 0.35)
+    site.reading(visit, bond, Quantity.BONDING, 0.4)
+    (result,) = _by_rule(site, "limit")
+    assert result.component_tag == "DC-01" and result.limit == 0.2  # from memory (profile)
+
+
+@pytest.mark.parametrize(
+    ("values", "against"),
+    [((4.0, 5.0, 6.5), "baseline"), ((4.0, 3.0, 4.6), "previous reading")],
+)
+def test_rise_on_baseline_or_previous_is_watch(values, against):
+    site, _, _ = _one_electrode(*values, start=2023)
+    (result,) = _by_rule(site, "rise")
+    assert result.severity is Severity.WATCH
+    assert against in result.message and "50 %" in result.message  # rise_fraction: our default
+
+
+def test_small_rise_is_no_result():
+    site, _, _ = _one_electrode(4.0, 5.0, 5.9, start=2023)
+    assert _by_rule(site, "rise") == []
+
+
+def test_lapsed_instrument_reading_fails_and_does_not_pass():
+    site, electrode, _ = _one_electrode(4.0)
+    lapsed = site.instrument(calibration_due=date(2025, 12, 31))
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, electrode, Quantity.EARTH_ISOLATED, 3.0, instrument_id=lapsed.id)
+    (result,) = _by_rule(site, "calibration")
+    assert result.severity is Severity.FAIL
+    assert "lapsed on 2025-12-31" in result.message and "proves nothing" in result.message
+    # On its due date the calibration still holds.
+    ok_site, ok_electrode, _ = _one_electrode(4.0)
+    due = ok_site.instrument(calibration_due=date(2026, 3, 1))
+    ok_site.reading(
+        ok_site.visit(date(2026, 3, 1)),
+        ok_electrode,
+        Quantity.EARTH_ISOLATED,
+        3.0,
+        instrument_id=due.id,
+    )
+    assert _by_rule(ok_site, "calibration") == []
+
+
+def test_doubtful_latest_reading_is_watch():
+    site, electrode, _ = _one_electrode(4.0)
+    site.reading(
+        site.visit(date(2026, 3, 1)), electrode, Quantity.EARTH_ISOLATED, 3.0, unreliable=True
+    )
+    (result,) = _by_rule(site, "unreliable")
+    assert result.severity is Severity.WATCH
+
+
+def _counter(*values, kinds=None):
+    site = SiteBuilder("II")
+    down = site.component(ComponentKind.DOWN_CONDUCTOR, "DC-01")
+    counter = site.component(ComponentKind.STRIKE_COUNTER, "SC-01", down)
+    for n, value in enumerate(values):
+        kind = (kinds or {}).get(n, InspectionKind.VISUAL)
+        site.reading(
+            site.visit(date(2026, 1 + 2 * n, 10), kind), counter, Quantity.STRIKE_COUNT, value
+        )
+    return site
+
+
+def test_counter_rise_owes_a_post_strike_inspection():
+    site = _counter(2, 3)
+    (soon,) = _by_rule(site, "strike-counter", today=date(2026, 3, 20))
+    assert soon.severity is Severity.WATCH and soon.due == date(2026, 4, 9)
+    assert "SC-01 rose from 2 to 3" in soon.message
+    (late,) = _by_rule(site, "strike-counter", today=date(2026, 5, 1))
+    assert late.severity is Severity.OVERDUE and "22 days overdue" in late.message
+
+
+def test_counter_going_back_is_watch():
+    site = _counter(7, 0)
+    (result,) = _by_rule(site, "strike-counter")
+    assert result.severity is Severity.WATCH and "reset or replaced" in result.message
+
+
+def test_incomplete_complete_inspection_lists_what_is_missing():
+    site = SiteBuilder("II")
+    pairs = [site.joint_with_electrode(n) for n in (1, 2, 3)]
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, pairs[0][1], Quantity.EARTH_ISOLATED, 4.0)
+    site.reading(visit, pairs[1][0], Quantity.EARTH_ISOLATED, 4.0)  # on the joint: accepted
+    down_1 = next(c for c in site.components if c.tag == "DC-01")
+    site.reading(visit, down_1, Quantity.CONTINUITY, 0.05)
+    (result,) = _by_rule(site, "incomplete")
+    assert result.severity is Severity.INCOMPLETE
+    assert "isolated earth reading for E-03" in result.message
+    assert "continuity reading for DC-02, DC-03" in result.message
+
+
+def test_draft_complete_inspection_is_judged_too():
+    site = SiteBuilder("II")
+    site.joint_with_electrode(1, down=False)
+    site.visit(date(2026, 3, 1), signed=False)
+    (result,) = _by_rule(site, "incomplete")
+    assert "draft" in result.message and "before signing" in result.message
+
+
+def test_retired_components_are_not_required():
+    site = SiteBuilder("II")
+    joint, electrode = site.joint_with_electrode(1, down=False)
+    site.component(ComponentKind.TEST_JOINT, "TJ-09", retired_on=date(2025, 1, 1))
+    site.reading(site.visit(date(2026, 3, 1)), electrode, Quantity.EARTH_ISOLATED, 4.0)
+    assert _by_rule(site, "incomplete") == []
+
+
+def test_open_defects_are_carried_forward_with_their_age():
+    site = SiteBuilder("II")
+    down = site.component(ComponentKind.DOWN_CONDUCTOR, "DC-01")
+    first = site.visit(date(2025, 6, 1), InspectionKind.VISUAL)
+    site.finding(first, down, Grade.DEFECT, "fixing missing", due_by=date(2025, 9, 1))
+    site.finding(first, None, Grade.NEEDS_ATTENTION, "label faded")
+    site.finding(first, down, Grade.SOUND, "")
+    fixed = site.finding(first, down, Grade.DEFECT, "clamp loose")
+    later = site.visit(date(2025, 10, 1), InspectionKind.VISUAL)
+    site.findings[-1] = fixed.model_copy(update={"resolved_by": later.id})
+    results = _by_rule(site, "carried-defect")
+    assert [r.severity for r in results] == [Severity.FAIL, Severity.WATCH]
+    assert "open since 2025-06-01 (365 days)" in results[0].message
+    assert results[1].component_tag is None
+
+
+def test_resolution_after_today_is_not_yet_known():
+    site = SiteBuilder("II")
+    first = site.visit(date(2025, 6, 1), InspectionKind.VISUAL)
+    finding = site.finding(first, None, Grade.DEFECT, "bond broken")
+    later = site.visit(date(2026, 9, 1), InspectionKind.VISUAL)
+    site.findings[-1] = finding.model_copy(update={"resolved_by": later.id})
+    assert len(_by_rule(site, "carried-defect")) == 1
+    assert _by_rule(site, "carried-defect", today=date(2026, 10, 1)) == []
+
+
+def test_overdue_site_and_drifting_electrode_through_check_site():
+    site = SiteBuilder("III")
+    _, electrode = site.joint_with_electrode(1)
+    for n, value in enumerate([6.0, 6.8, 7.6, 8.4]):
+        visit = site.visit(date(2020 + n, 5, 1))
+        site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value)
+        site.reading(visit, site.components[0], Quantity.CONTINUITY, 0.05)
+    check = check_site(site.records(), IEC, TODAY)
+    assert check.worst is Severity.OVERDUE and check.needs_action
+    (schedule,) = [r for r in check.results if r.rule == "schedule"]
+    assert "visual inspection is" in schedule.message and "days overdue" in schedule.message
+    (trend,) = [r for r in check.results if r.rule == "trend"]
+    assert trend.severity is Severity.WATCH and trend.due is not None
+    assert check.results[0].severity is Severity.OVERDUE
+    assert check.summary.startswith("1 overdue, 1 watch; next: visual inspection")
+
+
+def test_clean_site_is_ok():
+    site, _, _ = _one_electrode(4.0, start=2026)
+    site.components = [c for c in site.components if c.kind is not ComponentKind.DOWN_CONDUCTOR]
+    check = check_site(site.records(), IEC, date(2026, 3, 2))
+    assert check.results == () and check.worst is Severity.OK
+    assert check.summary.startswith("all clear")
+
+
+def test_check_all_refuses_an_unknown_profile_and_orders_worst_first():
+    bad = SiteBuilder("II", profile="no-such")
+    with pytest.raises(ProfileError, match="no-such"):
+        list(check_all([bad.records()], {"iec-62305-3": IEC}, TODAY))
+    clean, _, _ = _one_electrode(4.0, start=2026)
+    failing, _, _ = _one_electrode(40.0, start=2026)
+    checks = worst_first(
+        check_all([clean.records(), failing.records()], {"iec-62305-3": IEC}, date(2026, 3, 2))
+    )
+    assert checks[0].worst is Severity.FAIL
