@@ -256,6 +256,18 @@ class Store:
             entries = audit.make_entries(audit.last_hash(self.db), changes, at=at, who=self.user)
             self.db["audit"].insert_all(entries, batch_size=1000)
 
+    def log_conflicts(
+        self, conflicts: Sequence[tuple[str, str, dict[str, Any], dict[str, Any]]]
+    ) -> None:
+        """Keep both versions of records edited on two databases, as `conflict` audit rows.
+
+        Each item is (table, row id, losing row, kept row); the kept row must be the
+        one the table now holds, so the audit check still matches the record.
+        """
+        changes = [(t, row_id, "conflict", lost, kept) for t, row_id, lost, kept in conflicts]
+        with self.transaction():
+            self._log(changes, utcnow().isoformat())
+
     def delete(self, model: type[Record], record_id: str) -> None:
         """Remove a record made by mistake; signed records and their parts stay."""
         with self.transaction():

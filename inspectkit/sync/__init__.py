@@ -1,0 +1,1 @@
+"""Records that travel: bundles between databases, instrument CSV import, exports."""

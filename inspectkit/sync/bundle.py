@@ -1,0 +1,388 @@
+"""The bundle file: one site's records and photos in a zip, written and read back safely.
+
+Layout (format `inspectkit-bundle`, version 1):
+
+- `manifest.json`: format name and version, the exporting database's id, the
+  site, when it was exported and from which day (`since`), record counts, and the
+  sha256 of every other member.
+- `records.json`: `{"tables": {table: [row, ...]}, "history": {table: {id: [sha256,
+  ...]}}}`; rows are in the stored form (`store.rows.to_row`), history lists the
+  earlier versions of a record the exporting database has seen (see `versions`).
+- `photos/<sha256>`: photo files, named by their content hash.
+
+Reading a bundle checks all of it (members, hashes, every record through its
+model) before anything is written anywhere.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import os
+import re
+import shutil
+import tempfile
+import zipfile
+import zlib
+from dataclasses import dataclass, field
+from datetime import date
+from pathlib import Path
+from typing import Any
+
+from pydantic import ValidationError
+
+from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
+from inspectkit.store import Store
+from inspectkit.store.photos import photo_path
+from inspectkit.store.rows import STORED, to_row
+from inspectkit.sync.guard import (
+    DEFAULT_LIMITS,
+    MANIFEST,
+    PHOTO_PREFIX,
+    RECORDS,
+    BundleError,
+    Limits,
+    check_members,
+    limit_for,
+    read_capped,
+)
+from inspectkit.sync.versions import known_versions, version_hash
+
+FORMAT = "inspectkit-bundle"
+VERSION = 1
+#: Setting naming this database in the bundles it writes.
+DATABASE_ID_SETTING = "sync.database_id"
+_SHA = re.compile(r"^[0-9a-f]{64}$")
+
+#: Fields that name another record, by table: field → table it points into.
+REFERENCES: dict[str, dict[str, str]] = {
+    "component": {"site_id": "site", "parent_id": "component"},
+    "inspection": {"site_id": "site", "inspector_id": "inspector", "amends_id": "inspection"},
+    "reading": {
+        "inspection_id": "inspection",
+        "component_id": "component",
+        "instrument_id": "instrument",
+    },
+    "finding": {
+        "inspection_id": "inspection",
+        "component_id": "component",
+        "resolved_by": "inspection",
+    },
+    "photo": {"inspection_id": "inspection", "component_id": "component"},
+}
+
+_IN_SITE = "inspection_id IN (SELECT id FROM inspection WHERE site_id = :site)"
+#: How each table's rows of one site are chosen.
+_SITE_WHERE = {
+    "site": "id = :site",
+    "component": "site_id = :site",
+    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE})",
+    "inspector": "id IN (SELECT inspector_id FROM inspection WHERE site_id = :site)",
+    "inspection": "site_id = :site",
+    "reading": _IN_SITE,
+    "finding": _IN_SITE,
+    "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
+}
+
+
+@dataclass(frozen=True)
+class ExportSummary:
+    """What a bundle holds, for the command to print."""
+
+    path: Path
+    counts: dict[str, int]
+    photos: int
+
+
+@dataclass
+class Bundle:
+    """A bundle read and checked in full.
+
+    Attributes:
+        manifest: The manifest as written.
+        rows: Stored-form rows by table, in `RECORD_TYPES` order.
+        history: Earlier version hashes by table and record id.
+        photos: Photo hashes in the bundle → the checked file staged on disk, or
+            None when reading without staging (dry run).
+    """
+
+    manifest: dict[str, Any]
+    rows: dict[str, list[dict[str, Any]]]
+    history: dict[str, dict[str, set[str]]]
+    photos: dict[str, Path | None] = field(default_factory=dict)
+
+
+def database_id(store: Store) -> str:
+    """This database's id in the bundles it writes; made on first export."""
+    value = store.get_setting(DATABASE_ID_SETTING)
+    if value is None:
+        value = new_id()
+        store.set_setting(DATABASE_ID_SETTING, value)
+    return value
+
+
+def site_rows(
+    store: Store, site_id: str, since: date | None = None
+) -> dict[str, list[dict[str, Any]]]:
+    """A site's rows by table, as stored; with `since`, only those changed from that day on.
+
+    The site's own row is always included, so a bundle always names its site.
+    """
+    rows: dict[str, list[dict[str, Any]]] = {}
+    for model in RECORD_TYPES:
+        where = f"({_SITE_WHERE[model.table]})"
+        params: dict[str, Any] = {"site": site_id}
+        if since is not None and model.table != "site":
+            where += " AND updated_at >= :since"
+            params["since"] = since.isoformat()
+        cursor = store.db.execute(
+            f"SELECT * FROM [{model.table}] WHERE {where} ORDER BY created_at, id", params
+        )
+        names = [d[0] for d in cursor.description]
+        rows[model.table] = [dict(zip(names, values, strict=True)) for values in cursor]
+    return rows
+
+
+def export_bundle(
+    store: Store, site_id: str, target: Path, *, since: date | None = None
+) -> ExportSummary:
+    """Write one site's records and photos to a bundle file.
+
+    Photo files are copied as stored, not hashed again: they are named by their
+    hash, and the importing side checks every one.
+
+    Raises:
+        BundleError: the site does not exist, or a photo's file is missing on disk.
+    """
+    rows = site_rows(store, site_id, since)
+    if not rows["site"]:
+        raise BundleError(f"no site with id {site_id}")
+    history: dict[str, dict[str, list[str]]] = {}
+    for table, table_rows in rows.items():
+        known = known_versions(store, table, [r["id"] for r in table_rows])
+        earlier = {
+            r["id"]: sorted(known.get(r["id"], set()) - {version_hash(r)}) for r in table_rows
+        }
+        history[table] = {row_id: hashes for row_id, hashes in earlier.items() if hashes}
+    shas = sorted({r["sha256"] for r in rows["photo"]})
+    missing = [sha for sha in shas if not photo_path(store, sha).is_file()]
+    if missing:
+        raise BundleError(
+            f"{len(missing)} photo file(s) missing on disk (first {missing[0]}); "
+            "run `inspectkit doctor` to see how to restore them"
+        )
+    records = json.dumps(
+        {"tables": rows, "history": history}, ensure_ascii=False, separators=(",", ":")
+    ).encode("utf-8")
+    members = {RECORDS: hashlib.sha256(records).hexdigest()}
+    members.update({f"{PHOTO_PREFIX}{sha}": sha for sha in shas})
+    manifest = {
+        "format": FORMAT,
+        "version": VERSION,
+        "origin": database_id(store),
+        "site_id": site_id,
+        "site_name": rows["site"][0]["name"],
+        "exported_at": utcnow().isoformat(),
+        "since": since.isoformat() if since else None,
+        "counts": {table: len(r) for table, r in rows.items()} | {"photos": len(shas)},
+        "members": members,
+    }
+    target = Path(target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    handle, temp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.")
+    os.close(handle)
+    try:
+        with zipfile.ZipFile(temp, "w") as archive:
+            archive.writestr(
+                MANIFEST, json.dumps(manifest, indent=2, ensure_ascii=False), zipfile.ZIP_DEFLATED
+            )
+            archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED)
+            for sha in shas:
+                archive.write(photo_path(store, sha), f"{PHOTO_PREFIX}{sha}", zipfile.ZIP_STORED)
+        os.replace(temp, target)
+    except BaseException:
+        Path(temp).unlink(missing_ok=True)
+        raise
+    return ExportSummary(target, {t: len(r) for t, r in rows.items()}, len(shas))
+
+
+def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | None = None) -> Bundle:
+    """Open a bundle and check all of it; photos are copied to `staging` as they are checked.
+
+    Raises:
+        BundleError: the file is not a bundle, is damaged, hostile or of an unknown
+            version, or a record does not validate.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise BundleError(f"{path}: no such file; give the path of a bundle")
+    try:
+        with zipfile.ZipFile(path) as archive:
+            infos = check_members(archive, limits)
+            manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
+            records = _read(archive, RECORDS, limits)
+            _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
+            rows, history = _records(records, manifest)
+            photos = {
+                info.filename.removeprefix(PHOTO_PREFIX): _photo(
+                    archive, info, manifest, limits, staging
+                )
+                for info in infos
+                if info.filename.startswith(PHOTO_PREFIX)
+            }
+    except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
+        raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
+    return Bundle(manifest, rows, history, photos)
+
+
+def _read(archive: zipfile.ZipFile, name: str, limits: Limits) -> bytes:
+    with archive.open(name) as handle:
+        return b"".join(read_capped(handle, name, limit_for(name, limits)))
+
+
+def _photo(
+    archive: zipfile.ZipFile,
+    info: zipfile.ZipInfo,
+    manifest: dict[str, Any],
+    limits: Limits,
+    staging: Path | None,
+) -> Path | None:
+    """Hash a photo member while copying it to `staging`; refuse it if the hash is wrong."""
+    name = info.filename
+    sha = name.removeprefix(PHOTO_PREFIX)
+    digest = hashlib.sha256()
+    target = staging / sha if staging is not None else None
+    with archive.open(info) as source, open(target or os.devnull, "wb") as out:
+        for block in read_capped(source, name, limit_for(name, limits)):
+            digest.update(block)
+            out.write(block)
+    if digest.hexdigest() != sha:
+        raise BundleError(
+            f"photo {sha} does not match its hash (content hashes to {digest.hexdigest()}); "
+            "the bundle was damaged or altered, export it again"
+        )
+    _same_hash(name, sha, manifest)
+    return target
+
+
+def _same_hash(name: str, sha: str, manifest: dict[str, Any]) -> None:
+    if manifest["members"].get(name) != sha:
+        raise BundleError(
+            f"member {name!r} does not match the hash in the manifest; "
+            "the bundle was damaged or altered, export it again"
+        )
+
+
+def _json(data: bytes, name: str) -> Any:
+    try:
+        return json.loads(data.decode("utf-8"))
+    except UnicodeDecodeError as exc:
+        raise BundleError(f"{name} is not UTF-8 text ({exc.reason} at byte {exc.start})") from exc
+    except json.JSONDecodeError as exc:
+        raise BundleError(
+            f"{name} is not valid JSON (line {exc.lineno}, column {exc.colno}: {exc.msg})"
+        ) from exc
+    except RecursionError:
+        raise BundleError(f"{name} is nested too deeply to be a bundle's JSON") from None
+
+
+def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
+    manifest = _json(data, MANIFEST)
+    if not isinstance(manifest, dict) or manifest.get("format") != FORMAT:
+        raise BundleError(f"{MANIFEST} does not name the format {FORMAT!r}; not a bundle")
+    version = manifest.get("version")
+    if version != VERSION:
+        raise BundleError(
+            f"bundle format version {version!r} is unknown; this inspectkit reads version "
+            f"{VERSION}: upgrade inspectkit on this machine, or export with the same version"
+        )
+    members = manifest.get("members")
+    if not isinstance(members, dict) or not all(
+        isinstance(k, str) and isinstance(v, str) and _SHA.match(v) for k, v in members.items()
+    ):
+        raise BundleError(f"{MANIFEST}: 'members' must map each member to its sha256")
+    listed, present = set(members), names - {MANIFEST}
+    if listed != present:
+        odd = sorted(listed ^ present)[0]
+        where = "listed in the manifest but missing" if odd in listed else "not in the manifest"
+        raise BundleError(f"member {odd!r} is {where}; the bundle is damaged or altered")
+    if not isinstance(manifest.get("counts", {}), dict):
+        raise BundleError(f"{MANIFEST}: 'counts' must map each table to a number")
+    return manifest
+
+
+def _records(
+    data: bytes, manifest: dict[str, Any]
+) -> tuple[dict[str, list[dict[str, Any]]], dict[str, dict[str, set[str]]]]:
+    """Every row checked through its model and found in the stored form."""
+    content = _json(data, RECORDS)
+    tables = content.get("tables") if isinstance(content, dict) else None
+    raw_history = content.get("history", {}) if isinstance(content, dict) else None
+    if not isinstance(tables, dict) or not isinstance(raw_history, dict):
+        raise BundleError(f"{RECORDS} must hold 'tables' and 'history' objects")
+    unknown = sorted(set(tables) - set(MODEL_FOR_TABLE))
+    if unknown:
+        raise BundleError(f"{RECORDS}: unknown table {unknown[0]!r}; the bundle is not for this")
+    rows: dict[str, list[dict[str, Any]]] = {}
+    for model in RECORD_TYPES:
+        table_rows = tables.get(model.table, [])
+        if not isinstance(table_rows, list):
+            raise BundleError(f"{RECORDS}: table {model.table!r} must be a list of records")
+        seen: set[str] = set()
+        for number, row in enumerate(table_rows, start=1):
+            _check_row(model, number, row)
+            if row["id"] in seen:
+                raise BundleError(f"{model.table} {row['id']} appears twice in the bundle")
+            seen.add(row["id"])
+        counted = manifest.get("counts", {}).get(model.table, len(table_rows))
+        if counted != len(table_rows):
+            raise BundleError(
+                f"the manifest counts {counted!r} {model.table} records, the bundle holds "
+                f"{len(table_rows)}; the bundle is damaged"
+            )
+        rows[model.table] = table_rows
+    history: dict[str, dict[str, set[str]]] = {}
+    for table, by_id in raw_history.items():
+        if table not in MODEL_FOR_TABLE or not isinstance(by_id, dict):
+            raise BundleError(f"{RECORDS}: history for unknown table {table!r}")
+        for row_id, hashes in by_id.items():
+            if not isinstance(hashes, list) or not all(
+                isinstance(h, str) and _SHA.match(h) for h in hashes
+            ):
+                raise BundleError(f"{RECORDS}: history of {table} {row_id} must list sha256s")
+        history[table] = {row_id: set(hashes) for row_id, hashes in by_id.items()}
+    return rows, history
+
+
+def _check_row(model: type[Record], number: int, row: Any) -> None:
+    """A bundle row must validate and be exactly the row the store would hold.
+
+    Records are checked with every rule but the clock: they were entered on another
+    laptop, whose clock may run ahead of this one.
+    """
+    where = f"{model.table} record {number}"
+    if not isinstance(row, dict):
+        raise BundleError(f"{RECORDS}: {where} is not an object")
+    where += f" (id {row.get('id')!r})"
+    try:
+        record = model.model_validate(row, context=STORED)
+    except ValidationError as exc:
+        raise BundleError(f"{RECORDS}: {where} is refused:\n{explain(exc)}") from None
+    if to_row(record) != row:
+        raise BundleError(
+            f"{RECORDS}: {where} is not in the stored form (extra, missing or reworded "
+            "fields); export it again with inspectkit"
+        )
+
+
+def place_photos(store: Store, photos: dict[str, Path | None]) -> int:
+    """Move checked, staged photos into the photo folder; return how many were new."""
+    added = 0
+    for sha, staged in photos.items():
+        target = photo_path(store, sha)
+        if staged is None or target.exists():
+            continue
+        target.parent.mkdir(parents=True, exist_ok=True)
+        shutil.move(staged, target)
+        added += 1
+    return added

@@ -1,0 +1,129 @@
+"""Checks that keep a hostile or broken bundle from touching anything.
+
+A bundle comes from another laptop, by mail or a memory stick: it is read as
+untrusted input. Every member is checked by its zip header before a byte of it is
+read (name, type, size, compression ratio), and read with a cap afterwards, since
+headers can lie.
+"""
+
+from __future__ import annotations
+
+import re
+import stat
+import zipfile
+from collections.abc import Iterator
+from dataclasses import dataclass
+from typing import IO
+
+MANIFEST = "manifest.json"
+RECORDS = "records.json"
+PHOTO_PREFIX = "photos/"
+_PHOTO_NAME = re.compile(r"^photos/[0-9a-f]{64}$")
+_BLOCK = 1 << 20
+
+
+class BundleError(Exception):
+    """The bundle is refused; the message says what is wrong with it and what to do."""
+
+
+@dataclass(frozen=True)
+class Limits:
+    """How big a bundle may be; beyond these it is taken for a zip bomb (our defaults).
+
+    Attributes:
+        member_bytes: Most a photo may hold uncompressed (phone photos are 2–15 MB).
+        records_bytes: Most `records.json` may hold uncompressed.
+        total_bytes: Most the whole bundle may unpack to.
+        ratio: Highest uncompressed/compressed ratio for a member over `ratio_floor`
+            bytes; record JSON packs about 5–15 to 1, photos about 1 to 1.
+        ratio_floor: Members smaller than this are not checked for ratio.
+    """
+
+    member_bytes: int = 64 << 20
+    records_bytes: int = 512 << 20
+    total_bytes: int = 16 << 30
+    ratio: float = 200.0
+    ratio_floor: int = 1 << 20
+
+
+DEFAULT_LIMITS = Limits()
+
+
+def check_members(archive: zipfile.ZipFile, limits: Limits) -> list[zipfile.ZipInfo]:
+    """Refuse the bundle unless every member is one it may hold, of a size it may have.
+
+    Raises:
+        BundleError: a path escapes the bundle, is absolute, is a link or folder, a
+            name repeats, a member is encrypted, too large or packed too tightly.
+    """
+    infos = archive.infolist()
+    seen: set[str] = set()
+    total = 0
+    for info in infos:
+        name = info.filename
+        _check_name(name)
+        if name in seen:
+            raise BundleError(f"member {name!r} appears twice; the bundle is damaged")
+        seen.add(name)
+        mode = info.external_attr >> 16
+        if stat.S_ISLNK(mode):
+            raise BundleError(f"member {name!r} is a link; a bundle holds plain files only")
+        if info.is_dir() or stat.S_IFMT(mode) not in (0, stat.S_IFREG):
+            raise BundleError(f"member {name!r} is not a plain file; a bundle holds files only")
+        if info.flag_bits & 0x1:
+            raise BundleError(f"member {name!r} is encrypted; export the bundle again unencrypted")
+        if info.compress_type not in (zipfile.ZIP_STORED, zipfile.ZIP_DEFLATED):
+            raise BundleError(f"member {name!r} uses an unsupported compression")
+        cap = limit_for(name, limits)
+        if info.file_size > cap:
+            raise BundleError(
+                f"member {name!r} unpacks to {info.file_size:,} bytes, more than the "
+                f"{cap:,} allowed; the bundle is refused as a possible zip bomb"
+            )
+        if info.file_size > limits.ratio_floor and info.file_size > limits.ratio * max(
+            info.compress_size, 1
+        ):
+            raise BundleError(
+                f"member {name!r} is packed {info.file_size / max(info.compress_size, 1):,.0f} "
+                f"to 1 (at most {limits.ratio:g} allowed); refused as a possible zip bomb"
+            )
+        total += info.file_size
+        if total > limits.total_bytes:
+            raise BundleError(
+                f"the bundle unpacks to more than {limits.total_bytes:,} bytes; refused as a "
+                "possible zip bomb, export fewer records (--since) instead"
+            )
+    for required in (MANIFEST, RECORDS):
+        if required not in seen:
+            raise BundleError(f"no {required} in the bundle; it is not an inspectkit bundle")
+    return infos
+
+
+def _check_name(name: str) -> None:
+    if name.startswith(("/", "\\")) or re.match(r"^[A-Za-z]:", name):
+        raise BundleError(f"member {name!r} has an absolute path; refused")
+    parts = re.split(r"[\\/]", name)
+    if ".." in parts:
+        raise BundleError(f"member {name!r} leads out of the bundle's folder ('..'); refused")
+    if name not in (MANIFEST, RECORDS) and not _PHOTO_NAME.match(name):
+        raise BundleError(
+            f"member {name!r} is not one a bundle holds (manifest.json, records.json, "
+            "photos/<sha256>); refused"
+        )
+
+
+def limit_for(name: str, limits: Limits) -> int:
+    """The most bytes a member of that name may unpack to."""
+    return limits.member_bytes if name.startswith(PHOTO_PREFIX) else limits.records_bytes
+
+
+def read_capped(handle: IO[bytes], name: str, cap: int) -> Iterator[bytes]:
+    """The member's bytes in blocks, stopping with an error past `cap` whatever the header said."""
+    seen = 0
+    while block := handle.read(_BLOCK):
+        seen += len(block)
+        if seen > cap:
+            raise BundleError(
+                f"member {name!r} unpacks to more than the {cap:,} bytes allowed; refused"
+            )
+        yield block

@@ -1,0 +1,336 @@
+"""Merging a bundle into a database: who wins when two laptops changed the same record.
+
+The rules, per record of the bundle (theirs) against the database (ours):
+
+- not here yet: added;
+- the same: nothing;
+- ours is a version they have seen: theirs is later, ours is updated;
+- theirs is a version we have seen: ours is later, kept;
+- neither: both were edited since they last met, a conflict. A signed inspection
+  beats a draft; otherwise `prefer` decides, and without it the newer
+  `updated_at` wins. Both versions go to the audit log, so the losing one is
+  never lost, and the conflict is reported once (the next exchange sees that
+  both sides know both versions).
+
+A signed inspection and what was recorded in it are never overwritten: the store
+refuses, and the record is reported as kept ours.
+
+Everything is checked before anything is written, and the write is one transaction.
+"""
+
+from __future__ import annotations
+
+import tempfile
+from collections import Counter
+from dataclasses import dataclass, field
+from datetime import datetime
+from pathlib import Path
+from typing import Any, Literal
+
+from inspectkit.model import MODEL_FOR_TABLE, Record
+from inspectkit.store import FrozenRecordError, Store
+from inspectkit.store.photos import photo_path
+from inspectkit.store.rows import STORED, canonical
+from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, read_bundle
+from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
+from inspectkit.sync.versions import known_versions, version_hash
+
+Side = Literal["ours", "theirs"]
+#: A row to write: table, stored-form row, and "added" or "updated".
+_Write = tuple[str, dict[str, Any], str]
+_CHUNK = 500
+#: Fields that point at a record of the same table; parents are written first.
+_SELF_REFERENCES = {"component": "parent_id", "inspection": "amends_id"}
+
+
+@dataclass(frozen=True)
+class Conflict:
+    """A record edited on both sides since the two databases last exchanged it."""
+
+    table: str
+    record_id: str
+    label: str
+    kept: Side
+    ours_updated_at: str
+    theirs_updated_at: str
+
+
+@dataclass
+class ImportReport:
+    """What an import did (or, in a dry run, would do)."""
+
+    site_name: str
+    dry_run: bool = False
+    added: Counter[str] = field(default_factory=Counter)
+    updated: Counter[str] = field(default_factory=Counter)
+    unchanged: int = 0
+    #: Records whose copy here is later than the bundle's.
+    kept_newer: int = 0
+    kept_signed: list[str] = field(default_factory=list)
+    conflicts: list[Conflict] = field(default_factory=list)
+    photos_added: int = 0
+
+    @property
+    def changed(self) -> bool:
+        return bool(self.added or self.updated or self.conflicts or self.photos_added)
+
+    def lines(self) -> list[str]:
+        """The report as sentences, one per line."""
+        verb = "would be" if self.dry_run else "were"
+        lines = [f"Bundle for site {self.site_name}:"]
+        for what, counts in (("added", self.added), ("updated", self.updated)):
+            if counts:
+                parts = ", ".join(f"{n} {table}" for table, n in sorted(counts.items()))
+                lines.append(f"  {sum(counts.values())} records {verb} {what} ({parts})")
+        lines.append(f"  {self.unchanged} records already the same")
+        if self.kept_newer:
+            lines.append(f"  {self.kept_newer} records kept ours: ours is the later version")
+        if self.photos_added:
+            lines.append(f"  {self.photos_added} photo files {verb} added")
+        lines.extend(f"  kept ours: signed — {message}" for message in self.kept_signed)
+        for c in self.conflicts:
+            lines.append(
+                f"  conflict: {c.table} {c.label} was edited on both sides "
+                f"(ours {c.ours_updated_at}, theirs {c.theirs_updated_at}); kept {c.kept}, "
+                "the other version is in the audit log"
+            )
+        return lines
+
+
+@dataclass
+class _Plan:
+    """What the merge will do: rows to write (with why), conflicts, and what it leaves."""
+
+    writes: list[_Write] = field(default_factory=list)
+    conflicts: list[tuple[Conflict, dict[str, Any], dict[str, Any]]] = field(default_factory=list)
+    unchanged: int = 0
+    kept_newer: int = 0
+
+
+class _DryRun(Exception):
+    """Raised inside the transaction to roll a dry run back."""
+
+
+def import_bundle(
+    store: Store,
+    path: Path,
+    *,
+    prefer: Side | None = None,
+    dry_run: bool = False,
+    limits: Limits = DEFAULT_LIMITS,
+) -> ImportReport:
+    """Merge a bundle into the database, all or nothing.
+
+    Args:
+        store: The database to merge into (a file database when the bundle has photos).
+        path: The bundle file.
+        prefer: Which side wins a conflict; None: the newer.
+        dry_run: Check and report, write nothing.
+        limits: Size limits against zip bombs.
+
+    Raises:
+        BundleError: the bundle is refused; nothing was written.
+    """
+    staging_root = store.path.parent if store.path is not None else None
+    with tempfile.TemporaryDirectory(dir=staging_root, prefix=".bundle-") as staging:
+        bundle = read_bundle(path, limits, None if dry_run else Path(staging))
+        plan = _plan(store, bundle, prefer)
+        report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
+        report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
+        if dry_run:
+            report.photos_added = sum(
+                1 for sha in bundle.photos if not photo_path(store, sha).exists()
+            )
+        else:
+            report.photos_added = place_photos(store, bundle.photos)
+        try:
+            with store.transaction():
+                _apply(store, plan, report)
+                if dry_run:
+                    raise _DryRun
+        except _DryRun:
+            pass
+    return report
+
+
+def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
+    """Decide every record, after checking that all it references is here or in the bundle."""
+    _check_references(store, bundle)
+    _check_photo_files(store, bundle)
+    plan = _Plan()
+    for table, rows in bundle.rows.items():
+        ours_by_id = _stored_rows(store, table, [r["id"] for r in rows])
+        differing = []
+        for theirs in rows:
+            ours = ours_by_id.get(theirs["id"])
+            if ours is None:
+                plan.writes.append((table, theirs, "added"))
+            elif canonical(ours) == canonical(theirs):
+                plan.unchanged += 1
+            elif version_hash(ours) in bundle.history.get(table, {}).get(theirs["id"], set()):
+                plan.writes.append((table, theirs, "updated"))
+            else:
+                differing.append((ours, theirs))
+        seen = known_versions(store, table, [theirs["id"] for _, theirs in differing])
+        for ours, theirs in differing:
+            if version_hash(theirs) in seen.get(theirs["id"], set()):
+                plan.kept_newer += 1
+                continue
+            kept = _winner(table, ours, theirs, prefer)
+            conflict = Conflict(
+                table,
+                theirs["id"],
+                _label(table, ours),
+                kept,
+                ours["updated_at"],
+                theirs["updated_at"],
+            )
+            plan.conflicts.append((conflict, ours, theirs))
+            if kept == "theirs":
+                plan.writes.append((table, theirs, "updated"))
+    return plan
+
+
+def _winner(table: str, ours: dict[str, Any], theirs: dict[str, Any], prefer: Side | None) -> Side:
+    """A signed inspection beats a draft; then `prefer`; then the newer; a tie by content.
+
+    The tie-break by content makes both databases pick the same version when each
+    imports the other's bundle.
+    """
+    if table == "inspection" and ours["state"] != theirs["state"]:
+        return "ours" if ours["state"] == "signed" else "theirs"
+    if prefer is not None:
+        return prefer
+    ours_at = datetime.fromisoformat(ours["updated_at"])
+    theirs_at = datetime.fromisoformat(theirs["updated_at"])
+    if ours_at != theirs_at:
+        return "theirs" if theirs_at > ours_at else "ours"
+    return "theirs" if (canonical(theirs) or "") > (canonical(ours) or "") else "ours"
+
+
+def _label(table: str, row: dict[str, Any]) -> str:
+    """How a person recognises the record in a report line."""
+    for key in ("name", "tag", "date"):
+        if row.get(key):
+            return f"{row[key]} ({row['id']})"
+    return row["id"]
+
+
+def _stored_rows(store: Store, table: str, ids: list[str]) -> dict[str, dict[str, Any]]:
+    found: dict[str, dict[str, Any]] = {}
+    for start in range(0, len(ids), _CHUNK):
+        chunk = ids[start : start + _CHUNK]
+        marks = ",".join("?" * len(chunk))
+        cursor = store.db.execute(f"SELECT * FROM [{table}] WHERE id IN ({marks})", chunk)
+        names = [d[0] for d in cursor.description]
+        for values in cursor:
+            row = dict(zip(names, values, strict=True))
+            found[row["id"]] = row
+    return found
+
+
+def _present_ids(store: Store, table: str, ids: set[str]) -> set[str]:
+    wanted = sorted(ids)
+    present: set[str] = set()
+    for start in range(0, len(wanted), _CHUNK):
+        chunk = wanted[start : start + _CHUNK]
+        marks = ",".join("?" * len(chunk))
+        present.update(
+            row[0]
+            for row in store.db.execute(f"SELECT id FROM [{table}] WHERE id IN ({marks})", chunk)
+        )
+    return present
+
+
+def _check_references(store: Store, bundle: Bundle) -> None:
+    """Refuse a bundle whose records point at records neither it nor the database holds."""
+    in_bundle = {table: {r["id"] for r in rows} for table, rows in bundle.rows.items()}
+    wanted: dict[str, dict[str, tuple[str, str, str]]] = {}
+    for table, fields in REFERENCES.items():
+        for row in bundle.rows.get(table, []):
+            for name, target in fields.items():
+                ref = row.get(name)
+                if ref and ref not in in_bundle[target]:
+                    wanted.setdefault(target, {}).setdefault(ref, (table, row["id"], name))
+    for target, refs in wanted.items():
+        missing = sorted(set(refs) - _present_ids(store, target, set(refs)))
+        if missing:
+            table, row_id, name = refs[missing[0]]
+            raise BundleError(
+                f"{table} {row_id} refers to {target} {missing[0]} ({name}), which is neither "
+                f"in the bundle nor in this database ({len(missing)} such reference(s)); "
+                "import the bundle it came with first, or export without --since"
+            )
+
+
+def _check_photo_files(store: Store, bundle: Bundle) -> None:
+    for row in bundle.rows.get("photo", []):
+        sha = row["sha256"]
+        if sha not in bundle.photos and not photo_path(store, sha).is_file():
+            raise BundleError(
+                f"photo {row['id']} needs the file {sha}, which is neither in the bundle nor "
+                f"in {store.photos_dir}; export the bundle again with its photos"
+            )
+
+
+def _ordered(writes: list[_Write]) -> list[_Write]:
+    """Tables in reference order; within a table, a parent before the records naming it."""
+    order = {table: n for n, table in enumerate(MODEL_FOR_TABLE)}
+    by_table: dict[str, list[_Write]] = {}
+    for item in writes:
+        by_table.setdefault(item[0], []).append(item)
+    result: list[_Write] = []
+    for table in sorted(by_table, key=order.__getitem__):
+        ref = _SELF_REFERENCES.get(table)
+        result.extend(_parents_first(by_table[table], ref) if ref else by_table[table])
+    return result
+
+
+def _parents_first(items: list[_Write], ref: str) -> list[_Write]:
+    """Rows of one table ordered so that the row `ref` names comes first (loops left as met)."""
+    pending = {item[1]["id"]: item for item in items}
+    result: list[_Write] = []
+    done: set[str] = set()
+    for item in items:
+        chain = []
+        row_id: str | None = item[1]["id"]
+        while row_id in pending and row_id not in done and row_id not in chain:
+            chain.append(row_id)
+            row_id = pending[row_id][1].get(ref)
+        for row_id in reversed(chain):
+            done.add(row_id)
+            result.append(pending[row_id])
+    return result
+
+
+def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
+    """Write the plan; records the store refuses as frozen are kept ours, one by one."""
+    writes = _ordered(plan.writes)
+    records = [_record(table, row) for table, row, _ in writes]
+    refused: set[str] = set()
+    try:
+        with store.transaction():
+            store.save_all(records, touch=False)
+    except FrozenRecordError:
+        for record in records:
+            try:
+                with store.transaction():
+                    store.save_all([record], touch=False)
+            except FrozenRecordError as exc:
+                refused.add(record.id)
+                report.kept_signed.append(str(exc))
+    for table, row, what in writes:
+        if row["id"] not in refused:
+            (report.added if what == "added" else report.updated)[table] += 1
+    logged = []
+    for conflict, ours, theirs in plan.conflicts:
+        if conflict.kept == "theirs" and conflict.record_id in refused:
+            conflict = Conflict(**{**conflict.__dict__, "kept": "ours"})
+        lost, kept = (ours, theirs) if conflict.kept == "theirs" else (theirs, ours)
+        logged.append((conflict.table, conflict.record_id, lost, kept))
+        report.conflicts.append(conflict)
+    store.log_conflicts(logged)
+
+
+def _record(table: str, row: dict[str, Any]) -> Record:
+    return MODEL_FOR_TABLE[table].model_validate(row, context=STORED)
