@@ -1,0 +1,773 @@
+"""The walkdown without a screen: the walking order, and each entry saved the moment it is made.
+
+The walkdown screen calls these functions and nothing else, so a command or a
+test does exactly what the screen does. Each function saves at once in its own
+transaction: what an inspector was told is saved survives a crash or a flat
+battery on the roof.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from datetime import date, datetime, timedelta
+from pathlib import Path
+from typing import Any
+
+from pydantic import ValidationError
+
+from inspectkit.engine import rules
+from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
+from inspectkit.engine.results import Result
+from inspectkit.engine.schedule import schedule_site
+from inspectkit.model import (
+    WALKING_ORDER,
+    Component,
+    ComponentKind,
+    Finding,
+    Grade,
+    Inspection,
+    InspectionKind,
+    InspectionState,
+    Instrument,
+    JointState,
+    Method,
+    Photo,
+    Quantity,
+    Reading,
+    Severity,
+    Site,
+    SiteRecords,
+    SoilCondition,
+    explain,
+    utcnow,
+)
+from inspectkit.profiles import Profile, ProfileError, load_profile
+from inspectkit.store import FrozenRecordError, Store, StoreError
+from inspectkit.store.photos import attach_photo, file_sha256, read_exif
+from inspectkit.units import UnitError, format_value, parse
+
+#: What can be measured on each kind of component during a walkdown, in entry order.
+#: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
+#: are judged by eye only.
+QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
+    ComponentKind.AIR_TERMINAL: (),
+    ComponentKind.AIR_CONDUCTOR: (Quantity.CONTINUITY,),
+    ComponentKind.DOWN_CONDUCTOR: (Quantity.CONTINUITY,),
+    ComponentKind.TEST_JOINT: (
+        Quantity.EARTH_ISOLATED,
+        Quantity.EARTH_COMBINED,
+        Quantity.SOIL_RESISTIVITY,
+    ),
+    ComponentKind.EARTH_ELECTRODE: (
+        Quantity.EARTH_ISOLATED,
+        Quantity.EARTH_COMBINED,
+        Quantity.SOIL_RESISTIVITY,
+    ),
+    ComponentKind.BONDING: (Quantity.BONDING,),
+    ComponentKind.SPD: (),
+    ComponentKind.STRIKE_COUNTER: (Quantity.STRIKE_COUNT,),
+}
+
+#: The method assumed when none is chosen: the one most instruments in the trade use.
+DEFAULT_METHOD: dict[Quantity, Method] = {
+    Quantity.EARTH_ISOLATED: Method.FALL_OF_POTENTIAL_3P,
+    Quantity.EARTH_COMBINED: Method.FALL_OF_POTENTIAL_3P,
+    Quantity.CONTINUITY: Method.LOW_OHM_4W,
+    Quantity.BONDING: Method.LOW_OHM_4W,
+    Quantity.SOIL_RESISTIVITY: Method.WENNER,
+    Quantity.STRIKE_COUNT: Method.COUNTER_READ,
+}
+
+#: The joint state an earth reading implies: isolated means the joint was opened.
+JOINT_FOR: dict[Quantity, JointState] = {
+    Quantity.EARTH_ISOLATED: JointState.OPEN,
+    Quantity.EARTH_COMBINED: JointState.CLOSED,
+}
+
+#: Kinds walked under their parent (a down conductor's test joint, a joint's electrode).
+_NESTED_KINDS = frozenset({ComponentKind.TEST_JOINT, ComponentKind.EARTH_ELECTRODE})
+
+#: A photo belongs to the reading taken closest to it, if that is this close (our default).
+PHOTO_MATCH_WINDOW = timedelta(minutes=10)
+
+_PHOTO_SUFFIXES = frozenset({".jpg", ".jpeg", ".png", ".tif", ".tiff", ".heic", ".webp"})
+
+
+class WalkdownError(ValueError):
+    """An entry that cannot be saved; `field` names the field, the message says what to type.
+
+    Attributes:
+        field: The entry field at fault (`value`, `method`, `text`, `due_by`, …).
+    """
+
+    def __init__(self, field: str, message: str) -> None:
+        super().__init__(message)
+        self.field = field
+
+
+# ------------------------------------------------------------------ walking order
+
+
+@dataclass(frozen=True)
+class Stop:
+    """One component on the walk, with how deep it sits under its down conductor.
+
+    Attributes:
+        component: The component to inspect here.
+        depth: 0 for a component walked in its own right, 1 for a down conductor's
+            test joint, 2 for that joint's electrode.
+        quantities: What can be measured on it, in entry order.
+    """
+
+    component: Component
+    depth: int
+    quantities: tuple[Quantity, ...]
+
+
+def _tag_key(tag: str) -> tuple[Any, ...]:
+    """`TJ-2` before `TJ-10`: numbers inside tags compare as numbers."""
+    return tuple(int(p) if p.isdigit() else p for p in re.split(r"(\d+)", tag))
+
+
+def walking_order(components: Iterable[Component], on: date | None = None) -> list[Stop]:
+    """The components still in service, in the order an inspector walks them.
+
+    Roof first (air terminals, then the mesh), then each down conductor followed by
+    its test joints and each joint's electrodes, then anything of those kinds with no
+    parent on the walk, then bonding, SPDs and strike counters; by tag within a kind.
+
+    Args:
+        components: The site's components; retired ones are left out.
+        on: Leave out components retired on or before this day (default: any retired).
+    """
+    live = [c for c in components if c.retired_on is None or (on is not None and c.retired_on > on)]
+    by_id = {c.id: c for c in live}
+    children: dict[str, list[Component]] = {}
+    roots = []
+    for component in live:
+        if component.kind in _NESTED_KINDS and component.parent_id in by_id:
+            children.setdefault(component.parent_id, []).append(component)
+        else:
+            roots.append(component)
+
+    def order(c: Component) -> tuple[Any, ...]:
+        return (WALKING_ORDER.index(c.kind), _tag_key(c.tag))
+
+    stops: list[Stop] = []
+    seen: set[str] = set()
+
+    def visit(component: Component, depth: int) -> None:
+        if component.id in seen:  # a parent loop in bad data must not hang the walk
+            return
+        seen.add(component.id)
+        stops.append(Stop(component, depth, QUANTITIES_FOR[component.kind]))
+        for child in sorted(children.get(component.id, []), key=order):
+            visit(child, depth + 1)
+
+    for root in sorted(roots, key=order):
+        visit(root, 0)
+    return stops
+
+
+def walk_for(store: Store, inspection_id: str) -> list[Stop]:
+    """The walking order of the site an inspection belongs to, as of the visit's day."""
+    inspection = _inspection(store, inspection_id)
+    components = store.select(Component, "site_id = ?", [inspection.site_id])
+    return walking_order(components, on=inspection.date)
+
+
+# ----------------------------------------------------------------- the inspection
+
+
+def start_inspection(
+    store: Store,
+    site_id: str,
+    kind: InspectionKind | str,
+    inspector_id: str | None,
+    today: date,
+) -> Inspection:
+    """The site's open draft, or a new draft visit dated `today`.
+
+    An open draft is one not yet signed nor marked finished: a walkdown left half
+    done is continued, never started twice.
+
+    Raises:
+        WalkdownError: no such site, or the kind or date is not valid.
+    """
+    if store.get(Site, site_id) is None:
+        raise WalkdownError("site", f"no site with id {site_id}; pick a site from the list")
+    drafts = store.select(
+        Inspection,
+        "site_id = ? AND state = ? AND finished = 0",
+        [site_id, InspectionState.DRAFT.value],
+        order_by="date DESC, created_at DESC",
+    )
+    if drafts:
+        return drafts[0]
+    inspection = _validated(
+        Inspection,
+        {"site_id": site_id, "kind": kind, "date": today, "inspector_id": inspector_id},
+    )
+    return store.save(inspection)
+
+
+def _inspection(store: Store, inspection_id: str) -> Inspection:
+    inspection = store.get(Inspection, inspection_id)
+    if inspection is None:
+        raise WalkdownError("inspection", f"no inspection with id {inspection_id}")
+    return inspection
+
+
+def _open_inspection(store: Store, inspection_id: str) -> Inspection:
+    inspection = _inspection(store, inspection_id)
+    if inspection.state is InspectionState.SIGNED:
+        raise WalkdownError(
+            "inspection",
+            f"the inspection of {inspection.date.isoformat()} is signed; "
+            "start an amendment to change it",
+        )
+    return inspection
+
+
+def _component(store: Store, inspection: Inspection, component_id: str) -> Component:
+    component = store.get(Component, component_id)
+    if component is None or component.site_id != inspection.site_id:
+        raise WalkdownError("component", f"no component {component_id} on this site")
+    return component
+
+
+def _validated(model: type[Any], data: dict[str, Any], now: date | datetime | None = None) -> Any:
+    """A record checked by its model; a refusal names the field and what to type."""
+    try:
+        return model.model_validate(data, context={"now": now} if now is not None else None)
+    except ValidationError as exc:
+        first = exc.errors()[0]
+        loc = first["loc"][0] if first["loc"] else "record"
+        raise WalkdownError(str(loc), explain(exc)) from None
+
+
+def _save(store: Store, record: Any) -> Any:
+    try:
+        return store.save(record)
+    except FrozenRecordError as exc:
+        raise WalkdownError("inspection", str(exc)) from None
+
+
+# ---------------------------------------------------------------------- readings
+
+
+@dataclass(frozen=True)
+class ReadingOutcome:
+    """A saved reading and what it means, in words the screen shows beside the field.
+
+    Attributes:
+        reading: The reading as saved.
+        severity: The worst the engine's rules found for it (`ok` when none applies).
+        verdict: `PASS 3.9 Ω ≤ 10 Ω`, `FAIL 14 Ω > 10 Ω`, or the value alone when no
+            limit applies (soil resistivity, counters).
+        limit: The profile's acceptance limit, in the quantity's unit, or None.
+        messages: The engine's sentences about this reading, worst first.
+        previous: The same component's last reading of this quantity from an earlier
+            visit, or None.
+        comparison: `+12 % on 2025-06-03` against `previous`, or "" when there is none.
+    """
+
+    reading: Reading
+    severity: Severity
+    verdict: str
+    limit: float | None
+    messages: tuple[str, ...] = ()
+    previous: Reading | None = None
+    comparison: str = ""
+
+    @property
+    def passed(self) -> bool | None:
+        """True or False against a limit; None where the profile sets no limit."""
+        if self.limit is None:
+            return None
+        return self.severity is not Severity.FAIL
+
+
+def record_reading(
+    store: Store,
+    inspection_id: str,
+    component_id: str,
+    quantity: Quantity | str,
+    text: str,
+    method: Method | str | None = None,
+    instrument_id: str | None = None,
+    joint_state: JointState | str | None = None,
+    soil: SoilCondition | str | None = None,
+    note: str = "",
+    *,
+    taken_at: datetime | None = None,
+    profile: Profile | None = None,
+) -> ReadingOutcome:
+    """Save what the inspector typed for one quantity of one component, and judge it.
+
+    Typing again for the same component and quantity in the same visit corrects the
+    reading rather than adding a second one. Nothing is saved unless the whole entry
+    is valid.
+
+    Args:
+        text: What the instrument showed, as typed (`3.9`, `180 mΩ`, `OL`).
+        method: How it was measured; the usual method for the quantity when None.
+        joint_state: Open or closed; taken from the quantity for earth readings.
+        taken_at: When it was read (default: now).
+        profile: The site's rule set, if the caller holds it already.
+
+    Raises:
+        WalkdownError: the text, method, state or note is not valid, or the
+            inspection is signed; `field` says which.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    component = _component(store, inspection, component_id)
+    quantity = _validated_enum(Quantity, quantity, "quantity")
+    if quantity not in QUANTITIES_FOR[component.kind]:
+        allowed = ", ".join(q.label for q in QUANTITIES_FOR[component.kind]) or "none"
+        raise WalkdownError(
+            "quantity",
+            f"a {quantity.label} is not measured on a {component.kind.label}; "
+            f"readings here: {allowed}",
+        )
+    try:
+        measured = parse(text, quantity)
+    except UnitError as exc:
+        raise WalkdownError("value", str(exc)) from None
+    now = utcnow()
+    existing = store.select(
+        Reading,
+        "inspection_id = ? AND component_id = ? AND quantity = ?",
+        [inspection_id, component_id, quantity.value],
+    )
+    data: dict[str, Any] = {
+        "inspection_id": inspection_id,
+        "component_id": component_id,
+        "quantity": quantity,
+        "value": measured.value,
+        "over_range": measured.over_range,
+        "method": method or DEFAULT_METHOD[quantity],
+        "joint_state": joint_state or JOINT_FOR.get(quantity),
+        "instrument_id": instrument_id or None,
+        "taken_at": taken_at or now,
+        "soil": soil or None,
+        "note": note,
+    }
+    if existing:
+        data["id"] = existing[0].id
+        data["created_at"] = existing[0].created_at
+    reading = _save(store, _validated(Reading, data, now=now))
+    return judge_reading(store, inspection, component, reading, profile)
+
+
+def _validated_enum(enum: type[Any], value: Any, name: str) -> Any:
+    try:
+        return enum(value)
+    except ValueError:
+        allowed = ", ".join(m.value for m in enum)
+        raise WalkdownError(name, f"{value!r} is not a {name}; use one of: {allowed}") from None
+
+
+def site_profile(store: Store, site: Site) -> Profile:
+    """The rule set a site is held to.
+
+    Raises:
+        WalkdownError: the site names a profile that cannot be loaded.
+    """
+    try:
+        return load_profile(site.profile)
+    except ProfileError as exc:
+        raise WalkdownError("profile", str(exc)) from None
+
+
+#: The engine's rules that speak about a single reading; the others judge the whole site.
+READING_RULES = (
+    rules.reading_limits,
+    rules.electrode_rises,
+    rules.lapsed_calibration,
+    rules.doubtful_readings,
+    rules.strike_counters,
+)
+
+
+def judge_reading(
+    store: Store,
+    inspection: Inspection,
+    component: Component,
+    reading: Reading,
+    profile: Profile | None = None,
+) -> ReadingOutcome:
+    """Pass or fail against the site's profile, through the engine's rules, and the last visit."""
+    site = store.get(Site, inspection.site_id)
+    assert site is not None  # an inspection's site cannot be deleted under it
+    profile = profile or site_profile(store, site)
+    records = _records_for(store, site, reading)
+    today = max(inspection.date, reading.taken_at.date())
+    schedule = schedule_site(records, profile, today)
+    facts = rules.facts_for(records, profile, today, schedule, [])
+    found = sorted(
+        (
+            r
+            for rule in READING_RULES
+            for r in rule(facts)
+            if r.component_id == component.id and r.reading_id in (None, reading.id)
+        ),
+        key=Result.sort_key,
+    )
+    severity = found[0].severity if found else Severity.OK
+    limit = (
+        profile.limit_for(reading.quantity, electrode_count(records, today))
+        if reading.quantity in rules.LIMIT_ACTIONS
+        else None
+    )
+    previous = _previous(records, inspection, reading)
+    return ReadingOutcome(
+        reading=reading,
+        severity=severity,
+        verdict=_verdict(reading, limit, severity),
+        limit=limit,
+        messages=tuple(r.message for r in found),
+        previous=previous,
+        comparison=_comparison(reading, previous, records),
+    )
+
+
+def _records_for(store: Store, site: Site, reading: Reading) -> SiteRecords:
+    """What the rules need to judge one reading: the site, its parts and that one series."""
+    inspections = store.select(Inspection, "site_id = ?", [site.id], order_by="date, created_at")
+    ids = [i.id for i in inspections]
+    readings = store.select(
+        Reading,
+        f"component_id = ? AND quantity = ? AND inspection_id IN ({','.join('?' * len(ids))})",
+        [reading.component_id, reading.quantity.value, *ids],
+        order_by="taken_at",
+    )
+    instrument_ids = sorted({r.instrument_id for r in readings if r.instrument_id})
+    instruments = {
+        i.id: i for i in (store.get(Instrument, iid) for iid in instrument_ids) if i is not None
+    }
+    return SiteRecords(
+        site=site,
+        components=store.select(Component, "site_id = ?", [site.id]),
+        inspections=inspections,
+        readings=readings,
+        instruments=instruments,
+    )
+
+
+def _previous(records: SiteRecords, inspection: Inspection, reading: Reading) -> Reading | None:
+    """The last reading of the same series from an earlier visit."""
+    dates = {i.id: i.date for i in records.inspections}
+    earlier = [
+        r
+        for r in records.readings
+        if r.inspection_id != inspection.id
+        and dates.get(r.inspection_id, inspection.date) <= inspection.date
+        and r.id != reading.id
+    ]
+    return max(earlier, key=lambda r: (dates[r.inspection_id], r.taken_at), default=None)
+
+
+def _verdict(reading: Reading, limit: float | None, severity: Severity) -> str:
+    """`PASS 3.9 Ω ≤ 10 Ω`: the verdict word first, so it reads without its colour."""
+    shown = format_value(reading.value, reading.quantity, reading.over_range)
+    if limit is None:
+        return shown if severity is Severity.OK else f"{_WORD[severity]} {shown}"
+    bound = format_value(limit, reading.quantity)
+    word = _WORD[severity]
+    if reading.value is not None and reading.value <= limit:
+        if reading.over_range:
+            return f"{word} {shown}, limit {bound}"
+        return f"{word} {shown} ≤ {bound}"
+    return f"{word} {shown} > {bound}"
+
+
+_WORD = {
+    Severity.OK: "PASS",
+    Severity.WATCH: "WATCH",
+    Severity.INCOMPLETE: "INCOMPLETE",
+    Severity.FAIL: "FAIL",
+    Severity.OVERDUE: "OVERDUE",
+}
+
+
+def _comparison(reading: Reading, previous: Reading | None, records: SiteRecords) -> str:
+    """`+12 % on 2025-06-03` (counts: `+3 on …`); over-range on either side is said in words."""
+    if previous is None:
+        return ""
+    day = next(
+        (i.date for i in records.inspections if i.id == previous.inspection_id),
+        previous.taken_at.date(),
+    ).isoformat()
+    if previous.over_range or previous.value is None:
+        was = format_value(previous.value, previous.quantity, previous.over_range)
+        return f"was {was} on {day}"
+    if reading.over_range or reading.value is None:
+        return f"was {format_value(previous.value, previous.quantity)} on {day}"
+    if reading.quantity is Quantity.STRIKE_COUNT:
+        return f"{reading.value - previous.value:+g} on {day}"
+    if previous.value == 0:
+        return f"was {format_value(previous.value, previous.quantity)} on {day}"
+    change = (reading.value - previous.value) / previous.value * 100
+    return f"{change:+.0f} % on {day}"
+
+
+# ---------------------------------------------------------------------- findings
+
+
+def grade_component(
+    store: Store,
+    inspection_id: str,
+    component_id: str,
+    grade: Grade | str,
+    text: str = "",
+    remedial_action: str = "",
+    due_by: date | str | None = None,
+    category: str = "",
+) -> Finding:
+    """Record how a component was found; grading it again in the same visit corrects it.
+
+    Raises:
+        WalkdownError: not-sound without words, a bad due date, or a signed inspection.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    _component(store, inspection, component_id)
+    existing = store.select(
+        Finding, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
+    )
+    data: dict[str, Any] = {
+        "inspection_id": inspection_id,
+        "component_id": component_id,
+        "grade": grade,
+        "text": text.strip(),
+        "remedial_action": remedial_action.strip(),
+        "due_by": due_by or None,
+        "category": category.strip(),
+    }
+    if existing:
+        data["id"] = existing[0].id
+        data["created_at"] = existing[0].created_at
+    return _save(store, _validated(Finding, data))
+
+
+# ------------------------------------------------------------------------ photos
+
+
+@dataclass(frozen=True)
+class PhotoMatch:
+    """A photo attached from a folder, with the component its time matched.
+
+    Attributes:
+        photo: The photo as saved.
+        component_id: The component of the nearest reading in time, or None when no
+            reading was taken within the match window (the photo is then kept on the
+            inspection alone).
+    """
+
+    photo: Photo
+    component_id: str | None
+
+
+def attach_photo_file(
+    store: Store,
+    inspection_id: str,
+    path: Path | str,
+    component_id: str | None = None,
+    caption: str = "",
+) -> Photo:
+    """Attach one photo file to the inspection (and to a component).
+
+    Raises:
+        WalkdownError: no such file, not an image, or the inspection is signed.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    if component_id is not None:
+        _component(store, inspection, component_id)
+    try:
+        return attach_photo(
+            store,
+            Path(path).expanduser(),
+            inspection_id=inspection_id,
+            component_id=component_id,
+            caption=caption,
+        )
+    except FrozenRecordError as exc:
+        raise WalkdownError("inspection", str(exc)) from None
+    except StoreError as exc:
+        raise WalkdownError("photo", str(exc)) from None
+
+
+def attach_photo_folder(
+    store: Store,
+    inspection_id: str,
+    folder: Path | str,
+    *,
+    window: timedelta = PHOTO_MATCH_WINDOW,
+    clock_offset: timedelta = timedelta(0),
+) -> list[PhotoMatch]:
+    """Attach the photos in a folder not yet on this inspection, each to a component by time.
+
+    A photo goes to the component whose reading was taken nearest its EXIF time,
+    when that is within `window`. Photos already attached (same content) are skipped,
+    so a camera card can be read again after more photos were taken.
+
+    Args:
+        clock_offset: Added to the camera's times first, for a camera clock that is
+            off (or set to local time) against the laptop's.
+
+    Raises:
+        WalkdownError: the folder does not exist, or the inspection is signed.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    folder = Path(folder).expanduser()
+    if not folder.is_dir():
+        raise WalkdownError("folder", f"{folder}: no such folder; give the folder of new photos")
+    known = {p.sha256 for p in store.select(Photo, "inspection_id = ?", [inspection_id])}
+    readings = store.select(Reading, "inspection_id = ?", [inspection_id])
+    matches = []
+    for path in sorted(folder.iterdir()):
+        if path.suffix.lower() not in _PHOTO_SUFFIXES or not path.is_file():
+            continue
+        if file_sha256(path) in known:
+            continue
+        try:
+            taken = read_exif(path)[1]
+        except StoreError:
+            continue
+        component_id = _nearest(readings, taken + clock_offset, window) if taken else None
+        photo = attach_photo_file(store, inspection.id, path, component_id)
+        known.add(photo.sha256)
+        matches.append(PhotoMatch(photo, component_id))
+    return matches
+
+
+def _nearest(readings: Sequence[Reading], when: datetime, window: timedelta) -> str | None:
+    best = min(readings, key=lambda r: abs(r.taken_at - when), default=None)
+    if best is None or abs(best.taken_at - when) > window:
+        return None
+    return best.component_id
+
+
+# -------------------------------------------------------------------- completion
+
+
+@dataclass(frozen=True)
+class Missing:
+    """One thing a complete walkdown still lacks.
+
+    Attributes:
+        component: The component concerned, or None for the inspection as a whole.
+        what: One sentence saying what to do.
+    """
+
+    component: Component | None
+    what: str
+
+
+def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
+    """What the visit still lacks before it is complete, in walking order.
+
+    For a complete (or initial) inspection: the readings the engine's
+    completeness rule asks for. For every kind: components not yet graded.
+    """
+    inspection = _inspection(store, inspection_id)
+    site = store.get(Site, inspection.site_id)
+    assert site is not None
+    stops = walking_order(store.select(Component, "site_id = ?", [site.id]), on=inspection.date)
+    items: list[Missing] = []
+    if inspection.kind in COMPLETE_KINDS:
+        # The engine judges unfinished drafts; judge this one as such even if finished.
+        judged = inspection.model_copy(update={"finished": False})
+        records = SiteRecords(
+            site=site,
+            components=[s.component for s in stops],
+            inspections=[judged],
+            readings=store.select(Reading, "inspection_id = ?", [inspection_id]),
+        )
+        profile = site_profile(store, site)
+        facts = rules.facts_for(
+            records, profile, judged.date, schedule_site(records, profile, judged.date), []
+        )
+        items.extend(Missing(None, gap.message) for gap in rules.missing_tests(facts))
+    graded = {f.component_id for f in store.select(Finding, "inspection_id = ?", [inspection_id])}
+    items.extend(
+        Missing(s.component, f"{s.component.tag}: not graded yet")
+        for s in stops
+        if s.component.id not in graded
+    )
+    return items
+
+
+def finish_inspection(store: Store, inspection_id: str) -> list[Missing]:
+    """Mark the visit finished and return what it still lacked, for the record.
+
+    The screen lists `missing_for_completion` and asks before calling this; a
+    finished visit counts towards the schedule and is no longer the open draft.
+
+    Raises:
+        WalkdownError: the inspection is signed already.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    missing = missing_for_completion(store, inspection_id)
+    if not inspection.finished:
+        _save(store, inspection.model_copy(update={"finished": True}))
+    return missing
+
+
+# ------------------------------------------------------------ continuing a draft
+
+
+@dataclass(frozen=True)
+class SavedEntries:
+    """What a visit holds so far, for showing a continued walkdown as it was left.
+
+    Attributes:
+        readings: The judged reading per (component id, quantity).
+        findings: The finding per component id.
+        photos: How many photos per component id (None: on the inspection alone).
+    """
+
+    readings: dict[tuple[str, Quantity], ReadingOutcome]
+    findings: dict[str, Finding]
+    photos: dict[str | None, int]
+
+
+def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
+    """Every reading (judged), finding and photo count recorded in a visit so far."""
+    inspection = _inspection(store, inspection_id)
+    site = store.get(Site, inspection.site_id)
+    assert site is not None
+    profile = site_profile(store, site)
+    components = {c.id: c for c in store.select(Component, "site_id = ?", [site.id])}
+    readings = {}
+    for reading in store.select(Reading, "inspection_id = ?", [inspection_id], "taken_at"):
+        component = components[reading.component_id]
+        readings[(reading.component_id, reading.quantity)] = judge_reading(
+            store, inspection, component, reading, profile
+        )
+    photos: dict[str | None, int] = {}
+    for photo in store.select(Photo, "inspection_id = ?", [inspection_id]):
+        photos[photo.component_id] = photos.get(photo.component_id, 0) + 1
+    return SavedEntries(
+        readings=readings,
+        findings={
+            f.component_id: f
+            for f in store.select(Finding, "inspection_id = ?", [inspection_id])
+            if f.component_id
+        },
+        photos=photos,
+    )
+
+
+def set_soil(store: Store, inspection_id: str, soil: SoilCondition | str | None) -> Inspection:
+    """Record the ground's state for the visit; earth readings rise in dry or frozen ground.
+
+    Raises:
+        WalkdownError: not a soil condition, or the inspection is signed.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    data = inspection.model_dump()
+    data["soil"] = soil or None
+    return _save(store, _validated(Inspection, data, now=inspection.date))

@@ -1,0 +1,276 @@
+"""The walkdown's logic without a screen: order, entries saved at once, verdicts, photos, finish."""
+
+from __future__ import annotations
+
+from datetime import UTC, date, datetime, timedelta
+from pathlib import Path
+
+import pytest
+
+from inspectkit.checklists import load_checklist
+from inspectkit.model import (
+    ComponentKind,
+    Finding,
+    Grade,
+    Inspection,
+    InspectionKind,
+    InspectionState,
+    Photo,
+    Quantity,
+    Reading,
+    Severity,
+)
+from inspectkit.store import Store
+from inspectkit.walkdown import (
+    WalkdownError,
+    attach_photo_file,
+    attach_photo_folder,
+    finish_inspection,
+    grade_component,
+    missing_for_completion,
+    record_reading,
+    saved_entries,
+    set_soil,
+    start_inspection,
+    walk_for,
+)
+from tests.walkdown_factories import EARLIER, WalkSite, build_walk_site, write_photo
+
+TODAY = date(2026, 6, 1)
+
+
+@pytest.fixture
+def site(store: Store) -> WalkSite:
+    return build_walk_site(store)
+
+
+@pytest.fixture
+def visit(store: Store, site: WalkSite) -> Inspection:
+    return start_inspection(store, site.site.id, "complete", site.inspector.id, TODAY)
+
+
+def test_walking_order_goes_roof_then_each_down_conductor_with_its_joint_and_electrode(
+    store: Store, visit: Inspection
+) -> None:
+    stops = walk_for(store, visit.id)
+    assert [s.component.tag for s in stops] == [
+        "AT-01", "AT-02", "RC-01",
+        "DC-01", "TJ-01", "ER-01",
+        "DC-02", "TJ-02", "ER-02",
+        "DC-03", "TJ-03", "ER-03",
+        "BD-01", "SPD-01", "SC-01",
+    ]  # fmt: skip
+    assert [s.depth for s in stops[3:6]] == [0, 1, 2]
+    assert "AT-09" not in {s.component.tag for s in stops}  # retired
+
+
+def test_tags_with_numbers_sort_as_numbers(store: Store) -> None:
+    site = build_walk_site(store, down_conductors=10)
+    visit = start_inspection(store, site.site.id, "visual", None, TODAY)
+    tags = [s.component.tag for s in walk_for(store, visit.id) if s.depth == 0]
+    assert tags.index("DC-02") < tags.index("DC-10")
+
+
+def test_start_continues_the_open_draft(store: Store, site: WalkSite, visit: Inspection) -> None:
+    again = start_inspection(store, site.site.id, "visual", None, TODAY)
+    assert again.id == visit.id
+    assert visit.state is InspectionState.DRAFT and visit.kind is InspectionKind.COMPLETE
+
+
+def test_start_refuses_a_future_date(store: Store, site: WalkSite) -> None:
+    with pytest.raises(WalkdownError) as err:
+        start_inspection(store, site.site.id, "visual", None, date.today() + timedelta(days=5))
+    assert err.value.field == "date"
+
+
+def test_passing_reading_is_saved_and_compared_with_the_last_visit(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    tj = site.tag("TJ-01")
+    outcome = record_reading(store, visit.id, tj.id, Quantity.EARTH_ISOLATED, "4.48 Ω")
+    # IEC 62305-3 clause 5.4 (as quoted): 10 Ω; the iec-62305-3 profile applies it per electrode.
+    assert outcome.limit == 10.0
+    assert outcome.severity is Severity.OK and outcome.passed is True
+    assert outcome.verdict == "PASS 4.48 Ω ≤ 10 Ω"
+    # (4.48 - 4.0) / 4.0 = +12 %, against the 2025-06-03 visit.
+    assert outcome.comparison == f"+12 % on {EARLIER.isoformat()}"
+    saved = store.get(Reading, outcome.reading.id)
+    assert saved is not None and saved.value == pytest.approx(4.48)
+    assert saved.joint_state is not None and saved.joint_state.value == "open"
+
+
+def test_failing_reading_says_fail_with_the_limit(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    outcome = record_reading(store, visit.id, site.tag("TJ-02").id, "earth_isolated", "14")
+    assert outcome.severity is Severity.FAIL and outcome.passed is False
+    assert outcome.verdict == "FAIL 14 Ω > 10 Ω"
+    assert any("above the 10 Ω limit" in m for m in outcome.messages)
+
+
+def test_over_range_fails(store: Store, site: WalkSite, visit: Inspection) -> None:
+    outcome = record_reading(store, visit.id, site.tag("TJ-02").id, "earth_isolated", "OL")
+    assert outcome.severity is Severity.FAIL
+    assert outcome.verdict.startswith("FAIL OL")
+
+
+def test_rise_on_the_baseline_is_watch(store: Store, site: WalkSite, visit: Inspection) -> None:
+    # 6.5 Ω against a 4.0 Ω baseline is +62 %, above the profile's 50 % step (our default).
+    outcome = record_reading(store, visit.id, site.tag("TJ-03").id, "earth_isolated", "6.5")
+    assert outcome.severity is Severity.WATCH
+    assert outcome.verdict == "WATCH 6.5 Ω ≤ 10 Ω"
+    assert outcome.comparison == f"+62 % on {EARLIER.isoformat()}"
+
+
+def test_continuity_in_milliohms(store: Store, site: WalkSite, visit: Inspection) -> None:
+    outcome = record_reading(store, visit.id, site.tag("DC-01").id, "continuity", "180 mΩ")
+    # Continuity limit 0.2 Ω: from memory (DOMAIN.md §3), as set in the iec-62305-3 profile.
+    assert outcome.verdict == "PASS 180 mΩ ≤ 200 mΩ"
+    assert outcome.comparison == f"+80 % on {EARLIER.isoformat()}"
+
+
+def test_counter_rise_shows_the_count_and_asks_for_a_post_strike_visit(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    outcome = record_reading(store, visit.id, site.tag("SC-01").id, "strike_count", "9")
+    assert outcome.limit is None and outcome.passed is None
+    assert outcome.comparison == f"+2 on {EARLIER.isoformat()}"
+    assert outcome.severity is Severity.WATCH
+    assert any("post-strike" in m for m in outcome.messages)
+
+
+def test_typing_again_corrects_the_same_reading(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    tj = site.tag("TJ-01")
+    first = record_reading(store, visit.id, tj.id, "earth_isolated", "40")
+    second = record_reading(store, visit.id, tj.id, "earth_isolated", "4.1")
+    assert first.reading.id == second.reading.id
+    rows = store.select(Reading, "inspection_id = ?", [visit.id])
+    assert [r.value for r in rows] == [pytest.approx(4.1)]
+
+
+@pytest.mark.parametrize(
+    ("tag", "quantity", "text", "field", "words"),
+    [
+        ("TJ-01", "earth_isolated", "four", "value", "earth resistance"),
+        ("TJ-01", "earth_isolated", "3 kV", "value", ""),
+        ("DC-01", "earth_isolated", "3.9", "quantity", "not measured on a down conductor"),
+        ("SPD-01", "continuity", "0.1", "quantity", "readings here: none"),
+    ],
+)
+def test_bad_input_names_the_field_and_saves_nothing(
+    store: Store,
+    site: WalkSite,
+    visit: Inspection,
+    tag: str,
+    quantity: str,
+    text: str,
+    field: str,
+    words: str,
+) -> None:
+    audit_rows = store.db["audit"].count
+    with pytest.raises(WalkdownError) as err:
+        record_reading(store, visit.id, site.tag(tag).id, quantity, text)
+    assert err.value.field == field
+    assert words in str(err.value)
+    assert store.select(Reading, "inspection_id = ?", [visit.id]) == []
+    assert store.db["audit"].count == audit_rows
+
+
+def test_wrong_method_is_refused_by_the_model(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    with pytest.raises(WalkdownError) as err:
+        record_reading(store, visit.id, site.tag("TJ-01").id, "earth_isolated", "3", "clamp_on")
+    assert "clamp_on does not measure" in str(err.value)
+
+
+def test_grades_need_words_unless_sound(store: Store, site: WalkSite, visit: Inspection) -> None:
+    at = site.tag("AT-01")
+    with pytest.raises(WalkdownError) as err:
+        grade_component(store, visit.id, at.id, "defect")
+    assert "say what was found" in str(err.value)
+    with pytest.raises(WalkdownError) as err:
+        grade_component(store, visit.id, at.id, "defect", "bent", due_by="next week")
+    assert err.value.field == "due_by"
+    first = grade_component(store, visit.id, at.id, "defect", "tip bent", "replace", "2026-07-01")
+    again = grade_component(store, visit.id, at.id, Grade.NEEDS_ATTENTION, "tip bent slightly")
+    assert first.id == again.id
+    stored = store.select(Finding, "inspection_id = ?", [visit.id])
+    assert len(stored) == 1 and stored[0].grade is Grade.NEEDS_ATTENTION
+
+
+def test_photo_from_a_file_and_from_a_folder_matched_by_time(
+    store: Store, site: WalkSite, visit: Inspection, tmp_path: Path
+) -> None:
+    db = Store.open(tmp_path / "walk.sqlite")
+    walk = build_walk_site(db)
+    visit = start_inspection(db, walk.site.id, "complete", None, TODAY)
+    at = datetime(2026, 6, 1, 9, 0, tzinfo=UTC)
+    tj1, tj2 = walk.tag("TJ-01"), walk.tag("TJ-02")
+    record_reading(db, visit.id, tj1.id, "earth_isolated", "3.9", taken_at=at)
+    record_reading(db, visit.id, tj2.id, "earth_isolated", "4.2", taken_at=at + timedelta(hours=1))
+    card = tmp_path / "card"
+    write_photo(card / "IMG_0001.jpg", at + timedelta(minutes=2))
+    write_photo(card / "IMG_0002.jpg", at + timedelta(minutes=58))
+    write_photo(card / "IMG_0003.jpg", at + timedelta(hours=5))  # nothing near
+    (card / "notes.txt").write_text("not a photo")
+    single = attach_photo_file(db, visit.id, card / "IMG_0001.jpg", tj1.id, "clamp")
+    matches = attach_photo_folder(db, visit.id, card)
+    assert [(m.photo.original_name, m.component_id) for m in matches] == [
+        ("IMG_0002.jpg", tj2.id),
+        ("IMG_0003.jpg", None),
+    ]  # IMG_0001 was attached already: same content, skipped
+    assert single.component_id == tj1.id
+    assert len(db.select(Photo, "inspection_id = ?", [visit.id])) == 3
+    assert saved_entries(db, visit.id).photos == {tj1.id: 1, tj2.id: 1, None: 1}
+    with pytest.raises(WalkdownError) as err:
+        attach_photo_file(db, visit.id, card / "missing.jpg")
+    assert err.value.field == "photo"
+    db.close()
+
+
+def test_missing_lists_the_engines_gaps_then_ungraded_parts(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    for n in (1, 2):
+        record_reading(store, visit.id, site.tag(f"TJ-0{n}").id, "earth_isolated", "4")
+        record_reading(store, visit.id, site.tag(f"DC-0{n}").id, "continuity", "0.1")
+    missing = missing_for_completion(store, visit.id)
+    assert "isolated earth reading for ER-03" in missing[0].what
+    assert "continuity reading for DC-03" in missing[0].what
+    assert [m.component.tag for m in missing[1:] if m.component][:2] == ["AT-01", "AT-02"]
+    assert len(missing) == 1 + 15
+
+
+def test_finish_marks_finished_and_frees_the_site_for_a_new_draft(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    set_soil(store, visit.id, "wet")
+    missing = finish_inspection(store, visit.id)
+    assert missing
+    done = store.get(Inspection, visit.id)
+    assert done is not None and done.finished and done.soil is not None
+    assert start_inspection(store, site.site.id, "visual", None, TODAY).id != visit.id
+
+
+def test_signed_inspection_refuses_entries(store: Store, site: WalkSite) -> None:
+    signed = store.save(
+        Inspection(
+            site_id=site.site.id,
+            kind="visual",
+            date=TODAY,
+            state="signed",
+            signed_at=datetime(2026, 6, 1, 12, tzinfo=UTC),
+        )
+    )
+    with pytest.raises(WalkdownError) as err:
+        record_reading(store, signed.id, site.tag("TJ-01").id, "earth_isolated", "3")
+    assert "signed" in str(err.value)
+
+
+@pytest.mark.parametrize("kind", list(ComponentKind))
+def test_every_kind_has_a_checklist(kind: ComponentKind) -> None:
+    items = load_checklist(kind)
+    assert len(items) >= 3
