@@ -1,0 +1,1 @@
+"""Planning the next round of visits: what is due, in what order, on which day."""
