@@ -2,8 +2,11 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import dataclass
 from datetime import date
+from itertools import groupby
+from operator import itemgetter
 
 from inspectkit.model import (
     Component,
@@ -12,11 +15,12 @@ from inspectkit.model import (
     Instrument,
     Photo,
     Reading,
+    Record,
     Site,
     SiteRecords,
 )
 from inspectkit.store.database import Store, StoreError
-from inspectkit.store.rows import from_row
+from inspectkit.store.rows import STORED, from_row
 
 
 @dataclass(frozen=True)
@@ -97,3 +101,62 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         photos=store.select(Photo, in_site, [site_id]),
         instruments=instruments,
     )
+
+
+def iter_site_records(store: Store) -> Iterator[SiteRecords]:
+    """Every site's records, one site at a time in id order, from one query per table.
+
+    For checking a whole database: a query per site would run thousands of queries,
+    and holding every site at once would hold every reading. Each table is read in
+    site order and the streams are merged, so only one site is in memory at a time.
+    """
+    instruments = {i.id: i for i in store.select(Instrument)}
+    streams = {
+        "components": _by_site(store, Component, "SELECT site_id AS _site, * FROM component"),
+        "inspections": _by_site(
+            store, Inspection, "SELECT site_id AS _site, * FROM inspection ORDER BY site_id, date"
+        ),
+        "readings": _by_site(store, Reading, _JOINED.format(table="reading")),
+        "findings": _by_site(store, Finding, _JOINED.format(table="finding")),
+        "photos": _by_site(store, Photo, _JOINED.format(table="photo")),
+    }
+    pending = {name: next(stream, None) for name, stream in streams.items()}
+    cursor = store.db.execute("SELECT * FROM site ORDER BY id")
+    names = [d[0] for d in cursor.description]
+    for values in cursor:
+        site = from_row(Site, dict(zip(names, values, strict=True)))
+        parts: dict[str, list[Record]] = {}
+        for name, stream in streams.items():
+            while pending[name] is not None and pending[name][0] < site.id:
+                pending[name] = next(stream, None)
+            if pending[name] is not None and pending[name][0] == site.id:
+                parts[name] = pending[name][1]
+                pending[name] = next(stream, None)
+        readings = parts.get("readings", [])
+        used = {r.instrument_id for r in readings if r.instrument_id}  # type: ignore[attr-defined]
+        yield SiteRecords(
+            site=site,
+            **parts,
+            instruments={key: instruments[key] for key in used if key in instruments},
+        )
+
+
+#: Rows of a table hanging off inspections, with the inspection's site, in site order.
+_JOINED = (
+    "SELECT i.site_id AS _site, t.* FROM inspection i JOIN [{table}] t ON t.inspection_id = i.id"
+    " ORDER BY i.site_id"
+)
+
+
+def _by_site(store: Store, model: type[Record], sql: str) -> Iterator[tuple[str, list[Record]]]:
+    """(site id, records) for each site with rows, from a query whose first column is the site."""
+    cursor = store.db.execute(sql if "ORDER BY" in sql else f"{sql} ORDER BY site_id")
+    names = [d[0] for d in cursor.description][1:]
+    for site_id, rows in groupby(cursor, key=itemgetter(0)):
+        yield (
+            site_id,
+            [
+                model.model_validate(dict(zip(names, row[1:], strict=True)), context=STORED)
+                for row in rows
+            ],
+        )

@@ -1,0 +1,96 @@
+"""`inspectkit check`: every rule, the schedule and the trends over the database."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+from datetime import date, datetime
+from typing import Annotated
+
+import typer
+
+from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.engine.check import SiteCheck, check_all, worst_first
+from inspectkit.model import Severity, SiteRecords
+from inspectkit.profiles import Profile, ProfileError, load_all_profiles
+from inspectkit.store import Store
+from inspectkit.store.queries import find_site, iter_site_records, load_site_records
+
+#: Severity words in a fixed width, so the table reads without colour.
+_WORD = {s: s.value.upper() for s in Severity}
+
+
+def gather(
+    store: Store, today: date, site: str | None = None, profiles: dict[str, Profile] | None = None
+) -> list[SiteCheck]:
+    """Check one site (by name or id) or every site, worst first.
+
+    Raises:
+        LookupError: no site matches `site`.
+        ProfileError: a profile file is bad, or a site names one that does not exist.
+    """
+    profiles = load_all_profiles() if profiles is None else profiles
+    sites: Iterator[SiteRecords]
+    if site is None:
+        sites = iter_site_records(store)
+    else:
+        found = find_site(store, site)
+        if found is None:
+            raise LookupError(site)
+        sites = iter([load_site_records(store, found.id)])
+    return worst_first(check_all(sites, profiles, today))
+
+
+def render(checks: list[SiteCheck]) -> Iterator[str]:
+    """The human table: a heading line per site with its summary, then its results."""
+    for check in checks:
+        yield f"{check.site_name}  [{_WORD[check.worst]}]  {check.summary}"
+        for r in check.results:
+            yield f"  {_WORD[r.severity]:<10} {r.component_tag or '-':<8} {r.message}"
+    acting = sum(1 for c in checks if c.needs_action)
+    watching = sum(1 for c in checks if not c.needs_action and c.worst is not Severity.OK)
+    clear = len(checks) - acting - watching
+    yield (
+        f"{len(checks)} site(s) checked: {acting} need action (fail or overdue), "
+        f"{watching} to watch or complete, {clear} all clear."
+    )
+
+
+def check(
+    ctx: typer.Context,
+    db: DbOption = None,
+    site: Annotated[
+        str | None,
+        typer.Option("--site", help="Check only this site (name, start of name, or id)."),
+    ] = None,
+    today: Annotated[
+        datetime | None,
+        typer.Option(
+            "--today",
+            formats=["%Y-%m-%d"],
+            help="Judge as of this day, YYYY-MM-DD (default: today).",
+            show_default=False,
+        ),
+    ] = None,
+    json_out: JsonOption = False,
+) -> None:
+    """Check readings, schedules and trends; exit 1 when anything fails or is overdue."""
+    day = today.date() if today is not None else date.today()
+    with open_store(ctx, db) as store:
+        try:
+            checks = gather(store, day, site)
+        except LookupError:
+            fail(f"--site: no single site matches {site!r}; run `inspectkit sites` for the names")
+        except ProfileError as exc:
+            fail(f"{exc}")
+    if json_out:
+        emit_json([r.to_json() for c in checks for r in c.results])
+    elif not checks:
+        typer.echo("No sites yet.")
+    else:
+        for line in render(checks):
+            typer.echo(line)
+    raise typer.Exit(int(Exit.ACT if any(c.needs_action for c in checks) else Exit.OK))
+
+
+def register(app: typer.Typer) -> None:
+    app.command("check")(check)
