@@ -18,6 +18,9 @@ from cryptography.hazmat.primitives.asymmetric import rsa
 from cryptography.hazmat.primitives.serialization import pkcs12
 from cryptography.x509.oid import NameOID
 
+from inspectkit.model import Inspector
+from inspectkit.store import Store
+
 #: A self-signed inspector certificate is good for this long (our default).
 VALID_DAYS = 5 * 365
 #: RSA key size; 2048 bits is the usual floor for document signatures (common practice).
@@ -151,3 +154,29 @@ def _describe(path: Path, certificate: x509.Certificate) -> SigningKey:
         subject=common_name(certificate),
         not_after=certificate.not_valid_after_utc,
     )
+
+
+def keys_dir(store: Store) -> Path:
+    """Folder for key files beside the database (`demo.sqlite` → `demo-keys/`)."""
+    if store.path is None:
+        raise KeyProblem("an in-memory database has no folder for keys; give -o FILE")
+    return store.path.with_name(f"{store.path.stem}-keys")
+
+
+def key_path(store: Store, inspector: Inspector) -> Path:
+    """Where an inspector's key file is: its recorded path, relative to the database's folder."""
+    path = Path(inspector.signing_key)
+    if path.is_absolute() or store.path is None:
+        return path
+    return store.path.parent / path
+
+
+def stored_key_path(store: Store, path: Path) -> str:
+    """The path to record on the Inspector: relative to the database's folder when inside it."""
+    path = path.resolve()
+    if store.path is not None:
+        try:
+            return str(path.relative_to(store.path.parent.resolve()))
+        except ValueError:
+            pass
+    return str(path)
