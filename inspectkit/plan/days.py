@@ -67,11 +67,13 @@ def split_days(
     """Working days for a route, keeping its order: the fewest days, then the least time.
 
     Every way of cutting the route into runs that fit a day is weighed (dynamic
-    programming over the cut points, as in route-first cluster-second planning), so
-    a long visit does not leave the day before it half empty as a greedy cut would.
-    A run only grows longer as it takes the next site (the drive home from a site is
-    never longer than going on to the next one and home from there), so each run is
-    extended only until it no longer fits.
+    programming over the cut points, as in route-first cluster-second planning).
+    Filling each day as full as it goes already gives the fewest days; among the
+    cuts with that many, this one drives least, since where a day ends decides
+    which two sites are joined by a drive home and out again. A run only grows
+    longer as it takes the next site (the drive home from a site is never longer
+    than going on to the next one and home from there), so each run is extended
+    only until it no longer fits.
 
     Args:
         route: the sites' nodes in visiting order (the depot left out).
