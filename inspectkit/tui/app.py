@@ -2,40 +2,91 @@
 
 from __future__ import annotations
 
+from datetime import date
 from pathlib import Path
 
-from textual.app import App, ComposeResult
-from textual.widgets import DataTable, Footer, Header
+from textual.app import App
+from textual.binding import Binding
 
 from inspectkit.store import Store
-from inspectkit.store.queries import site_summaries
+from inspectkit.tui.commands import ActionsProvider
+from inspectkit.tui.dialogs.cautions import CautionsDialog
+from inspectkit.tui.preferences import Preferences
+from inspectkit.tui.screens.findings import FindingsScreen
+from inspectkit.tui.screens.settings import SettingsScreen
+from inspectkit.tui.screens.sites import SitesScreen
 
 
 class InspectApp(App[None]):
-    """Minimal site list; the screens grow from here."""
+    """The inspector's whole day: sites, a site, the walkdown, findings, settings.
+
+    Screens reachable from anywhere are modes, each keeping its own stack (a site
+    opened from the list stays open while findings are looked at). To add one
+    (the plan, say): add its class to MODES and a Binding below that switches to it;
+    the command palette picks the binding up by itself.
+    """
 
     TITLE = "inspectkit"
+    CSS_PATH = "app.tcss"
+    COMMANDS = App.COMMANDS | {ActionsProvider}
+    DEFAULT_MODE = "sites"
+    MODES = {
+        "sites": SitesScreen,
+        "findings": FindingsScreen,
+        "settings": SettingsScreen,
+    }
 
-    def __init__(self, db_path: Path) -> None:
+    BINDINGS = [
+        Binding(
+            "f1", "cautions", "Cautions", id="app.cautions",
+            tooltip="Show the safety cautions again",
+        ),
+        Binding("f2", "switch_mode('sites')", "Sites", id="app.sites", tooltip="Every site"),
+        Binding(
+            "f3", "switch_mode('findings')", "Findings", id="app.findings",
+            tooltip="Open defects across all sites",
+        ),
+        Binding(
+            "f4", "switch_mode('settings')", "Settings", id="app.settings",
+            tooltip="Inspector, instrument, profiles and data folder",
+        ),
+    ]
+
+    def __init__(self, db_path: Path, today: date | None = None) -> None:
+        """Args:
+        db_path: the database to open (created if missing).
+        today: the day to judge states by; None follows the clock (tests fix it).
+        """
         super().__init__()
-        self.db_path = db_path
+        self.db_path = Path(db_path)
+        self._today = today
+        self.store = Store.open(self.db_path)
+        self.settings = Preferences(self.store)
+        self.sub_title = str(self.db_path)
 
-    def compose(self) -> ComposeResult:
-        yield Header()
-        yield DataTable(id="sites")
-        yield Footer()
+    @property
+    def today(self) -> date:
+        """The day states and due dates are judged by."""
+        return self._today or date.today()
 
     def on_mount(self) -> None:
-        table = self.query_one("#sites", DataTable)
-        table.add_columns("site", "level", "client", "town", "last visit")
-        with Store.open(self.db_path) as store:
-            for s in site_summaries(store):
-                last = s.last_visit.isoformat() if s.last_visit else "never"
-                table.add_row(
-                    s.site.name, s.site.protection_level.value, s.site.client, s.site.town, last
-                )
+        if not self.settings.cautions_acknowledged:
+            self.action_cautions()
+
+    def action_cautions(self) -> None:
+        """Show the cautions; acknowledging them keeps them from opening by themselves."""
+
+        def done(acknowledged: bool | None) -> None:
+            if acknowledged and not self.settings.cautions_acknowledged:
+                self.settings.acknowledge_cautions()
+
+        if not isinstance(self.screen, CautionsDialog):
+            self.push_screen(CautionsDialog(), done)
+
+    def on_unmount(self) -> None:
+        self.store.close()
 
 
-def make_app(db_path: Path) -> InspectApp:
+def make_app(db_path: Path, today: date | None = None) -> InspectApp:
     """Build the app for the command line and for tests alike."""
-    return InspectApp(db_path)
+    return InspectApp(db_path, today=today)

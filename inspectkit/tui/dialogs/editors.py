@@ -1,0 +1,108 @@
+"""The edit dialogs for sites, components, inspectors and instruments, as field lists."""
+
+from __future__ import annotations
+
+from datetime import date
+
+from inspectkit.model import (
+    Component,
+    ComponentKind,
+    ElectrodeType,
+    Inspector,
+    Instrument,
+    ProtectionLevel,
+    Site,
+)
+from inspectkit.profiles import load_all_profiles
+from inspectkit.tui.dialogs.record_form import Field, RecordDialog
+
+DATE_HINT = "a date as YYYY-MM-DD"
+
+
+def profile_choices() -> list[tuple[str, str]]:
+    """Every rule set a site may be held to, by name."""
+    return [(name, name) for name in sorted(load_all_profiles())]
+
+
+def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
+    """Edit a site, or make a new one when `site` is None."""
+    fields = [
+        Field("name", "Name", "the site's name"),
+        Field("client", "Client"),
+        Field("address", "Address"),
+        Field("town", "Town"),
+        Field(
+            "protection_level", "Protection level", "I, II, III or IV",
+            choices=[(level.value, level.value) for level in ProtectionLevel],
+        ),
+        Field("profile", "Profile", choices=profile_choices()),
+        Field("critical", "Critical", flag=True),
+        Field("explosive_risk", "Explosive risk", flag=True),
+        Field("height_m", "Height (m)", "metres, e.g. 18.5", optional=True),
+        Field("latitude", "Latitude", "degrees, e.g. 51.48", optional=True),
+        Field("longitude", "Longitude", "degrees, e.g. -0.61", optional=True),
+        Field("altered_on", "Altered on", DATE_HINT, optional=True),
+        Field("notes", "Notes"),
+    ]
+    base = site.model_dump() if site else {"profile": "iec-62305-3"}
+    return RecordDialog("Edit site" if site else "New site", Site, fields, base)
+
+
+def component_dialog(
+    site_id: str,
+    component: Component | None = None,
+    parents: list[Component] | None = None,
+) -> RecordDialog[Component]:
+    """Edit a component (re-tag, move, re-parent) or add one to a site.
+
+    Args:
+        site_id: The site the component belongs to.
+        component: The component to edit; None to add a new one.
+        parents: Components it may hang off (a test joint's down conductor...).
+    """
+    fields = [
+        Field(
+            "kind", "Kind", "a component kind",
+            choices=[(kind.label, kind.value) for kind in ComponentKind],
+        ),
+        Field("tag", "Tag", "the tag painted on site, e.g. TJ-03"),
+        Field("location", "Location", "where it is, e.g. north-east corner"),
+        Field("material", "Material", "e.g. copper tape 25×3"),
+        Field("installed_on", "Installed on", DATE_HINT, optional=True),
+        Field(
+            "parent_id", "Hangs off", optional=True,
+            choices=[(f"{p.tag} ({p.kind.label})", p.id) for p in parents or []],
+        ),
+        Field(
+            "electrode_type", "Electrode type", "only for earth electrodes", optional=True,
+            choices=[(t.value, t.value) for t in ElectrodeType],
+        ),
+    ]
+    base = component.model_dump() if component else {"site_id": site_id}
+    title = f"Edit {component.tag}" if component else "New component"
+    return RecordDialog(title, Component, fields, base)
+
+
+def inspector_dialog() -> RecordDialog[Inspector]:
+    """Add an inspector, the person whose name goes on inspections."""
+    fields = [
+        Field("name", "Name", "the inspector's full name"),
+        Field("organisation", "Organisation"),
+        Field("qualification", "Qualification"),
+    ]
+    return RecordDialog("New inspector", Inspector, fields, {})
+
+
+def instrument_dialog() -> RecordDialog[Instrument]:
+    """Add a test instrument with its calibration due date."""
+    fields = [
+        Field("description", "Description", "make and model, e.g. earth tester ET-4"),
+        Field("serial", "Serial", "the serial number on the instrument"),
+        Field("calibration_due", "Calibration due", DATE_HINT, optional=True),
+    ]
+    return RecordDialog("New instrument", Instrument, fields, {})
+
+
+def retired(component: Component, today: date) -> Component:
+    """The component marked retired: it keeps its history but is no longer inspected."""
+    return component.model_copy(update={"retired_on": today})

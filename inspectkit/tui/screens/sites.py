@@ -1,0 +1,321 @@
+"""The list of every site, worst first, with its state in words and colour."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from datetime import date
+
+from rich.text import Text
+from textual import events, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.message import Message
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Header, Input, Static
+from textual.worker import get_current_worker
+
+from inspectkit.store.queries import site_summaries
+from inspectkit.tui.site_state import SiteState, assess_all
+from inspectkit.tui.widgets.state_badge import state_text
+
+#: How the list can be ordered: name shown in the status line → key function.
+SORTS = ("state", "name", "due", "client", "town")
+#: Columns of the list: heading, key (the key doubles as the sort name).
+COLUMNS = (
+    ("State", "state"), ("Site", "name"), ("Level", "level"),
+    ("Client", "client"), ("Town", "town"), ("Next due", "due"),
+)
+#: Shown too when the terminal is at least WIDE columns across.
+WIDE_COLUMNS = (("Inspection due", "kind"), ("Last visit", "last"))
+WIDE = 110
+#: States are sent to the screen in batches this big, so the list repaints a few times.
+BATCH = 250
+
+
+@dataclass(frozen=True)
+class SiteRow:
+    """One line of the list."""
+
+    site_id: str
+    name: str
+    level: str
+    client: str
+    town: str
+    last_visit: date | None
+    state: SiteState | None = None
+
+    def matches(self, text: str) -> bool:
+        """Whether the filter text is in the name, client or town (any case)."""
+        return not text or any(text in v.lower() for v in (self.name, self.client, self.town))
+
+    def sort_key(self, by: str) -> tuple[object, ...]:
+        due = self.state.next_due if self.state and self.state.next_due else date.max
+        if by == "state":
+            rank = self.state.rank if self.state else len(SORTS) + 9
+            return (rank, due, self.name.lower())
+        if by == "due":
+            return (due, self.name.lower())
+        return (getattr(self, by).lower(), self.name.lower())
+
+
+class SitesScreen(Screen[None]):
+    """Every site; type to filter, Enter to open."""
+
+    CSS_PATH = "sites.tcss"
+
+    BINDINGS = [
+        Binding("enter", "open_site", "Open", id="sites.open", tooltip="Open the highlighted site"),
+        Binding(
+            "ctrl+o", "cycle_sort", "Sort", id="sites.sort",
+            tooltip="Order by state, name, due date, client or town in turn",
+        ),
+        Binding(
+            "ctrl+r", "reverse_sort", "Reverse", id="sites.reverse",
+            tooltip="Reverse the order of the list",
+        ),
+        Binding(
+            "ctrl+n", "new_site", "New site", id="sites.new", tooltip="Add a site to the list",
+        ),
+        Binding(
+            "escape", "clear_filter", "Clear filter", id="sites.clear",
+            tooltip="Show every site again", show=False,
+        ),
+    ]
+
+    class StatesComputed(Message):
+        """A batch of site states from the background worker.
+
+        Attributes:
+            states: site id → its state.
+            done: True on the last batch.
+        """
+
+        def __init__(self, states: dict[str, SiteState], done: bool) -> None:
+            super().__init__()
+            self.states = states
+            self.done = done
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.wide = False
+        self.rows: dict[str, SiteRow] = {}
+        self.sort_by = "state"
+        self.descending = False
+        self.states_ready = False
+
+    @property
+    def table(self) -> DataTable[object]:
+        return self.query_one("#sites", DataTable)
+
+    @property
+    def filter_input(self) -> Input:
+        return self.query_one("#filter", Input)
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield Input(
+            placeholder="type to filter by name, client or town", id="filter", select_on_focus=False
+        )
+        yield DataTable(id="sites", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="status", classes="hint")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self._add_columns()
+        self.table.focus()
+
+    def _add_columns(self) -> None:
+        table = self.table
+        table.clear(columns=True)
+        for label, key in COLUMNS + (WIDE_COLUMNS if self.wide else ()):
+            table.add_column(label, key=key)
+
+    def on_resize(self, event: events.Resize) -> None:
+        wide = event.size.width >= WIDE
+        if wide != self.wide:
+            self.wide = wide
+            self._add_columns()
+            self.rebuild()
+
+    def on_screen_resume(self) -> None:
+        self.reload()
+
+    def reload(self) -> None:
+        """Read the sites again (cheap, one query) and judge them in the background."""
+        known = self.rows
+        self.rows = {
+            s.site.id: SiteRow(
+                s.site.id,
+                s.site.name,
+                s.site.protection_level.value,
+                s.site.client,
+                s.site.town,
+                s.last_visit,
+                known[s.site.id].state if s.site.id in known else None,
+            )
+            for s in site_summaries(self.app.store)
+        }
+        self.rebuild()
+        self.compute_states(list(self.rows))
+
+    @work(thread=True, exclusive=True, group="site-states")
+    def compute_states(self, site_ids: list[str]) -> None:
+        """Judge every site on a connection of the worker's own, posting batches back."""
+        worker = get_current_worker()
+        batch: dict[str, SiteState] = {}
+        for site_id, state in assess_all(
+            self.app.db_path, site_ids, self.app.today, lambda: worker.is_cancelled
+        ):
+            batch[site_id] = state
+            if len(batch) >= BATCH:
+                self.post_message(self.StatesComputed(batch, done=False))
+                batch = {}
+        if not worker.is_cancelled:
+            self.post_message(self.StatesComputed(batch, done=True))
+
+    def on_sites_screen_states_computed(self, message: StatesComputed) -> None:
+        for site_id, state in message.states.items():
+            if site_id in self.rows:
+                self.rows[site_id] = replace(self.rows[site_id], state=state)
+        self.states_ready = message.done
+        if message.done or self.sort_by not in ("state", "due"):
+            self.rebuild()
+        else:
+            self.refresh_states(message.states)
+
+    def refresh_states(self, states: dict[str, SiteState]) -> None:
+        """Fill in states without reordering, so the cursor does not jump while they arrive."""
+        table = self.table
+        for site_id in states:
+            if site_id in table.rows:
+                cells = self._cells(self.rows[site_id])
+                table.update_cell(site_id, "state", cells[0])
+                table.update_cell(site_id, "due", cells[5])
+                if self.wide:
+                    table.update_cell(site_id, "kind", cells[6])
+
+    def visible_rows(self) -> list[SiteRow]:
+        text = self.filter_input.value.strip().lower()
+        rows = [row for row in self.rows.values() if row.matches(text)]
+        return sorted(rows, key=lambda r: r.sort_key(self.sort_by), reverse=self.descending)
+
+    def rebuild(self) -> None:
+        """Clear and refill the table in one go (removing rows one by one is quadratic).
+
+        The cursor stays on the site it was on, unless it was on the top row: then
+        it stays on the top row, so the worst site is highlighted as states arrive.
+        """
+        table = self.table
+        current = None if table.cursor_row == 0 else self.highlighted_site_id()
+        table.clear()
+        rows = self.visible_rows()
+        for row in rows:
+            table.add_row(*self._cells(row), key=row.site_id)
+        if current is not None and current in table.rows:
+            table.move_cursor(row=table.get_row_index(current))
+        self.show_status(len(rows))
+
+    def _state_cells(self, row: SiteRow) -> tuple[Text, Text]:
+        """The state and next-due cells: the last visit, dimmed, until the state is known."""
+        state = row.state
+        if state is None:
+            last = row.last_visit.isoformat() if row.last_visit else "never"
+            return state_text(None), Text(f"last {last}", style="dim")
+        return state_text(state.word), Text(state.next_due.isoformat() if state.next_due else "—")
+
+    def _cells(self, row: SiteRow) -> tuple[object, ...]:
+        state_cell, due_cell = self._state_cells(row)
+        cells: tuple[object, ...] = (
+            state_cell, row.name, row.level, row.client, row.town, due_cell
+        )
+        if self.wide:
+            kind = row.state.next_kind.replace("_", "-") if row.state else ""
+            last = row.last_visit.isoformat() if row.last_visit else "never"
+            cells += (kind, last)
+        return cells
+
+    def show_status(self, shown: int) -> None:
+        order = f"{self.sort_by}{' reversed' if self.descending else ''}"
+        judging = "" if self.states_ready else " · judging sites…"
+        self.query_one("#status", Static).update(
+            f"{shown} of {len(self.rows)} sites · sorted by {order}{judging}"
+        )
+
+    def highlighted_site_id(self) -> str | None:
+        table = self.table
+        if table.row_count == 0:
+            return None
+        key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key
+        return None if key.value is None else str(key.value)
+
+    # ------------------------------------------------------------------ input
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if event.input.id == "filter":
+            self.rebuild()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id == "filter":
+            self.action_open_site()
+
+    def on_key(self, event: events.Key) -> None:
+        """Typing anywhere on the list goes to the filter; arrows from the filter go to the list."""
+        filter_input = self.filter_input
+        if self.focused is self.table and event.is_printable and event.character:
+            filter_input.focus()
+            filter_input.insert_text_at_cursor(event.character)
+            event.stop()
+        elif self.focused is self.table and event.key == "backspace" and filter_input.value:
+            filter_input.focus()
+            filter_input.action_delete_left()
+            event.stop()
+        elif self.focused is filter_input and event.key in ("down", "up", "pagedown", "pageup"):
+            self.table.focus()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        self.action_open_site()
+
+    def on_data_table_header_selected(self, event: DataTable.HeaderSelected) -> None:
+        """Clicking a column header orders by it; clicking it again reverses."""
+        by = str(event.column_key.value)
+        by = {"kind": "due", "last": "due"}.get(by, by) if by not in SORTS else by
+        by = by if by in SORTS else "name"
+        self.descending = not self.descending if by == self.sort_by else False
+        self.sort_by = by
+        self.rebuild()
+
+    # ---------------------------------------------------------------- actions
+
+    def action_open_site(self) -> None:
+        site_id = self.highlighted_site_id()
+        if site_id is None:
+            self.notify("No site matches the filter; press Escape to clear it")
+            return
+        from inspectkit.tui.screens.site import SiteScreen
+
+        self.app.push_screen(SiteScreen(site_id))
+
+    def action_cycle_sort(self) -> None:
+        self.sort_by = SORTS[(SORTS.index(self.sort_by) + 1) % len(SORTS)]
+        self.descending = False
+        self.rebuild()
+
+    def action_reverse_sort(self) -> None:
+        self.descending = not self.descending
+        self.rebuild()
+
+    def action_clear_filter(self) -> None:
+        self.filter_input.value = ""
+        self.table.focus()
+
+    def action_new_site(self) -> None:
+        from inspectkit.tui.dialogs.editors import site_dialog
+
+        def saved(site: object) -> None:
+            if site is not None:
+                self.app.store.save(site)
+                self.notify(f"Site {site.name} added")  # type: ignore[attr-defined]
+                self.reload()
+
+        self.app.push_screen(site_dialog(), saved)

@@ -1,0 +1,128 @@
+"""One word per site for the lists (ok, watch, due soon, fail, overdue), from the engine.
+
+Kept free of Textual so the sites list's background worker, the benchmark and the
+tests all compute states the same way.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass, field
+from datetime import date
+from pathlib import Path
+
+from inspectkit.engine.check import SiteCheck, check_site
+from inspectkit.engine.history import series
+from inspectkit.engine.schedule import DueStatus
+from inspectkit.model import Severity, SiteRecords
+from inspectkit.profiles import Profile, ProfileError, load_profile
+from inspectkit.store import Store
+from inspectkit.store.queries import load_site_records
+
+#: Words from worst to best: the sites list sorts by this, worst first.
+WORDS_WORST_FIRST = ("overdue", "fail", "incomplete", "due soon", "watch", "ok")
+#: Shown when a site's profile cannot be read: it cannot be judged at all.
+NO_PROFILE = "no profile"
+
+
+@dataclass(frozen=True)
+class SiteState:
+    """What the lists show about a site.
+
+    Attributes:
+        word: one of WORDS_WORST_FIRST, or NO_PROFILE.
+        next_due: the date of the most urgent inspection the site owes.
+        next_kind: which inspection that is (visual, complete, post_strike...).
+        check: the engine's whole verdict, when the site's profile could be read.
+    """
+
+    word: str
+    next_due: date | None = None
+    next_kind: str = ""
+    check: SiteCheck | None = field(default=None, compare=False)
+
+    @property
+    def rank(self) -> int:
+        """Smaller is worse; unknown words sort first, since nobody judged them."""
+        return WORDS_WORST_FIRST.index(self.word) if self.word in WORDS_WORST_FIRST else -1
+
+
+def assess(records: SiteRecords, profile: Profile, today: date) -> SiteState:
+    """The site's state: overdue beats a failing reading beats due soon beats watch."""
+    check = check_site(records, profile, today)
+    schedule, worst = check.schedule, check.worst
+    if schedule.status is DueStatus.OVERDUE or worst is Severity.OVERDUE:
+        word = "overdue"
+    elif worst in (Severity.FAIL, Severity.INCOMPLETE):
+        word = worst.value
+    elif schedule.status in (DueStatus.DUE, DueStatus.DUE_SOON):
+        word = "due soon"
+    elif worst is Severity.WATCH:
+        word = "watch"
+    else:
+        word = "ok"
+    item = schedule.next_due
+    return SiteState(word, item.due, item.kind.value, check)
+
+
+class ProfileCache:
+    """Profiles by name, each read once; a name that cannot be read is remembered as such."""
+
+    def __init__(self) -> None:
+        self._profiles: dict[str, Profile | None] = {}
+
+    def get(self, name: str) -> Profile | None:
+        if name not in self._profiles:
+            try:
+                self._profiles[name] = load_profile(name)
+            except ProfileError:
+                self._profiles[name] = None
+        return self._profiles[name]
+
+
+def assess_site(store: Store, site_id: str, today: date, profiles: ProfileCache) -> SiteState:
+    """Load one site's records and judge them."""
+    records = load_site_records(store, site_id)
+    profile = profiles.get(records.site.profile)
+    if profile is None:
+        return SiteState(NO_PROFILE)
+    return assess(records, profile, today)
+
+
+def assess_all(
+    db_path: Path,
+    site_ids: list[str],
+    today: date,
+    stop: Callable[[], bool] = lambda: False,
+) -> Iterator[tuple[str, SiteState]]:
+    """Judge many sites on a connection of its own, so it can run on a worker thread.
+
+    Args:
+        db_path: the database file; a fresh connection is opened on the calling thread.
+        site_ids: the sites, in the order their states are wanted.
+        today: the day to judge by.
+        stop: asked before each site; True ends the work early.
+    """
+    profiles = ProfileCache()
+    with Store.open(db_path, create=False) as store:
+        for site_id in site_ids:
+            if stop():
+                return
+            yield site_id, assess_site(store, site_id, today, profiles)
+
+
+def reading_verdicts(check: SiteCheck, records: SiteRecords) -> dict[str, str]:
+    """Pass, watch or fail for the latest reading of each component and quantity.
+
+    The engine's results decide: a reading it said nothing about passed.
+    """
+    by_reading: dict[str, Severity] = {}
+    for result in check.results:
+        known = by_reading.get(result.reading_id or "")
+        if result.reading_id and (known is None or result.severity.rank > known.rank):
+            by_reading[result.reading_id] = result.severity
+    verdicts = {}
+    for readings in series(records.readings).values():
+        severity = by_reading.get(readings[-1].id, Severity.OK)
+        verdicts[readings[-1].id] = "pass" if severity is Severity.OK else severity.value
+    return verdicts

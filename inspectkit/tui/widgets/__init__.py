@@ -1,0 +1,1 @@
+"""Small reusable widgets and the cell renderings they share."""

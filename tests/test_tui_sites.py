@@ -1,0 +1,114 @@
+"""The sites list: cautions on first start, states worst first, filter, sort, open."""
+
+# ruff: noqa: F811 - the tui_db fixture is imported, then named as an argument
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from textual.widgets import DataTable, Input
+from tui_factories import ANCHOR, build_tui_db, column, settled, tui_db  # noqa: F401
+
+from inspectkit.cautions import ACKNOWLEDGED_SETTING
+from inspectkit.model import Site
+from inspectkit.store import Store
+from inspectkit.tui.app import make_app
+from inspectkit.tui.dialogs.cautions import CautionsDialog
+from inspectkit.tui.screens.site import SiteScreen
+from inspectkit.tui.screens.sites import SitesScreen
+
+
+async def test_cautions_shown_once_then_one_key_away(tmp_path: Path) -> None:
+    path = build_tui_db(tmp_path / "fresh.sqlite")
+    app = make_app(path, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen, CautionsDialog)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, SitesScreen)
+    with Store.open(path) as store:
+        assert store.get_setting(ACKNOWLEDGED_SETTING) == "yes"
+
+    again = make_app(path, today=ANCHOR)
+    async with again.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert isinstance(again.screen, SitesScreen)
+        await pilot.press("f1")
+        await pilot.pause()
+        assert isinstance(again.screen, CautionsDialog)
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(again.screen, SitesScreen)
+
+
+async def test_states_in_words_worst_first(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        assert column(table, "name") == ["Orchard Tower", "Mill Lane School", "Harbour Depot"]
+        states = column(table, "state")
+        # Orchard Tower's only visit was in 2019: level I is due every year (IEC 62305-3 Table E.2).
+        assert states[0] == "overdue"
+        # Mill Lane School's TJ-02 read 12.4 Ω against the profile's 10 Ω limit.
+        assert states[1] == "fail"
+        assert column(table, "due")[0] == "2020-03-04"
+
+
+async def test_typing_filters_by_name_client_or_town(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        await pilot.press(*"porth")
+        assert app.screen.query_one("#filter", Input).value == "porth"
+        assert sorted(column(table, "name")) == ["Harbour Depot", "Orchard Tower"]
+        await pilot.press("backspace", "backspace", "backspace", "backspace", "backspace")
+        await pilot.press(*"council")
+        assert column(table, "name") == ["Mill Lane School"]
+        await pilot.press("escape")
+        assert table.row_count == 3
+
+
+async def test_sort_keys_cycle_and_reverse(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        await pilot.press("ctrl+o")
+        assert app.screen.sort_by == "name"
+        assert column(table, "name") == ["Harbour Depot", "Mill Lane School", "Orchard Tower"]
+        await pilot.press("ctrl+r")
+        assert column(table, "name") == ["Orchard Tower", "Mill Lane School", "Harbour Depot"]
+
+
+async def test_enter_opens_the_highlighted_site(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        await pilot.press("down", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, SiteScreen)
+        assert app.store.get(Site, app.screen.site_id).name == "Mill Lane School"
+        await pilot.press("escape")
+        assert isinstance(app.screen, SitesScreen)
+
+
+async def test_new_site_bad_input_is_explained_and_nothing_saved(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        await pilot.press("ctrl+n")
+        await pilot.pause()
+        dialog = app.screen
+        dialog.query_one("#field-name", Input).value = "Quarry Works"
+        dialog.query_one("#field-height_m", Input).value = "tall"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert app.screen is dialog
+        error = str(dialog.query_one("#error-height_m").render())
+        assert "metres" in error
+        assert "I, II, III or IV" in str(dialog.query_one("#error-protection_level").render())
+        assert dialog.query_one("#field-name", Input).value == "Quarry Works"
+        assert app.store.select(Site, "name = ?", ["Quarry Works"]) == []
