@@ -37,34 +37,32 @@ def trend_drawing(chart: TrendChart, width: float, height: float, colour: str) -
     plot = LinePlot()
     plot.x, plot.y = 42, 30
     plot.width, plot.height = width - 60, height - 52
-    readings = [(d.toordinal(), v) for d, v in chart.points]
-    series = [readings]
+    # Each reading is its own one-point series, so the dots are not joined up.
+    readings = [[(d.toordinal(), v)] for d, v in chart.points]
     fit = [(d.toordinal(), v) for d, v in chart.fit]
-    if fit:
-        series.append(fit)
-    xs = [x for line in series for x, _ in line]
-    ys = [y for line in series for _, y in line]
+    xs = [x for line in readings for x, _ in line] + [x for x, _ in fit]
+    ys = [y for line in readings for _, y in line] + [y for _, y in fit]
     if chart.limit is not None:
         ys.append(chart.limit)
-    low_x, high_x = min(xs), max(xs)
-    if high_x - low_x < 60:
-        low_x, high_x = low_x - 30, high_x + 30
-    if chart.limit is not None:
-        series.append([(low_x, chart.limit), (high_x, chart.limit)])
-    plot.data = series
+    # A margin either side, so the first and last dots sit clear of the axes.
+    margin = max(30, (max(xs) - min(xs)) // 25)
+    low_x, high_x = min(xs) - margin, max(xs) + margin
     main = colors.HexColor(colour)
-    plot.lines[0].strokeColor = main
-    plot.lines[0].strokeWidth = 0
-    plot.lines[0].symbol = makeMarker("FilledCircle", size=4, fillColor=main, strokeColor=main)
-    styles = []
+    lines: list[tuple[list[tuple[float, float]], object, float, object]] = []
     if fit:
-        styles.append((colors.HexColor("#444444"), 1.2, None))
+        lines.append((fit, colors.HexColor("#444444"), 1.2, None))
     if chart.limit is not None:
-        styles.append((colors.HexColor("#B00020"), 1, (4, 3)))
-    for index, (stroke, thickness, dash) in enumerate(styles, start=1):
+        lines.append(([(low_x, chart.limit), (high_x, chart.limit)], colors.HexColor("#B00020"),
+                      1, (4, 3)))
+    plot.data = [line for line, *_ in lines] + readings
+    for index, (_, stroke, thickness, dash) in enumerate(lines):
         plot.lines[index].strokeColor = stroke
         plot.lines[index].strokeWidth = thickness
         plot.lines[index].strokeDashArray = dash
+    for index in range(len(lines), len(plot.data)):
+        plot.lines[index].strokeColor = main
+        plot.lines[index].symbol = makeMarker("FilledCircle", size=4.5, fillColor=main,
+                                              strokeColor=main)
     plot.joinedLines = 1
     plot.xValueAxis.valueMin, plot.xValueAxis.valueMax = low_x, high_x
     plot.xValueAxis.labelTextFormat = _year_label
@@ -78,7 +76,7 @@ def trend_drawing(chart: TrendChart, width: float, height: float, colour: str) -
     drawing.add(plot)
     drawing.add(String(4, height - 12, f"{chart.tag}: earth resistance (Ω)", fontName=FONT,
                        fontSize=8))
-    legend = "● readings   — fitted line"
+    legend = "• readings   — fitted line"
     if chart.limit is not None:
         legend += "   - - limit"
     drawing.add(String(width - 4, height - 12, legend, fontName=FONT, fontSize=7,
