@@ -65,7 +65,7 @@ class PlanSettings(BaseModel):
     @classmethod
     def _weekdays(cls, value: tuple[str, ...]) -> tuple[str, ...]:
         days = tuple(d.strip().lower()[:3] for d in value)
-        wrong = [d for d in days if d not in WEEKDAYS]
+        wrong = [given for given, d in zip(value, days, strict=True) if d not in WEEKDAYS]
         if wrong:
             raise ValueError(f"{', '.join(wrong)}: not a weekday; use {', '.join(WEEKDAYS)}")
         return days

@@ -1,0 +1,177 @@
+"""The round written out: table, CSV, iCalendar parsed back, and the `plan` command."""
+
+from __future__ import annotations
+
+import csv
+import json
+from datetime import UTC, date, datetime, timedelta
+from pathlib import Path
+
+import pytest
+from engine_factories import SiteBuilder
+from icalendar import Calendar
+from typer.testing import CliRunner
+
+from inspectkit.cli import app
+from inspectkit.model import ComponentKind, InspectionKind
+from inspectkit.plan.export import CSV_COLUMNS, render_table, to_ical, visit_uid, write_csv
+from inspectkit.plan.geo import Point
+from inspectkit.plan.planner import RoundPlan, Window, make_plan
+from inspectkit.plan.settings import load_plan_settings
+from inspectkit.store import Store
+
+runner = CliRunner()
+FIRST = date(2026, 3, 2)
+STAMP = datetime(2026, 3, 1, 12, tzinfo=UTC)
+
+
+def _fill(store: Store) -> None:
+    """Five sites around 52 N 1 W due in March 2026, and one with no position."""
+    for i in range(6):
+        where = {} if i == 5 else {"latitude": 52 + i / 10, "longitude": -1 - i / 10}
+        b = SiteBuilder("III", name=f"Hall {i}", town="Emberton", address=f"{i} Mill Lane", **where)
+        for n in range(1, 3 + i):
+            b.joint_with_electrode(n)
+        b.component(ComponentKind.SPD, "SPD-1")
+        b.visit(date(2022 + i % 2, 2, 1), InspectionKind.COMPLETE)
+        r = b.records()
+        store.save_all([r.site, *r.components, *r.inspections])
+
+
+@pytest.fixture
+def plan(store: Store) -> RoundPlan:
+    _fill(store)
+    return make_plan(store, Window(FIRST, 30), load_plan_settings(), Point(52.0, -1.0))
+
+
+def test_ics_parses_back_with_one_event_per_visit(plan: RoundPlan) -> None:
+    # RFC 5545: one VEVENT per visit, UID and DTSTAMP present, DTEND after DTSTART.
+    cal = Calendar.from_ical(to_ical(plan, STAMP))
+    events = list(cal.walk("VEVENT"))
+    assert len(events) == len(plan.visits) == 5
+    by_uid = {str(e["UID"]): e for e in events}
+    for day, visit in plan.visits:
+        event = by_uid[visit_uid(visit.candidate.site.id, day.day)]
+        assert event.decoded("DTSTART") == visit.arrive
+        assert event.decoded("DTEND") == visit.leave
+        assert event.decoded("DTEND") > event.decoded("DTSTART")
+        assert visit.candidate.site.name in str(event["SUMMARY"])
+        assert "Mill Lane" in str(event["LOCATION"])
+        assert visit.candidate.reasons[0].text in str(event["DESCRIPTION"])
+        geo = event["GEO"]
+        assert (geo.latitude, geo.longitude) == pytest.approx(visit.candidate.point)
+    assert str(cal["VERSION"]) == "2.0"
+
+
+def test_first_visit_of_a_day_starts_at_the_day_start_plus_the_drive(plan: RoundPlan) -> None:
+    for day in plan.days:
+        first = day.visits[0]
+        expected = datetime.combine(day.day, plan.settings.day_start) + timedelta(
+            minutes=round(first.drive_minutes)
+        )
+        assert first.arrive == expected
+
+
+def test_uid_is_stable_across_replanning(store: Store, plan: RoundPlan) -> None:
+    again = make_plan(store, Window(FIRST, 30), load_plan_settings(), Point(52.0, -1.0))
+    uids = lambda p: sorted(visit_uid(v.candidate.site.id, d.day) for d, v in p.visits)  # noqa: E731
+    assert uids(again) == uids(plan)
+
+
+def test_csv_has_a_row_per_visit(plan: RoundPlan, tmp_path: Path) -> None:
+    path = write_csv(plan, tmp_path / "round.csv")
+    with path.open(encoding="utf-8") as f:
+        rows = list(csv.DictReader(f))
+    assert tuple(rows[0]) == CSV_COLUMNS
+    assert [(r["date"], r["site"]) for r in rows] == [
+        (d.day.isoformat(), v.candidate.site.name) for d, v in plan.visits
+    ]
+
+
+def test_table_shows_each_day_and_the_site_without_position(plan: RoundPlan) -> None:
+    text = render_table(plan)
+    for day in plan.days:
+        assert day.day.isoformat() in text
+    assert "No position on record" in text
+    assert "Hall 5" in text
+    assert "back at the depot" in text
+
+
+def test_plan_command_writes_ics_and_json(db_path: Path, tmp_path: Path) -> None:
+    with Store.open(db_path) as store:
+        _fill(store)
+    ics = tmp_path / "round.ics"
+    result = runner.invoke(
+        app,
+        [
+            "plan",
+            "--db",
+            str(db_path),
+            "--from",
+            "2026-03-02",
+            "--days",
+            "30",
+            "--start",
+            "52.0,-1.0",
+            "--ics",
+            str(ics),
+            "--json",
+        ],
+    )
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.output)
+    visits = [v for d in data["days"] for v in d["visits"]]
+    assert len(visits) == 5
+    assert [c["site"] for c in data["no_position"]] == ["Hall 5"]
+    assert len(list(Calendar.from_ical(ics.read_bytes()).walk("VEVENT"))) == 5
+
+
+def test_plan_command_saved_depot_drop_pin_and_drafts(db_path: Path) -> None:
+    with Store.open(db_path) as store:
+        _fill(store)
+    saved = runner.invoke(app, ["plan", "--db", str(db_path), "--save-depot", "52.0,-1.0"])
+    assert saved.exit_code == 0, saved.output
+    result = runner.invoke(
+        app,
+        [
+            "plan",
+            "--db",
+            str(db_path),
+            "--from",
+            "2026-03-02",
+            "--drop",
+            "Hall 1",
+            "--pin",
+            "Hall 4",
+            "--create-drafts",
+            "--json",
+        ],
+    )
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.output)
+    assert data["depot"] == {"latitude": 52.0, "longitude": -1.0}
+    assert [c["site"] for c in data["dropped"]] == ["Hall 1"]
+    assert "Hall 4" in [v["site"] for v in data["days"][0]["visits"]]
+    assert data["drafts_created"] == 4
+
+
+@pytest.mark.parametrize(
+    ("args", "words"),
+    [
+        (["--from", "2 March"], "--from"),
+        (["--days", "0"], "--days"),
+        (["--start", "52"], "--start"),
+        (["--start", "52,-1", "--hours-per-day", "25"], "--hours-per-day"),
+        (["--start", "52,-1", "--speed", "0"], "--speed"),
+        (["--start", "52,-1", "--drop", "Nowhere"], "--drop"),
+        ([], "--save-depot"),
+    ],
+)
+def test_plan_command_bad_input_exits_2_and_says_why(
+    db_path: Path, args: list[str], words: str
+) -> None:
+    with Store.open(db_path) as store:
+        _fill(store)
+    result = runner.invoke(app, ["plan", "--db", str(db_path), *args])
+    assert result.exit_code == 2
+    assert words in result.output
