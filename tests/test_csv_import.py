@@ -128,8 +128,9 @@ def test_mapping_mistakes_are_named(site, tmp_path):
 def test_dry_run_saves_nothing_and_a_second_import_skips_what_is_there(site, tmp_path):
     store, records = site
     path = _csv(tmp_path, "Point,Date,Reading\nTJ-01,2026-06-02 11:00,0.05\n")
-    args = (store, path, records.inspection.id, ColumnMap.parse("tag=Point,value=Reading,taken_at=Date"),
-            CsvOptions(quantity=Quantity.BONDING, method=Method.LOW_OHM_4W))  # fmt: skip
+    mapping = ColumnMap.parse("tag=Point,value=Reading,taken_at=Date")
+    options = CsvOptions(quantity=Quantity.BONDING, method=Method.LOW_OHM_4W)
+    args = (store, path, records.inspection.id, mapping, options)
     assert import_readings_csv(*args, dry_run=True).added == 1
     assert _new_readings(store, records) == []
     assert import_readings_csv(*args).added == 1
