@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 from engine_factories import SiteBuilder
 from icalendar import Calendar
-from typer.testing import CliRunner
+from typer.testing import CliRunner, Result
 
 from inspectkit.cli import app
 from inspectkit.model import ComponentKind, InspectionKind
@@ -97,26 +97,30 @@ def test_table_shows_each_day_and_the_site_without_position(plan: RoundPlan) -> 
     assert "back at the depot" in text
 
 
-def test_plan_command_writes_ics_and_json(db_path: Path, tmp_path: Path) -> None:
+@pytest.fixture
+def demo_db(db_path: Path) -> Path:
     with Store.open(db_path) as store:
         _fill(store)
+    return db_path
+
+
+def _plan(db: Path, *args: str) -> Result:
+    return runner.invoke(app, ["plan", "--db", str(db), *args])
+
+
+def test_plan_command_writes_ics_and_json(demo_db: Path, tmp_path: Path) -> None:
     ics = tmp_path / "round.ics"
-    result = runner.invoke(
-        app,
-        [
-            "plan",
-            "--db",
-            str(db_path),
-            "--from",
-            "2026-03-02",
-            "--days",
-            "30",
-            "--start",
-            "52.0,-1.0",
-            "--ics",
-            str(ics),
-            "--json",
-        ],
+    result = _plan(
+        demo_db,
+        "--from",
+        "2026-03-02",
+        "--days",
+        "30",
+        "--start",
+        "52.0,-1.0",
+        "--ics",
+        str(ics),
+        "--json",
     )
     assert result.exit_code == 0, result.output
     data = json.loads(result.output)
@@ -126,26 +130,19 @@ def test_plan_command_writes_ics_and_json(db_path: Path, tmp_path: Path) -> None
     assert len(list(Calendar.from_ical(ics.read_bytes()).walk("VEVENT"))) == 5
 
 
-def test_plan_command_saved_depot_drop_pin_and_drafts(db_path: Path) -> None:
-    with Store.open(db_path) as store:
-        _fill(store)
-    saved = runner.invoke(app, ["plan", "--db", str(db_path), "--save-depot", "52.0,-1.0"])
+def test_plan_command_saved_depot_drop_pin_and_drafts(demo_db: Path) -> None:
+    saved = _plan(demo_db, "--save-depot", "52.0,-1.0")
     assert saved.exit_code == 0, saved.output
-    result = runner.invoke(
-        app,
-        [
-            "plan",
-            "--db",
-            str(db_path),
-            "--from",
-            "2026-03-02",
-            "--drop",
-            "Hall 1",
-            "--pin",
-            "Hall 4",
-            "--create-drafts",
-            "--json",
-        ],
+    result = _plan(
+        demo_db,
+        "--from",
+        "2026-03-02",
+        "--drop",
+        "Hall 1",
+        "--pin",
+        "Hall 4",
+        "--create-drafts",
+        "--json",
     )
     assert result.exit_code == 0, result.output
     data = json.loads(result.output)
@@ -168,10 +165,8 @@ def test_plan_command_saved_depot_drop_pin_and_drafts(db_path: Path) -> None:
     ],
 )
 def test_plan_command_bad_input_exits_2_and_says_why(
-    db_path: Path, args: list[str], words: str
+    demo_db: Path, args: list[str], words: str
 ) -> None:
-    with Store.open(db_path) as store:
-        _fill(store)
-    result = runner.invoke(app, ["plan", "--db", str(db_path), *args])
+    result = _plan(demo_db, *args)
     assert result.exit_code == 2
     assert words in result.output
