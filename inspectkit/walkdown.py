@@ -50,7 +50,8 @@ from inspectkit.units import UnitError, format_value, parse
 
 #: What can be measured on each kind of component during a walkdown, in entry order.
 #: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
-#: are judged by eye only.
+#: are judged by eye only. A test joint with an electrode below it asks only for the
+#: combined reading: the isolated one is the electrode's (see `walking_order`).
 QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
     ComponentKind.AIR_TERMINAL: (),
     ComponentKind.AIR_CONDUCTOR: (Quantity.CONTINUITY,),
@@ -60,11 +61,7 @@ QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
         Quantity.EARTH_COMBINED,
         Quantity.SOIL_RESISTIVITY,
     ),
-    ComponentKind.EARTH_ELECTRODE: (
-        Quantity.EARTH_ISOLATED,
-        Quantity.EARTH_COMBINED,
-        Quantity.SOIL_RESISTIVITY,
-    ),
+    ComponentKind.EARTH_ELECTRODE: (Quantity.EARTH_ISOLATED, Quantity.SOIL_RESISTIVITY),
     ComponentKind.BONDING: (Quantity.BONDING,),
     ComponentKind.SPD: (),
     ComponentKind.STRIKE_COUNTER: (Quantity.STRIKE_COUNT,),
@@ -162,7 +159,13 @@ def walking_order(components: Iterable[Component], on: date | None = None) -> li
         if component.id in seen:  # a parent loop in bad data must not hang the walk
             return
         seen.add(component.id)
-        stops.append(Stop(component, depth, QUANTITIES_FOR[component.kind]))
+        quantities = QUANTITIES_FOR[component.kind]
+        if component.kind is ComponentKind.TEST_JOINT and any(
+            c.kind is ComponentKind.EARTH_ELECTRODE for c in children.get(component.id, [])
+        ):
+            # The electrode below carries its own isolated reading; the joint, the system's.
+            quantities = (Quantity.EARTH_COMBINED,)
+        stops.append(Stop(component, depth, quantities))
         for child in sorted(children.get(component.id, []), key=order):
             visit(child, depth + 1)
 

@@ -61,6 +61,8 @@ def test_walking_order_goes_roof_then_each_down_conductor_with_its_joint_and_ele
         "BD-01", "SPD-01", "SC-01",
     ]  # fmt: skip
     assert [s.depth for s in stops[3:6]] == [0, 1, 2]
+    assert stops[4].quantities == (Quantity.EARTH_COMBINED,)  # the electrode has the isolated
+    assert stops[5].quantities == (Quantity.EARTH_ISOLATED, Quantity.SOIL_RESISTIVITY)
     assert "AT-09" not in {s.component.tag for s in stops}  # retired
 
 
@@ -86,7 +88,7 @@ def test_start_refuses_a_future_date(store: Store, site: WalkSite) -> None:
 def test_passing_reading_is_saved_and_compared_with_the_last_visit(
     store: Store, site: WalkSite, visit: Inspection
 ) -> None:
-    tj = site.tag("TJ-01")
+    tj = site.tag("ER-01")
     outcome = record_reading(store, visit.id, tj.id, Quantity.EARTH_ISOLATED, "4.48 Ω")
     # IEC 62305-3 clause 5.4 (as quoted): 10 Ω; the iec-62305-3 profile applies it per electrode.
     assert outcome.limit == 10.0
@@ -102,21 +104,21 @@ def test_passing_reading_is_saved_and_compared_with_the_last_visit(
 def test_failing_reading_says_fail_with_the_limit(
     store: Store, site: WalkSite, visit: Inspection
 ) -> None:
-    outcome = record_reading(store, visit.id, site.tag("TJ-02").id, "earth_isolated", "14")
+    outcome = record_reading(store, visit.id, site.tag("ER-02").id, "earth_isolated", "14")
     assert outcome.severity is Severity.FAIL and outcome.passed is False
     assert outcome.verdict == "FAIL 14 Ω > 10 Ω"
     assert any("above the 10 Ω limit" in m for m in outcome.messages)
 
 
 def test_over_range_fails(store: Store, site: WalkSite, visit: Inspection) -> None:
-    outcome = record_reading(store, visit.id, site.tag("TJ-02").id, "earth_isolated", "OL")
+    outcome = record_reading(store, visit.id, site.tag("ER-02").id, "earth_isolated", "OL")
     assert outcome.severity is Severity.FAIL
     assert outcome.verdict.startswith("FAIL OL")
 
 
 def test_rise_on_the_baseline_is_watch(store: Store, site: WalkSite, visit: Inspection) -> None:
     # 6.5 Ω against a 4.0 Ω baseline is +62 %, above the profile's 50 % step (our default).
-    outcome = record_reading(store, visit.id, site.tag("TJ-03").id, "earth_isolated", "6.5")
+    outcome = record_reading(store, visit.id, site.tag("ER-03").id, "earth_isolated", "6.5")
     assert outcome.severity is Severity.WATCH
     assert outcome.verdict == "WATCH 6.5 Ω ≤ 10 Ω"
     assert outcome.comparison == f"+62 % on {EARLIER.isoformat()}"
@@ -142,7 +144,7 @@ def test_counter_rise_shows_the_count_and_asks_for_a_post_strike_visit(
 def test_typing_again_corrects_the_same_reading(
     store: Store, site: WalkSite, visit: Inspection
 ) -> None:
-    tj = site.tag("TJ-01")
+    tj = site.tag("ER-01")
     first = record_reading(store, visit.id, tj.id, "earth_isolated", "40")
     second = record_reading(store, visit.id, tj.id, "earth_isolated", "4.1")
     assert first.reading.id == second.reading.id
@@ -153,8 +155,8 @@ def test_typing_again_corrects_the_same_reading(
 @pytest.mark.parametrize(
     ("tag", "quantity", "text", "field", "words"),
     [
-        ("TJ-01", "earth_isolated", "four", "value", "earth resistance"),
-        ("TJ-01", "earth_isolated", "3 kV", "value", ""),
+        ("ER-01", "earth_isolated", "four", "value", "earth resistance"),
+        ("ER-01", "earth_isolated", "3 kV", "value", ""),
         ("DC-01", "earth_isolated", "3.9", "quantity", "not measured on a down conductor"),
         ("SPD-01", "continuity", "0.1", "quantity", "readings here: none"),
     ],
@@ -182,7 +184,7 @@ def test_wrong_method_is_refused_by_the_model(
     store: Store, site: WalkSite, visit: Inspection
 ) -> None:
     with pytest.raises(WalkdownError) as err:
-        record_reading(store, visit.id, site.tag("TJ-01").id, "earth_isolated", "3", "clamp_on")
+        record_reading(store, visit.id, site.tag("ER-01").id, "earth_isolated", "3", "clamp_on")
     assert "clamp_on does not measure" in str(err.value)
 
 
@@ -208,7 +210,7 @@ def test_photo_from_a_file_and_from_a_folder_matched_by_time(
     walk = build_walk_site(db)
     visit = start_inspection(db, walk.site.id, "complete", None, TODAY)
     at = datetime(2026, 6, 1, 9, 0, tzinfo=UTC)
-    tj1, tj2 = walk.tag("TJ-01"), walk.tag("TJ-02")
+    tj1, tj2 = walk.tag("ER-01"), walk.tag("ER-02")
     record_reading(db, visit.id, tj1.id, "earth_isolated", "3.9", taken_at=at)
     record_reading(db, visit.id, tj2.id, "earth_isolated", "4.2", taken_at=at + timedelta(hours=1))
     card = tmp_path / "card"
@@ -235,7 +237,7 @@ def test_missing_lists_the_engines_gaps_then_ungraded_parts(
     store: Store, site: WalkSite, visit: Inspection
 ) -> None:
     for n in (1, 2):
-        record_reading(store, visit.id, site.tag(f"TJ-0{n}").id, "earth_isolated", "4")
+        record_reading(store, visit.id, site.tag(f"ER-0{n}").id, "earth_isolated", "4")
         record_reading(store, visit.id, site.tag(f"DC-0{n}").id, "continuity", "0.1")
     missing = missing_for_completion(store, visit.id)
     assert "isolated earth reading for ER-03" in missing[0].what
@@ -266,7 +268,7 @@ def test_signed_inspection_refuses_entries(store: Store, site: WalkSite) -> None
         )
     )
     with pytest.raises(WalkdownError) as err:
-        record_reading(store, signed.id, site.tag("TJ-01").id, "earth_isolated", "3")
+        record_reading(store, signed.id, site.tag("ER-01").id, "earth_isolated", "3")
     assert "signed" in str(err.value)
 
 

@@ -48,8 +48,8 @@ class WalkSite:
 def build_walk_site(store: Store, *, down_conductors: int = 3) -> WalkSite:
     """An invented level II depot: roof, down conductors with test joints and rods, bonding.
 
-    The earlier visit (2025-06-03, complete, signed-off as finished) measured every
-    test joint isolated at 4.0 Ω, every down conductor's continuity at 0.10 Ω and
+    The earlier visit (2025-06-03, complete, marked finished) measured every
+    electrode isolated at 4.0 Ω, every down conductor's continuity at 0.10 Ω and
     the strike counter at 7.
     """
     site = Site(
@@ -103,7 +103,7 @@ def build_walk_site(store: Store, *, down_conductors: int = 3) -> WalkSite:
     for tag, quantity, value, method, joint in [
         *(
             (
-                f"TJ-{n:02d}",
+                f"ER-{n:02d}",
                 Quantity.EARTH_ISOLATED,
                 4.0,
                 Method.FALL_OF_POTENTIAL_3P,
