@@ -112,7 +112,7 @@ class SiteScreen(Screen[None]):
     def on_mount(self) -> None:
         self.tree.show_root = False
         for table_id, columns in (
-            ("trends", ("Electrode", "Readings", "Ω/year", "Crosses limit", "Trend")),
+            ("trends", ("Electrode", "Trend", "Ω/year", "Crosses limit", "Note")),
             ("findings", ("Tag", "Grade", "Due by", "Finding")),
             ("visits", ("Date", "Kind", "State", "Inspector")),
             ("schedule", ("Due", "Inspection", "Status", "Why")),
