@@ -9,7 +9,7 @@ replaced by its amendment, so a correction is judged and trended once.
 from __future__ import annotations
 
 from collections import Counter
-from datetime import date, datetime
+from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import SiteCheck, check_site
 from inspectkit.engine.history import as_of, calibration_lapsed, electrode_count, series, usable
@@ -93,6 +93,9 @@ _KIND_TITLES = {
     InspectionKind.AMENDMENT: "Amended inspection report",
 }
 
+
+#: Trend charts look this far past the last reading at least (our default).
+CHART_YEARS_AHEAD = 3
 
 #: How each method is written in a report.
 METHOD_WORDS = {
@@ -246,7 +249,15 @@ def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | No
     fit: tuple[tuple[date, float], ...] = ()
     if trend.forecast and trend.last_day and trend.first_day and trend.fitted_last is not None:
         slope = trend.slope_ohm_per_year or 0.0
-        end = max(d for d in (trend.last_day, trend.crossing, trend.next_complete) if d)
+        # Carry the line to the next complete inspection (at least a few years on),
+        # and to the crossing when it falls within that; a crossing decades away
+        # would squash the readings into a corner, and the summary gives its date.
+        horizon = max(
+            trend.next_complete or trend.last_day,
+            trend.last_day + timedelta(days=round(CHART_YEARS_AHEAD * YEAR_DAYS)),
+        )
+        end = trend.crossing if trend.crossing and trend.last_day < trend.crossing <= horizon \
+            else horizon
 
         def at(day: date) -> float:
             return max(0.0, trend.fitted_last + slope * (day - trend.last_day).days / YEAR_DAYS)
@@ -308,7 +319,8 @@ def revision_of(inspection: Inspection) -> int:
 def _revision_label(inspection: Inspection, signing: datetime | None) -> str:
     revision = revision_of(inspection)
     if inspection.state is InspectionState.SIGNED and inspection.signed_at:
-        return f"revision {revision}, signed {inspection.signed_at.date().isoformat()}"
+        return (f"revision {revision}, copy of the report signed "
+                f"{inspection.signed_at.date().isoformat()}")
     if signing is not None:
         return f"revision {revision}, signed {signing.date().isoformat()}"
     return f"revision {revision}, DRAFT (not signed)"

@@ -393,12 +393,19 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
             "Earth resistance of each electrode over the years, with a robust fitted line "
             "(Theil–Sen) carried forward to show when it would reach its limit.",
             styles["small"]))
-        for chart in content.trends:
-            add(KeepTogether([
-                trend_drawing(chart, width, 62 * mm, branding.primary),
-                Paragraph(_text(chart.summary), styles["small"]),
-                Spacer(1, 4 * mm),
-            ]))
+        charts = [
+            [trend_drawing(chart, width / 2 - 4, 58 * mm, branding.primary),
+             Paragraph(_text(chart.summary), styles["small"])]
+            for chart in content.trends
+        ]
+        rows = [charts[i : i + 2] for i in range(0, len(charts), 2)]
+        if rows and len(rows[-1]) == 1:
+            rows[-1].append("")
+        grid = Table(rows, colWidths=[width / 2, width / 2])
+        grid.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP"),
+                                  ("LEFTPADDING", (0, 0), (-1, -1), 0),
+                                  ("BOTTOMPADDING", (0, 0), (-1, -1), 8)]))
+        add(grid)
 
     if content.general_photos:
         add(CondPageBreak(80 * mm))
