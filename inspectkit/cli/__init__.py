@@ -17,7 +17,7 @@ from inspectkit import __version__
 from inspectkit.cli.common import DbOption, resolve_db
 
 #: Modules under inspectkit.cli that add commands.
-COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify")
+COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify", "upkeep")
 
 app = typer.Typer(
     name="inspectkit",

@@ -1,0 +1,79 @@
+"""`inspectkit backup` and `inspectkit doctor`: keeping the database safe and sound."""
+
+from __future__ import annotations
+
+import sqlite3
+from datetime import datetime
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+
+
+def default_backup_path(db_path: Path, now: datetime) -> Path:
+    """`inspect.sqlite` → `inspect.sqlite.20261201-165300.bak`, beside the database."""
+    return db_path.with_name(f"{db_path.name}.{now:%Y%m%d-%H%M%S}.bak")
+
+
+def backup(
+    ctx: typer.Context,
+    out: Annotated[
+        Path | None,
+        typer.Option(
+            "-o", "--out", help="Backup file (default: timestamped, beside the db).", dir_okay=False
+        ),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """Copy the database with SQLite's online backup: safe while the TUI or a command writes."""
+    with open_store(ctx, db) as store:
+        target = out or default_backup_path(store.path, datetime.now())
+        if target.exists():
+            fail(f"{target} exists already; give another -o FILE")
+        if target.resolve() == store.path.resolve():
+            fail("-o names the database itself; give another file")
+        store.backup(target)
+        photos = store.photos_dir
+    with sqlite3.connect(target) as check:
+        status = check.execute("PRAGMA quick_check").fetchone()[0]
+    check.close()
+    if status != "ok":
+        fail(f"the backup {target} failed its check ({status}); run `inspectkit doctor`", Exit.ACT)
+    typer.echo(f"Backed up to {target} (checked: ok).")
+    if photos.is_dir():
+        typer.echo(f"Photos are not in the backup: copy the folder {photos} as well.")
+
+
+def doctor(
+    ctx: typer.Context,
+    quick: Annotated[
+        bool, typer.Option("--quick", help="Do not read photo files to check their hashes.")
+    ] = False,
+    db: DbOption = None,
+    json_out: JsonOption = False,
+) -> None:
+    """Check the database file, the audit log and the photo folder; say how to fix each problem.
+
+    Exit 1 when a problem was found.
+    """
+    from inspectkit.store.health import check_health
+
+    with open_store(ctx, db) as store:
+        problems = check_health(store, hash_photos=not quick)
+    if json_out:
+        emit_json([p.__dict__ for p in problems])
+    elif not problems:
+        typer.echo("No problems found: database intact, audit log matches, photos all present.")
+    else:
+        for p in problems:
+            typer.echo(f"{p.check}: {p.subject}: {p.message}\n  fix: {p.fix}")
+        typer.echo(f"{len(problems)} problem(s) found.")
+    if problems:
+        raise typer.Exit(int(Exit.ACT))
+
+
+def register(app: typer.Typer) -> None:
+    app.command("backup")(backup)
+    app.command("doctor")(doctor)

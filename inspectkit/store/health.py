@@ -1,0 +1,130 @@
+"""Health checks for `inspectkit doctor`: the database file, the audit chain, the photo folder.
+
+Every check only reads. Each problem comes with the way to fix it, because the
+person who runs the doctor is an inspector, not a database administrator.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from dataclasses import dataclass
+from pathlib import Path
+
+from inspectkit.store.database import Store
+from inspectkit.store.photos import file_sha256, photo_path
+
+
+@dataclass(frozen=True)
+class HealthProblem:
+    """One thing found wrong, and how to put it right.
+
+    Attributes:
+        check: Which check found it: integrity, audit, photo missing, photo damaged,
+            file not referenced.
+        subject: The table and row, or the file, it concerns.
+        message: What is wrong.
+        fix: What to do about it.
+    """
+
+    check: str
+    subject: str
+    message: str
+    fix: str
+
+
+def check_health(store: Store, *, hash_photos: bool = True) -> list[HealthProblem]:
+    """Every problem the doctor finds; an empty list means all is well.
+
+    Args:
+        store: The database to check.
+        hash_photos: Also read every photo file to check it against its hash (slow
+            for large folders).
+    """
+    problems = integrity_problems(store)
+    if problems:
+        # A damaged file makes the later checks fail half-way or say nonsense.
+        return problems
+    problems += audit_problems(store)
+    if store.path is not None:
+        problems += photo_problems(store, hash_photos=hash_photos)
+    return problems
+
+
+def integrity_problems(store: Store) -> list[HealthProblem]:
+    """SQLite's own check of the file's pages, indexes and constraints."""
+    try:
+        rows = [row[0] for row in store.db.execute("PRAGMA integrity_check")]
+        rows += [
+            f"{table} row {rowid} refers to a missing {parent} row"
+            for table, rowid, parent, _ in store.db.execute("PRAGMA foreign_key_check")
+        ]
+    except sqlite3.DatabaseError as exc:
+        rows = [f"the check itself failed: {exc}"]
+    if rows == ["ok"]:
+        return []
+    return [
+        HealthProblem(
+            "integrity",
+            str(store.path or "database"),
+            message,
+            "the database file is damaged: stop writing to it, keep a copy, and restore the "
+            "latest backup (`inspectkit backup` files or the .before-schema-N.bak files beside "
+            "it); then import the bundles made since that backup",
+        )
+        for message in rows
+        if message != "ok"
+    ]
+
+
+def audit_problems(store: Store) -> list[HealthProblem]:
+    """Records or audit rows changed behind inspectkit's back."""
+    return [
+        HealthProblem(
+            "audit",
+            f"{p.table} {p.row_id}",
+            p.message,
+            "someone changed the database outside inspectkit: compare the record with a "
+            "backup, put the old content back from it, and make the change through inspectkit",
+        )
+        for p in store.verify_audit()
+    ]
+
+
+def photo_problems(store: Store, *, hash_photos: bool = True) -> list[HealthProblem]:
+    """Photo records without their file, damaged files, and files no record names."""
+    folder = store.photos_dir
+    problems = []
+    expected: dict[Path, str] = {}
+    for photo_id, sha in store.db.execute("SELECT id, sha256 FROM photo ORDER BY id"):
+        expected.setdefault(photo_path(store, sha), photo_id)
+    for path, photo_id in expected.items():
+        restore = (
+            f"import a bundle that holds this photo (`inspectkit import BUNDLE` puts back missing "
+            f"files), or copy {path.name} from a backup of {folder} to {path}"
+        )
+        if not path.is_file():
+            problems.append(
+                HealthProblem("photo missing", f"photo {photo_id}", f"{path} is missing", restore)
+            )
+        elif hash_photos and file_sha256(path) != path.name:
+            problems.append(
+                HealthProblem(
+                    "photo damaged",
+                    f"photo {photo_id}",
+                    f"{path} no longer matches its hash",
+                    f"delete the damaged file, then {restore}",
+                )
+            )
+    if folder.is_dir():
+        for path in sorted(p for p in folder.rglob("*") if p.is_file()):
+            if path not in expected:
+                problems.append(
+                    HealthProblem(
+                        "file not referenced",
+                        str(path),
+                        "no photo record names this file",
+                        "nothing needs it: delete it to free the space, or attach it again "
+                        "if it was meant to be a photo of an inspection",
+                    )
+                )
+    return problems
