@@ -6,7 +6,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from inspectkit.plan.days import split_days
+from inspectkit.plan.days import split_cycle, split_days
 from inspectkit.plan.geo import Point, distance_matrix
 from inspectkit.plan.route import plan_route
 
@@ -33,7 +33,10 @@ def test_days_never_exceed_the_day_length(sites: list[tuple[Point, float]], hour
     days = split_days(route, onsite.__getitem__, dist, day_minutes, _drive)
     # Every site once, in route order, and no visit split across days.
     assert [leg.node for d in days for leg in d.legs] == route
-    for d in days:
+    entered = split_cycle(route, onsite.__getitem__, dist, day_minutes, _drive)
+    assert sorted(leg.node for d in entered for leg in d.legs) == sorted(route)
+    assert len(entered) <= len(days)
+    for d in days + entered:
         if d.too_long:
             assert len(d.legs) == 1
             assert d.minutes > day_minutes
@@ -103,3 +106,19 @@ def test_the_cut_that_drives_least_among_the_fewest_days() -> None:
 
 def test_empty_route_has_no_days() -> None:
     assert split_days([], lambda n: 0.0, [[0.0]], 480, lambda km: km) == []
+
+
+def test_a_closed_tour_is_entered_where_it_gives_fewest_days() -> None:
+    # Tour 1-2-3-4 round the depot; 4 and 1 are close together, as are 2 and 3. Entered
+    # at 1, days are [1], [2, 3], [4]; entered at 4, [4, 1], [2, 3]: one day fewer.
+    dist = [
+        [0, 10, 10, 10, 10],
+        [10, 0, 15, 15, 1],
+        [10, 15, 0, 1, 15],
+        [10, 15, 1, 0, 15],
+        [10, 1, 15, 15, 0],
+    ]
+    onsite = {1: 100.0, 2: 100.0, 3: 100.0, 4: 100.0}
+    assert len(split_days([1, 2, 3, 4], onsite.__getitem__, dist, 230, lambda km: km)) == 3
+    days = split_cycle([1, 2, 3, 4], onsite.__getitem__, dist, 230, lambda km: km)
+    assert sorted(sorted(leg.node for leg in d.legs) for d in days) == [[1, 4], [2, 3]]

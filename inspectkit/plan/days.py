@@ -12,6 +12,10 @@ from dataclasses import dataclass
 
 from inspectkit.plan.route import Matrix
 
+#: Entry points into a closed tour tried when cutting it into days (our default):
+#: all of them for rounds up to this size, evenly spread ones above.
+ROTATIONS = 64
+
 
 @dataclass(frozen=True)
 class Leg:
@@ -132,3 +136,33 @@ def _day(
     km = dist[here][depot]
     home = drive(km)
     return DaySplit(tuple(legs), km, home, clock + home > day_minutes)
+
+
+def split_cycle(
+    cycle: Sequence[int],
+    onsite: Callable[[int], float],
+    dist: Matrix,
+    day_minutes: float,
+    drive: Callable[[float], float],
+    depot: int = 0,
+    starts: int = ROTATIONS,
+) -> list[DaySplit]:
+    """Working days for a closed tour, cut where it gives the fewest days, then the least time.
+
+    Every day starts from the depot, so the tour may be entered at any site: up to
+    `starts` entry points, spread evenly round it, are each split with `split_days`
+    and the best is kept. Going round the other way gives the same days reversed, as
+    distances are the same both ways.
+    """
+    n = len(cycle)
+    if n == 0:
+        return []
+    best: list[DaySplit] | None = None
+    best_key: tuple[int, float] | None = None
+    for k in sorted({i * n // min(n, starts) for i in range(min(n, starts))}):
+        days = split_days([*cycle[k:], *cycle[:k]], onsite, dist, day_minutes, drive, depot)
+        key = (len(days), sum(d.minutes for d in days))
+        if best_key is None or key < best_key:
+            best, best_key = days, key
+    assert best is not None
+    return best

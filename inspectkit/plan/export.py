@@ -115,20 +115,21 @@ def render_table(plan: RoundPlan) -> str:
         note = f"  [{'; '.join(flags)}]" if flags else ""
         lines += ["", f"{d.day.strftime('%a %Y-%m-%d')}  {d.km:.0f} km{note}"]
         width = max(len(v.candidate.site.name) for v in d.visits)
+        kinds = max(len("kind"), *(len(v.candidate.kind_label) for v in d.visits))
         lines.append(
-            f"  {'#':>2}  {'site':<{width}}  {'kind':<20}  {'on site':>7}  "
+            f"  {'#':>2}  {'site':<{width}}  {'kind':<{kinds}}  {'on site':>7}  "
             f"{'travel':>13}  {'arrive':>6}  {'leave':>5}"
         )
         for v in d.visits:
             c = v.candidate
             late = f"  overdue {c.overdue_days} d" if c.overdue_days else ""
             lines.append(
-                f"  {v.order:>2}  {c.site.name:<{width}}  {c.kind_label:<20}  "
+                f"  {v.order:>2}  {c.site.name:<{width}}  {c.kind_label:<{kinds}}  "
                 f"{_hhmm(c.onsite_minutes):>7}  {v.km:>5.1f} km {_hhmm(v.drive_minutes):>4}  "
                 f"{v.arrive.strftime('%H:%M'):>6}  {v.leave.strftime('%H:%M'):>5}{late}"
             )
         lines.append(
-            f"  {'':>2}  {'back at the depot':<{width}}  {'':<20}  {'':>7}  "
+            f"  {'':>2}  {'back at the depot':<{width}}  {'':<{kinds}}  {'':>7}  "
             f"{d.home_km:>5.1f} km {_hhmm(d.home_minutes):>4}  {d.back.strftime('%H:%M'):>6}"
         )
     for title, group in (

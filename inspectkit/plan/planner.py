@@ -8,7 +8,7 @@ from datetime import date, datetime, timedelta
 
 from inspectkit.engine.schedule import schedule_site
 from inspectkit.model import SiteRecords
-from inspectkit.plan.days import DaySplit, split_days
+from inspectkit.plan.days import DaySplit, split_cycle, split_days
 from inspectkit.plan.geo import Point, PointError, distance_matrix, format_point, parse_point
 from inspectkit.plan.round import (
     Candidate,
@@ -163,9 +163,9 @@ def plan_round(
     """Route the candidates from the depot and cut the route into dated working days.
 
     The route is one closed tour (shortest found), cut into days that each start and
-    end at the depot. Each day is a loop of its own, so the days can be put in any
-    order at no cost in driving: they are dated most urgent first, by the most
-    urgent visit each holds.
+    end at the depot; a site too long for any day is given one alone and flagged.
+    Each day is a loop of its own, so the days can be put in any order at no cost in
+    driving: they are dated most urgent first, by the most urgent visit each holds.
 
     Args:
         candidates: the sites owing a visit.
@@ -186,16 +186,22 @@ def plan_round(
             no_position.append(c)
         else:
             kept.append(c)
-    points = [depot] + [c.point for c in kept]
-    dist = distance_matrix(points)  # type: ignore[arg-type]
-    route = plan_route(dist)[1:]
-    splits = split_days(
-        route,
-        lambda node: kept[node - 1].onsite_minutes,
-        dist,
-        settings.hours_per_day * 60,
-        lambda km: travel_minutes(km, settings),
-    )
+    dist = distance_matrix([depot] + [c.point for c in kept])  # type: ignore[misc]
+    day_minutes = settings.hours_per_day * 60
+
+    def drive(km: float) -> float:
+        return travel_minutes(km, settings)
+
+    def onsite(node: int) -> float:
+        return kept[node - 1].onsite_minutes
+
+    # A site too long for a day with nothing else gets a day of its own; routing it
+    # with the others would only cut the days either side of it short.
+    alone = [n for n in range(1, len(dist)) if 2 * drive(dist[0][n]) + onsite(n) > day_minutes]
+    routed = [0] + [n for n in range(1, len(dist)) if n not in set(alone)]
+    tour = plan_route([[dist[i][j] for j in routed] for i in routed])
+    splits = split_cycle([routed[i] for i in tour[1:]], onsite, dist, day_minutes, drive)
+    splits += [d for n in alone for d in split_days([n], onsite, dist, day_minutes, drive)]
     splits.sort(key=lambda s: min(priority_key(kept[leg.node - 1]) for leg in s.legs))
     dates = working_days(window.first, len(splits), settings)
     days = tuple(
