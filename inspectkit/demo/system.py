@@ -27,7 +27,7 @@ _COMPASS = (
     "north-west",
 )
 _ELECTRODE_MATERIAL = {
-    ElectrodeType.ROD: "copper-bonded steel rod 2.4 m",
+    ElectrodeType.ROD: "copper-bonded steel rods, coupled, driven 6 m",
     ElectrodeType.PLATE: "copper plate 600 × 600 mm",
     ElectrodeType.RING: "copper tape ring 25 × 3 mm",
     ElectrodeType.FOUNDATION: "foundation steel",

@@ -277,7 +277,7 @@ class SiteHistory:
         earth = quantity in (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED)
         method, joint = {
             Quantity.EARTH_ISOLATED: (Method.FALL_OF_POTENTIAL_3P, JointState.OPEN),
-            Quantity.EARTH_COMBINED: (Method.CLAMP_ON, JointState.CLOSED),
+            Quantity.EARTH_COMBINED: (Method.FALL_OF_POTENTIAL_3P, JointState.CLOSED),
             Quantity.STRIKE_COUNT: (Method.COUNTER_READ, None),
         }.get(quantity, (Method.LOW_OHM_4W, None))
         reading = Reading.model_validate(
