@@ -1,0 +1,336 @@
+"""Pilot tests of the walkdown screen: a whole walkdown on the demo database, and its details."""
+
+from __future__ import annotations
+
+from datetime import UTC, date, datetime, timedelta
+from pathlib import Path
+
+import pytest
+from textual.app import App
+from textual.pilot import Pilot
+from textual.widgets import RadioSet, Select, Static
+
+from inspectkit.cautions import ACKNOWLEDGED_SETTING
+from inspectkit.demo.generate import build_demo
+from inspectkit.engine.check import check_site
+from inspectkit.model import (
+    ComponentKind,
+    Finding,
+    Grade,
+    Inspection,
+    Instrument,
+    Photo,
+    Quantity,
+    Reading,
+    Severity,
+    SoilCondition,
+)
+from inspectkit.profiles import load_profile
+from inspectkit.store import Store
+from inspectkit.store.queries import find_site, load_site_records
+from inspectkit.tui.app import make_app
+from inspectkit.tui.screens.walkdown import WalkdownScreen
+from inspectkit.tui.widgets.reading_entry import ReadingEntry
+from inspectkit.tui.widgets.saving_field import SavingField
+from inspectkit.tui.widgets.tag_prompt import TagPrompt
+from inspectkit.walkdown import grade_component, record_reading, start_inspection, walk_for
+from tests.walkdown_factories import build_walk_site, write_photo
+
+ANCHOR = date(2026, 6, 1)
+DEMO_SITE = "Pellow Ridge Quarry Offices"
+
+
+class WalkHarness(App[None]):
+    """The walkdown screen alone on a store, as the site screen would push it."""
+
+    def __init__(self, path: Path, inspection_id: str) -> None:
+        super().__init__()
+        self.store = Store.open(path)
+        self.today = date.today()
+        self.inspection_id = inspection_id
+
+    def on_mount(self) -> None:
+        self.push_screen(WalkdownScreen(self.inspection_id))
+
+
+@pytest.fixture
+def walk_db(tmp_path: Path) -> tuple[Path, str]:
+    """A database with the small invented site and an open complete inspection."""
+    path = tmp_path / "walk.sqlite"
+    with Store.open(path) as store:
+        site = build_walk_site(store)
+        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+    return path, visit.id
+
+
+def screen_of(app: App[None]) -> WalkdownScreen:
+    screen = app.screen
+    assert isinstance(screen, WalkdownScreen)
+    return screen
+
+
+async def type_into(pilot: Pilot[None], field: SavingField, text: str, keys: bool = False) -> None:
+    """Put text in a field and leave it with Enter: keys one by one only when that is tested."""
+    field.input.focus()
+    if keys:
+        field.input.value = ""
+        await pilot.press(*text)
+    else:
+        field.input.value = text
+    await pilot.press("enter")
+
+
+async def grade(pilot: Pilot[None], screen: WalkdownScreen, which: Grade) -> None:
+    """Choose a grade with the arrow keys and Enter, as an inspector would."""
+    screen.query_one("#grade", RadioSet).focus()
+    steps = {Grade.SOUND: 0, Grade.NEEDS_ATTENTION: 1, Grade.DEFECT: 2}[which]
+    await pilot.press(*(["right"] * steps), "enter")
+
+
+def status_of(field: SavingField) -> str:
+    return str(field.query_one(".status", Static).render())
+
+
+# ------------------------------------------------------------- the whole walk
+
+
+async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
+    db_path = build_demo(tmp_path / "demo.sqlite", anchor=ANCHOR)
+    today = date.today()
+    with Store.open(db_path) as store:
+        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+        hired = store.save(
+            Instrument(
+                description="Earth tester (hired)",
+                serial="HIRE-0042",
+                calibration_due=today + timedelta(days=365),
+            )
+        )
+        site = find_site(store, DEMO_SITE)
+        assert site is not None
+    photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", datetime.now(UTC))
+
+    app = make_app(db_path, today=today)
+    async with app.run_test(size=(80, 24)) as pilot:
+        # What the site screen does on its walkdown key.
+        visit = start_inspection(app.store, site.id, "complete", None, app.today)
+        await app.push_screen(WalkdownScreen(visit.id))
+        await pilot.pause()
+        screen = screen_of(app)
+        screen.query_one("#instrument", Select).value = hired.id
+        screen.query_one("#soil", Select).value = SoilCondition.NORMAL.value
+        await pilot.pause()
+
+        shown: dict[str, str] = {}
+        for index, stop in enumerate(screen.stops):
+            assert screen.stop.component.id == stop.component.id
+            tag = stop.component.tag
+            for entry in screen.query(ReadingEntry):
+                if entry.quantity is Quantity.SOIL_RESISTIVITY:
+                    continue
+                if tag == "E-02":
+                    await type_into(pilot, entry, "25", keys=True)  # the failing electrode
+                elif entry.quantity is Quantity.STRIKE_COUNT:
+                    await type_into(pilot, entry, "3")
+                elif entry.quantity in (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED):
+                    await type_into(pilot, entry, "4.2")
+                else:
+                    await type_into(pilot, entry, "120 mΩ")
+                shown[f"{tag} {entry.quantity.value}"] = status_of(entry)
+            if tag == "DC-03":
+                await grade(pilot, screen, Grade.DEFECT)
+                text = screen.query_one("#finding-text", SavingField)
+                await type_into(pilot, text, "guard at ground level broken")
+                remedy = screen.query_one("#finding-remedial", SavingField)
+                await type_into(pilot, remedy, "replace the guard")
+                due = screen.query_one("#finding-due", SavingField)
+                await type_into(pilot, due, (today + timedelta(days=30)).isoformat())
+            else:
+                await grade(pilot, screen, Grade.SOUND)
+            if tag == "TJ-01":
+                await type_into(pilot, screen.query_one("#photo", SavingField), str(photo))
+            if index < len(screen.stops) - 1:
+                await pilot.press("pagedown")
+                await pilot.pause()
+
+        # Words beside the colours, the moment a reading is entered.
+        assert "FAIL 25 Ω > 10 Ω" in shown["E-02 earth_isolated"]
+        assert "PASS 4.2 Ω ≤ 10 Ω" in shown["E-01 earth_isolated"]
+        assert "% on " in shown["E-01 earth_isolated"]  # against the last visit
+        assert all("✓ saved" in s for s in shown.values())
+
+        await pilot.press("ctrl+f")
+        await pilot.pause()
+        question = str(app.screen.query_one("#question", Static).render())
+        assert "Still missing" not in question
+        await pilot.press("y")
+        await pilot.pause()
+        assert not isinstance(app.screen, WalkdownScreen)
+        assert app.store.get_setting("instrument_id") == hired.id
+
+    with Store.open(db_path) as store:
+        done = store.get(Inspection, visit.id)
+        assert done is not None and done.finished and done.soil is SoilCondition.NORMAL
+        records = load_site_records(store, site.id)
+        parts = {c.id: c for c in records.components}
+        readings = [r for r in records.readings if r.inspection_id == visit.id]
+        joints = [c for c in parts.values() if c.kind is ComponentKind.TEST_JOINT]
+        electrodes = [c for c in parts.values() if c.kind is ComponentKind.EARTH_ELECTRODE]
+        by_part = {(parts[r.component_id].tag, r.quantity): r for r in readings}
+        for joint in joints:
+            assert (joint.tag, Quantity.EARTH_COMBINED) in by_part
+        for electrode in electrodes:
+            assert by_part[(electrode.tag, Quantity.EARTH_ISOLATED)].instrument_id == hired.id
+        assert by_part[("E-02", Quantity.EARTH_ISOLATED)].value == pytest.approx(25.0)
+        assert by_part[("E-01", Quantity.EARTH_ISOLATED)].soil is SoilCondition.NORMAL
+        findings = [f for f in records.findings if f.inspection_id == visit.id]
+        assert len(findings) == len([c for c in parts.values() if c.retired_on is None])
+        defect = next(f for f in findings if parts[f.component_id or ""].tag == "DC-03")
+        assert defect.grade is Grade.DEFECT and defect.remedial_action == "replace the guard"
+        photos = [p for p in records.photos if p.inspection_id == visit.id]
+        assert [parts[p.component_id or ""].tag for p in photos] == ["TJ-01"]
+        assert store.verify_audit() == []
+
+        check = check_site(records, load_profile(records.site.profile), today)
+        about = {(r.rule, r.component_tag, r.severity) for r in check.results}
+        assert ("limit", "E-02", Severity.FAIL) in about
+        assert ("carried-defect", "DC-03", Severity.WATCH) in about
+        assert not any(r.rule == "limit" and r.component_tag == "E-01" for r in check.results)
+        assert not any(
+            r.rule == "incomplete" and today.isoformat() in r.message for r in check.results
+        )
+
+
+# --------------------------------------------------------------------- details
+
+
+async def test_bad_input_says_what_is_expected_and_keeps_the_text(
+    walk_db: tuple[Path, str],
+) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        await screen.show_stop(
+            next(i for i, s in enumerate(screen.stops) if s.component.tag == "ER-01")
+        )
+        entry = screen.query_one("#q-earth_isolated", ReadingEntry)
+        await type_into(pilot, entry, "3,9 k", keys=False)
+        await type_into(pilot, entry, "four", keys=True)
+        assert "✗ not saved" in status_of(entry)
+        assert "earth resistance" in status_of(entry)
+        assert entry.input.value == "four"
+        assert app.store.select(Reading, "inspection_id = ?", [visit_id])[0].value == 3900.0
+        entry.input.value = "3.9"
+        entry.input.focus()
+        await pilot.press("tab")  # leaving the field saves it
+        await pilot.pause()
+        assert "PASS 3.9 Ω ≤ 10 Ω" in status_of(entry)
+        assert [r.value for r in app.store.select(Reading, "inspection_id = ?", [visit_id])] == [
+            3.9
+        ]
+
+
+async def test_unsaved_text_waits_and_moving_on_saves_it(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        await screen.show_stop(2)  # RC-01, continuity
+        entry = screen.query_one(ReadingEntry)
+        entry.input.focus()
+        await pilot.press(*"0.1")
+        assert "not saved yet" in status_of(entry)
+        assert app.store.select(Reading, "inspection_id = ?", [visit_id]) == []
+        await pilot.press("pagedown")
+        await pilot.pause()
+        assert screen.stop.component.tag == "DC-01"
+        saved = app.store.select(Reading, "inspection_id = ?", [visit_id])
+        assert [r.value for r in saved] == [pytest.approx(0.1)]
+
+
+async def test_a_defect_needs_words_before_it_is_saved(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        await grade(pilot, screen, Grade.DEFECT)
+        assert "not saved" in str(screen.query_one("#grade-status", Static).render())
+        assert app.store.select(Finding, "inspection_id = ?", [visit_id]) == []
+        await type_into(pilot, screen.query_one("#finding-text", SavingField), "tip bent")
+        findings = app.store.select(Finding, "inspection_id = ?", [visit_id])
+        assert [(f.grade, f.text) for f in findings] == [(Grade.DEFECT, "tip bent")]
+        assert "DEFECT" in str(screen.query_one("#grade-status", Static).render())
+
+
+async def test_jump_to_a_tag(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        await pilot.press("ctrl+g")
+        await pilot.pause()
+        assert isinstance(app.screen, TagPrompt)
+        await pilot.press(*"xx", "enter")
+        await pilot.pause()
+        assert "no component tagged XX" in str(app.screen.query_one("#tag-error").render())
+        app.screen.query_one("#tag").value = ""
+        await pilot.press(*"tj-03", "enter")
+        await pilot.pause()
+        assert app.screen is screen
+        assert screen.stop.component.tag == "TJ-03"
+
+
+async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    with Store.open(path) as store:
+        rc = walk_for(store, visit_id)[2].component
+        record_reading(store, visit_id, rc.id, "continuity", "0.15")
+        grade_component(store, visit_id, rc.id, "sound")
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        assert "done" in str(screen.stop_list.get_option_at_index(2).prompt)
+        await screen.show_stop(2)
+        entry = screen.query_one(ReadingEntry)
+        assert entry.input.value == "150 mΩ"
+        assert "✓ saved" in status_of(entry)
+
+
+async def test_finish_lists_what_is_missing_first(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+f")
+        await pilot.pause()
+        question = str(app.screen.query_one("#question", Static).render())
+        assert "Still missing" in question and "isolated earth reading for ER-01" in question
+        await pilot.press("n")
+        await pilot.pause()
+        assert isinstance(app.screen, WalkdownScreen)
+        inspection = app.store.get(Inspection, visit_id)
+        assert inspection is not None and not inspection.finished
+
+
+async def test_a_folder_of_photos_is_matched_by_time(
+    walk_db: tuple[Path, str], tmp_path: Path
+) -> None:
+    path, visit_id = walk_db
+    app = WalkHarness(path, visit_id)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = screen_of(app)
+        await screen.show_stop(2)
+        await type_into(pilot, screen.query_one(ReadingEntry), "0.1")
+        write_photo(tmp_path / "card" / "IMG_1.jpg", datetime.now(UTC))
+        await type_into(pilot, screen.query_one("#photo", SavingField), str(tmp_path / "card"))
+        await pilot.pause()
+        photos = app.store.select(Photo, "inspection_id = ?", [visit_id])
+        assert [p.component_id for p in photos] == [screen.stop.component.id]
+        assert "1 attached" in status_of(screen.query_one("#photo", SavingField))
