@@ -1,0 +1,154 @@
+"""Rendering: every reading's value, limit and result in the text; pages, photos, charts, footers."""
+
+from __future__ import annotations
+
+import io
+from dataclasses import replace
+from datetime import date
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+from reportlab import rl_config
+
+from inspectkit.report.branding import BrandingError, load_branding
+from inspectkit.report.content import CAUTIONS, Field, ReadingRow
+from inspectkit.report.model import build_report
+from inspectkit.report.photos import downscale
+from inspectkit.report.render import render_report
+from inspectkit.store import Store
+from inspectkit.units import format_value
+from test_report_factory import _jpeg, build_site
+
+
+@pytest.fixture(autouse=True)
+def _invariant(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Reproducible bytes: no creation dates or random ids in the PDF."""
+    monkeypatch.setattr(rl_config, "invariant", 1)
+
+
+@pytest.fixture
+def built(tmp_path: Path):
+    store = Store.open(tmp_path / "db.sqlite")
+    yield store, build_site(store, tmp_path)
+    store.close()
+
+
+def _text(data: bytes) -> tuple[PdfReader, list[str]]:
+    reader = PdfReader(io.BytesIO(data))
+    return reader, [" ".join(page.extract_text().split()) for page in reader.pages]
+
+
+def test_every_reading_value_limit_and_result_is_in_the_text(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    reader, pages = _text(render_report(content, load_branding()).data)
+    text = " ".join(pages)
+    assert len(content.readings) == len(made.readings) == 6
+    for reading in made.readings:
+        row = next(r for r in content.readings if r.reading_id == reading.id)
+        # The value as units.format_value writes it, e.g. "350 mΩ" (Ω must survive the font).
+        assert format_value(reading.value, reading.quantity) in text
+        assert row.limit in text
+        assert row.result.split(":")[0] in text
+    # Judged by the engine against the iec-62305-3 profile: continuity ≤ 0.2 Ω and
+    # isolated electrode ≤ 10 Ω (the profile's own sources are in its file).
+    results = {r.tag + " " + r.quantity: r.result for r in content.readings}
+    assert results["DC-02 continuity"].startswith("FAIL")
+    assert results["DC-01 continuity"] == "PASS"
+    assert results["E-02 earth resistance, electrode isolated"].startswith("FAIL")
+    assert results["E-01 earth resistance, electrode isolated"].startswith("WATCH")
+    assert "≤ 10 Ω" in text and "≤ 200 mΩ" in text
+    assert "Zoë Ångström-Müller" in text and "Müllerhof Granary" in text
+    assert content.verdict_word in text
+
+
+def test_pages_footers_cautions_and_deferral(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    rendered = render_report(content, load_branding())
+    reader, pages = _text(rendered.data)
+    assert rendered.pages == len(reader.pages) >= 4
+    for number, page in enumerate(pages, start=1):
+        assert f"page {number} of {len(pages)}" in page
+        assert made.current.id in page and "Müllerhof Granary" in page
+        assert "revision 1" in page
+    text = " ".join(pages)
+    for caution in CAUTIONS:
+        assert " ".join(caution.split())[:60] in text
+    assert "Local codes, the authority having jurisdiction" in text
+    assert "Roof over the kiln: no safe access." in text
+    assert "Kestrelmoor Lightning Maintenance" in text
+
+
+def test_photos_and_charts_are_in_the_pdf(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    reader, pages = _text(render_report(content, load_branding()).data)
+    images = sum(len(page.images) for page in reader.pages)
+    assert images == len(made.photo_ids) == 2
+    text = " ".join(pages)
+    assert "View 1 of the north façade" in text
+    # Both electrodes have three readings: a trend chart each, with the forecast crossing.
+    assert {t.tag for t in content.trends} == {"E-01", "E-02"}
+    assert "E-01: earth resistance (Ω)" in text and "E-02: earth resistance (Ω)" in text
+    assert "reaches limit 2026-06-21" in text
+
+
+def test_photo_choice_leaves_the_others_out(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id).without_photos({made.photo_ids[1]})
+    reader, _ = _text(render_report(content, load_branding()).data)
+    assert sum(len(page.images) for page in reader.pages) == 1
+
+
+def test_same_content_gives_the_same_bytes(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    assert render_report(content, load_branding()).data == render_report(
+        content, load_branding()
+    ).data
+
+
+def test_long_tables_split_with_the_header_repeated(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    row = content.readings[0]
+    many = tuple(replace(row, reading_id=str(n), tag=f"ZZ-{n:02d}") for n in range(90))
+    _, pages = _text(render_report(replace(content, readings=many), load_branding()).data)
+    with_rows = [p for p in pages if "ZZ-" in p]
+    assert len(with_rows) >= 2
+    for page in with_rows:
+        assert "Quantity, method" in page  # the header row again on every page of the table
+    assert all(f"ZZ-{n:02d}" in " ".join(pages) for n in range(90))
+
+
+def test_photos_are_upright_and_small(tmp_path: Path) -> None:
+    # EXIF orientation 6 = rotate 90° clockwise to display (EXIF 2.3, tag 0x0112).
+    path = _jpeg(tmp_path / "big.jpg", (4000, 3000), orientation=6)
+    small = downscale(path)
+    assert (small.width, small.height) == (750, 1000)
+    assert len(small.data) < 400_000
+
+
+def test_branding_errors_name_the_field(tmp_path: Path) -> None:
+    path = tmp_path / "report.toml"
+    path.write_text('[contractor]\nname = "X"\n[colours]\nprimary = "blue"\n', encoding="utf-8")
+    with pytest.raises(BrandingError, match="colours.primary"):
+        load_branding(path)
+    path.write_text('[contractor]\nname = ""\n', encoding="utf-8")
+    with pytest.raises(BrandingError, match="contractor.name"):
+        load_branding(path)
+
+
+def test_a_hand_built_report_renders_without_a_store(built) -> None:
+    store, made = built
+    content = replace(
+        build_report(store, made.current.id),
+        readings=(ReadingRow("r", "SPD-01", "surge protective device", "bonding resistance",
+                             "low-ohm, 4-wire", "0.9 Ω", "≤ 1 Ω", "PASS"),),
+        site=(Field("Client", "Ærø Ølstue"),),
+        inspection_date=date(2026, 1, 2),
+    )
+    _, pages = _text(render_report(content, load_branding()).data)
+    assert "Ærø Ølstue" in " ".join(pages) and "SPD-01" in " ".join(pages)
