@@ -62,7 +62,7 @@ class InspectApp(App[None]):
         self._today = today
         self.store = Store.open(self.db_path)
         self.settings = Preferences(self.store)
-        self.sub_title = str(self.db_path)
+        self.sub_title = self.db_path.name
 
     @property
     def today(self) -> date:

@@ -46,6 +46,10 @@ _DUE_WORDS = {
     DueStatus.OVERDUE: "overdue",
 }
 
+#: From this many lines up, every group of the tree starts open; below it only the
+#: groups with readings (and short ones) do, so the readings show on a small screen.
+TALL = 40
+
 #: Kinds of visit a walkdown can start, most usual first.
 WALKDOWN_KINDS = (
     InspectionKind.VISUAL,
@@ -159,7 +163,10 @@ class SiteScreen(Screen[None]):
             components = by_kind.get(kind, [])
             if not components:
                 continue
-            branch = tree.root.add(f"{kind.label} ({len(components)})", expand=True)
+            ids = {c.id for c in components}
+            measured = any(component_id in ids for component_id, _ in latest)
+            expand = measured or len(components) <= 3 or self.size.height >= TALL
+            branch = tree.root.add(f"{kind.label} ({len(components)})", expand=expand)
             for component in sorted(components, key=lambda c: c.tag):
                 label = Text(component.tag, style="bold")
                 if not in_service(component, today):

@@ -32,6 +32,23 @@ WIDE = 110
 BATCH = 250
 
 
+#: Widths of the columns whose content has a known size.
+FIXED_WIDTHS = {"state": 10, "level": 5, "due": 10, "kind": 14, "last": 10}
+
+
+def _column_widths(width: int, wide: bool) -> dict[str, int]:
+    """Widths of every column so the whole row fits across the terminal.
+
+    The fixed columns keep their width; name, client and town share what is left,
+    the name taking the largest part.
+    """
+    keys = [key for _, key in COLUMNS + (WIDE_COLUMNS if wide else ())]
+    fixed = sum(FIXED_WIDTHS[key] for key in keys if key in FIXED_WIDTHS)
+    free = max(30, width - fixed - 2 * len(keys) - 2)
+    name, client = free * 9 // 20, free * 7 // 20
+    return {**FIXED_WIDTHS, "name": name, "client": client, "town": free - name - client}
+
+
 @dataclass(frozen=True)
 class SiteRow:
     """One line of the list."""
@@ -127,15 +144,14 @@ class SitesScreen(Screen[None]):
     def _add_columns(self) -> None:
         table = self.table
         table.clear(columns=True)
+        widths = _column_widths(self.size.width, self.wide)
         for label, key in COLUMNS + (WIDE_COLUMNS if self.wide else ()):
-            table.add_column(label, key=key)
+            table.add_column(label, key=key, width=widths.get(key))
 
     def on_resize(self, event: events.Resize) -> None:
-        wide = event.size.width >= WIDE
-        if wide != self.wide:
-            self.wide = wide
-            self._add_columns()
-            self.rebuild()
+        self.wide = event.size.width >= WIDE
+        self._add_columns()
+        self.rebuild()
 
     def on_screen_resume(self) -> None:
         self.reload()
@@ -216,11 +232,10 @@ class SitesScreen(Screen[None]):
         self.show_status(len(rows))
 
     def _state_cells(self, row: SiteRow) -> tuple[Text, Text]:
-        """The state and next-due cells: the last visit, dimmed, until the state is known."""
+        """The state and next-due cells; both pending (…) until the state is known."""
         state = row.state
         if state is None:
-            last = row.last_visit.isoformat() if row.last_visit else "never"
-            return state_text(None), Text(f"last {last}", style="dim")
+            return state_text(None), state_text(None)
         return state_text(state.word), Text(state.next_due.isoformat() if state.next_due else "—")
 
     def _cells(self, row: SiteRow) -> tuple[object, ...]:
