@@ -381,6 +381,27 @@ def test_a_slip_in_the_scenario_names_the_key(tmp_path: Path) -> None:
         load_scenario(broken)
 
 
+@pytest.mark.parametrize(
+    ("slip", "message"),
+    [
+        ('at = "complete-2"\non = "DC-03"', "site aldermere: no visit 'complete-9'"),
+        ('tag = "E-04"', "site aldermere: no part tagged 'E-44'"),
+    ],
+)
+def test_a_slip_in_a_site_names_the_site(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, slip: str, message: str
+) -> None:
+    wrong = slip.replace("complete-2", "complete-9").replace("E-04", "E-44")
+    text = load_scenario_text()
+    assert slip in text
+    broken = tmp_path / "scenario.toml"
+    broken.write_text(text.replace(slip, wrong, 1), encoding="utf-8")
+    monkeypatch.setattr("inspectkit.demo.generate.load_scenario", lambda: load_scenario(broken))
+    with pytest.raises(ScenarioError, match=message):
+        build_demo(tmp_path / "demo.sqlite", ANCHOR)
+    assert not (tmp_path / "demo.sqlite").exists()
+
+
 def load_scenario_text() -> str:
     return scenario_path().read_text(encoding="utf-8")
 
@@ -401,3 +422,13 @@ def test_cli_writes_the_demo_and_lists_its_sites(tmp_path: Path) -> None:
     assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV"}
     again = runner.invoke(app, ["demo", "--out", str(out)])
     assert again.exit_code == 2
+
+
+def test_cli_reports_a_broken_scenario(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    broken = tmp_path / "scenario.toml"
+    broken.write_text(load_scenario_text().replace('level = "II"', 'level = "V"', 1), "utf-8")
+    monkeypatch.setattr("inspectkit.demo.generate.load_scenario", lambda: load_scenario(broken))
+    result = CliRunner().invoke(app, ["demo", "--out", str(tmp_path / "demo.sqlite")])
+    assert result.exit_code == 2
+    assert "site.0.level" in result.stderr
+    assert not (tmp_path / "demo.sqlite").exists()

@@ -41,16 +41,19 @@ def demo(
 ) -> None:
     """Open a fresh copy of the demo scenario, so the demo can't be spoiled."""
     from inspectkit.demo.generate import build_demo
+    from inspectkit.demo.scenario import ScenarioError
 
     day = _parse_day(anchor) or date.today()
+    if out is not None and out.exists():
+        fail(f"{out} exists already; give a new path for the demo database")
+    target = out or Path(tempfile.mkdtemp(prefix="inspectkit-demo-")) / "demo.sqlite"
+    try:
+        path = build_demo(target, anchor=day)
+    except ScenarioError as exc:
+        fail(str(exc))
     if out is not None:
-        if out.exists():
-            fail(f"{out} exists already; give a new path for the demo database")
-        build_demo(out, anchor=day)
         typer.echo(f"Demo database written to {out}")
         return
-    folder = Path(tempfile.mkdtemp(prefix="inspectkit-demo-"))
-    path = build_demo(folder / "demo.sqlite", anchor=day)
     from inspectkit.cli import open_tui
 
     open_tui(path)

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from datetime import date
 from typing import Any
 
-from inspectkit.demo.scenario import SiteSpec
+from inspectkit.demo.scenario import ScenarioError, SiteSpec
 from inspectkit.model import Component, ComponentKind, ElectrodeType
 
 _COMPASS = (
@@ -48,7 +48,15 @@ class System:
         return [c for c in self.components if c.kind is kind]
 
     def tagged(self, tag: str) -> Component:
-        return next(c for c in self.components if c.tag == tag.upper())
+        """The part with that tag.
+
+        Raises:
+            ScenarioError: the scenario names a tag the site does not have.
+        """
+        for component in self.components:
+            if component.tag == tag.upper():
+                return component
+        raise ScenarioError(f"no part tagged {tag!r}; the counts in the scenario make no such tag")
 
     def child(self, parent: Component) -> Component:
         """The test joint below a down conductor, or the electrode below a test joint."""

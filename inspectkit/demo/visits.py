@@ -20,7 +20,7 @@ from typing import Any
 from dateutil.relativedelta import relativedelta
 
 from inspectkit.demo.ground import SOIL_FACTOR, soil_on, weather_in
-from inspectkit.demo.scenario import DriftingEarth, SiteSpec
+from inspectkit.demo.scenario import DriftingEarth, ScenarioError, SiteSpec
 from inspectkit.demo.system import System, lay_out
 from inspectkit.model import (
     Component,
@@ -164,6 +164,14 @@ class _Visit:
         return self.clock
 
 
+class _Refs(dict[str, _Visit]):
+    """The site's visits by the names the scenario file uses; a wrong name is reported."""
+
+    def __missing__(self, name: str) -> _Visit:
+        known = ", ".join(sorted(self))
+        raise ScenarioError(f"no visit {name!r} on this site; the site has: {known}")
+
+
 class SiteHistory:
     """One site: its LPS, its visits, and what was measured and found at each."""
 
@@ -251,9 +259,9 @@ class SiteHistory:
         self.visits.append(visit)
         return visit
 
-    def _refs(self) -> dict[str, _Visit]:
+    def _refs(self) -> _Refs:
         """Names the scenario file uses for this site's finished visits (complete-1 …)."""
-        refs: dict[str, _Visit] = {}
+        refs = _Refs()
         finished = [v for v in self.visits if v.inspection.finished]
         for kind in InspectionKind:
             of_kind = [v for v in finished if v.inspection.kind is kind]
@@ -386,8 +394,21 @@ class SiteHistory:
     # ------------------------------------------------------------- building
 
     def build(self) -> None:
-        """Make the site's records and add them, in save order, to the demo's output."""
+        """Make the site's records and add them, in save order, to the demo's output.
+
+        Raises:
+            ScenarioError: the site's entry names a tag or a visit the site does not have.
+        """
+        try:
+            self._build()
+        except ScenarioError as exc:
+            raise ScenarioError(f"site {self.spec.key}: {exc}") from None
+
+    def _build(self) -> None:
         spec = self.spec
+        named = [*spec.failing_earth, *spec.failing_continuity, *spec.drifting_earth]
+        for tag in [*(n.tag for n in named), *spec.missing_readings]:
+            self.system.tagged(tag)
         for kind, day in self._schedule():
             self._visit(kind, day)
         refs = self._refs()
@@ -487,7 +508,7 @@ class SiteHistory:
                 visit, self.system.tagged(tag), Grade.NEEDS_ATTENTION, words, 90, following
             )
 
-    def _scenario_findings(self, refs: dict[str, _Visit]) -> None:
+    def _scenario_findings(self, refs: _Refs) -> None:
         for spec in self.spec.finding:
             visit = refs[spec.at]
             component = self.system.tagged(spec.on)
