@@ -40,7 +40,7 @@ class FindingForm(Vertical):
     DEFAULT_CSS = """
     FindingForm { height: auto; }
     FindingForm RadioSet { layout: horizontal; height: auto; width: 100%; }
-    FindingForm RadioButton { margin-right: 1; }
+    FindingForm > RadioSet > RadioButton { width: auto; margin-right: 2; }
     FindingForm > #grade-status { height: auto; margin-bottom: 1; }
     FindingForm > #grade-status.-error { color: $error; text-style: bold; }
     FindingForm.-sound > .only-not-sound { display: none; }
