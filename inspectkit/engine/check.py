@@ -6,7 +6,7 @@ from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass
 from datetime import date
 
-from inspectkit.engine.history import as_of
+from inspectkit.engine.history import as_of, series
 from inspectkit.engine.results import Result
 from inspectkit.engine.rules import RULES, facts_for
 from inspectkit.engine.schedule import SiteSchedule, schedule_site
@@ -45,9 +45,10 @@ class SiteCheck:
 def check_site(records: SiteRecords, profile: Profile, today: date) -> SiteCheck:
     """Run every rule, the schedule and the trends over one site as of `today`."""
     records = as_of(records, today)
-    schedule = schedule_site(records, profile, today)
-    trends = electrode_trends(records, profile, today, schedule.next_complete)
-    facts = facts_for(records, profile, today, schedule, trends)
+    history = series(records.readings)
+    schedule = schedule_site(records, profile, today, history=history)
+    trends = electrode_trends(records, profile, today, schedule.next_complete, history)
+    facts = facts_for(records, profile, today, schedule, trends, history)
     results = sorted((r for rule in RULES for r in rule(facts)), key=Result.sort_key)
     worst = results[0].severity if results else Severity.OK
     return SiteCheck(

@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Iterable
 from datetime import date
+from operator import attrgetter
 
 from inspectkit.model import (
     Component,
@@ -39,12 +40,11 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
     """The site's records as they stood at the end of `today`.
 
     Visits dated later, and their readings, findings and photos, are left out, and a
-    finding resolved by a later visit is shown as still open.
+    finding resolved by a later visit is shown as still open. A reading belongs to
+    its visit: it is kept or left out with it.
     """
     inspections = [i for i in records.inspections if i.date <= today]
-    if len(inspections) == len(records.inspections) and all(
-        r.taken_at.date() <= today for r in records.readings
-    ):
+    if len(inspections) == len(records.inspections):
         return records
     known = {i.id for i in inspections}
     findings = [
@@ -58,9 +58,7 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         site=records.site,
         components=records.components,
         inspections=inspections,
-        readings=[
-            r for r in records.readings if r.inspection_id in known and r.taken_at.date() <= today
-        ],
+        readings=[r for r in records.readings if r.inspection_id in known],
         findings=findings,
         photos=[p for p in records.photos if p.inspection_id in known],
         instruments=records.instruments,
@@ -94,16 +92,22 @@ def electrode_count(records: SiteRecords, on: date) -> int:
     )
 
 
-def series(
-    readings: Iterable[Reading], quantity: Quantity | None = None
-) -> dict[tuple[str, Quantity], list[Reading]]:
-    """Readings grouped by component and quantity, each group oldest first."""
-    groups: dict[tuple[str, Quantity], list[Reading]] = defaultdict(list)
+#: Readings by (component id, quantity), each list oldest first.
+History = dict[tuple[str, Quantity], list[Reading]]
+
+
+def series(readings: Iterable[Reading]) -> History:
+    """Readings grouped by component and quantity, each group oldest first.
+
+    The rules, the schedule and the trends all need this grouping; `check_site`
+    makes it once and hands it to each.
+    """
+    groups: History = defaultdict(list)
     for reading in readings:
-        if quantity is None or reading.quantity is quantity:
-            groups[(reading.component_id, reading.quantity)].append(reading)
+        groups[(reading.component_id, reading.quantity)].append(reading)
+    by_time = attrgetter("taken_at")
     for group in groups.values():
-        group.sort(key=lambda r: r.taken_at)
+        group.sort(key=by_time)
     return dict(groups)
 
 

@@ -14,6 +14,7 @@ from datetime import date
 
 from inspectkit.engine.history import (
     COMPLETE_KINDS,
+    History,
     calibration_lapsed,
     counts_as_done,
     electrode_count,
@@ -27,7 +28,6 @@ from inspectkit.engine.schedule import (
     DueKind,
     DueStatus,
     SiteSchedule,
-    counter_changes,
 )
 from inspectkit.engine.trend import ElectrodeTrend
 from inspectkit.model import (
@@ -104,12 +104,17 @@ def facts_for(
     today: date,
     schedule: SiteSchedule,
     trends: list[ElectrodeTrend],
+    history: History | None = None,
 ) -> SiteFacts:
-    """Index a site's records (already cut to `today`) for the rules."""
+    """Index a site's records (already cut to `today`) for the rules.
+
+    `history` is `records.readings` grouped by `history.series`, if at hand.
+    """
     components = {c.id: c for c in records.components}
+    grouped = series(records.readings) if history is None else history
     history = {
         key: readings
-        for key, readings in series(records.readings).items()
+        for key, readings in grouped.items()
         if key[0] in components and in_service(components[key[0]], today)
     }
     latest = {key: readings[-1] for key, readings in history.items()}
@@ -226,7 +231,7 @@ def strike_counters(facts: SiteFacts) -> Iterator[Result]:
             due=item.due,
         )
     last_change: dict[str, CounterRise] = {}
-    for change in counter_changes(facts.records):
+    for change in facts.schedule.counter_changes:
         last_change[change.component_id] = change
     for change in last_change.values():
         if change.rose or change.component_id not in facts.components:

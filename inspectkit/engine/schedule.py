@@ -34,6 +34,7 @@ from inspectkit.engine.history import (
     COMPLETE_KINDS,
     STRIKE_SETTLING_KINDS,
     VISUAL_KINDS,
+    History,
     as_of,
     counts_as_done,
     last_of,
@@ -116,6 +117,7 @@ class SiteSchedule:
         due_items: every inspection owed, most urgent first.
         status: the most urgent item's status.
         overdue_days: the largest number of days overdue (0 if none).
+        counter_changes: every rise or fall of a strike counter, oldest first.
     """
 
     site_id: str
@@ -132,6 +134,7 @@ class SiteSchedule:
     due_items: tuple[DueItem, ...]
     status: DueStatus
     overdue_days: int
+    counter_changes: tuple[CounterRise, ...] = ()
 
     @property
     def next_due(self) -> DueItem:
@@ -155,10 +158,18 @@ def intervals_for(records: SiteRecords, profile: Profile) -> tuple[int, int, str
     return visual, complete, ", ".join(basis)
 
 
-def counter_changes(records: SiteRecords) -> list[CounterRise]:
-    """Every change of a strike counter between one reading and the next, oldest first."""
+def counter_changes(records: SiteRecords, history: History | None = None) -> list[CounterRise]:
+    """Every change of a strike counter between one reading and the next, oldest first.
+
+    Args:
+        records: the site's records.
+        history: `records.readings` already grouped by `history.series`, if at hand.
+    """
     changes = []
-    for (component_id, _), readings in series(records.readings, Quantity.STRIKE_COUNT).items():
+    grouped = series(records.readings) if history is None else history
+    for (component_id, quantity), readings in grouped.items():
+        if quantity is not Quantity.STRIKE_COUNT:
+            continue
         counted = [r for r in readings if r.value is not None]
         for before, after in zip(counted, counted[1:], strict=False):
             if after.value != before.value:
@@ -186,7 +197,11 @@ def status_of(due: date, today: date, due_soon_days: int) -> tuple[DueStatus, in
 
 
 def schedule_site(
-    records: SiteRecords, profile: Profile, today: date, due_soon_days: int | None = None
+    records: SiteRecords,
+    profile: Profile,
+    today: date,
+    due_soon_days: int | None = None,
+    history: History | None = None,
 ) -> SiteSchedule:
     """Work out which inspections a site owes and by when.
 
@@ -195,8 +210,11 @@ def schedule_site(
         profile: the rule set the site is held to.
         today: the day to judge by.
         due_soon_days: window for "due soon"; the profile's `due_soon_days` by default.
+        history: the readings grouped by `history.series`, for records already cut to
+            `today` with `as_of` (check_site passes it so the grouping is done once).
     """
     records = as_of(records, today)
+    changes = counter_changes(records, history)
     window = profile.triggers.due_soon_days if due_soon_days is None else due_soon_days
     visual_months, complete_months, basis = intervals_for(records, profile)
     inspections = records.inspections
@@ -210,7 +228,7 @@ def schedule_site(
         _routine(judge, DueKind.COMPLETE, last_complete, complete_months),
     ]
     next_visual, next_complete = items[0].due, items[1].due
-    items += _strike_items(judge, records, profile)
+    items += _strike_items(judge, records, profile, changes)
     altered = records.site.altered_on
     if (
         altered is not None
@@ -241,6 +259,7 @@ def schedule_site(
         due_items=tuple(items),
         status=items[0].status,
         overdue_days=max(i.overdue_days for i in items),
+        counter_changes=tuple(changes),
     )
 
 
@@ -269,7 +288,9 @@ def _routine(judge: _Judge, kind: DueKind, last: date | None, months: int) -> Du
     )
 
 
-def _strike_items(judge: _Judge, records: SiteRecords, profile: Profile) -> list[DueItem]:
+def _strike_items(
+    judge: _Judge, records: SiteRecords, profile: Profile, changes: list[CounterRise]
+) -> list[DueItem]:
     """A post-strike item for each counter rise not yet followed by a settling visit."""
     settled_on = sorted(
         i.date for i in records.inspections if i.kind in STRIKE_SETTLING_KINDS and counts_as_done(i)
@@ -277,7 +298,7 @@ def _strike_items(judge: _Judge, records: SiteRecords, profile: Profile) -> list
     tags = {c.id: c.tag for c in records.components}
     days = profile.triggers.post_strike_days
     items = []
-    for change in counter_changes(records):
+    for change in changes:
         if not change.rose or any(day >= change.found_on for day in settled_on):
             continue
         tag = tags.get(change.component_id, "strike counter")

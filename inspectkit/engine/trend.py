@@ -14,10 +14,17 @@ from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
+from itertools import combinations
 from statistics import NormalDist, median
 from typing import Any
 
-from inspectkit.engine.history import calibration_lapsed, electrode_count, in_service, series
+from inspectkit.engine.history import (
+    History,
+    calibration_lapsed,
+    electrode_count,
+    in_service,
+    series,
+)
 from inspectkit.model import Component, Quantity, Reading, SiteRecords
 from inspectkit.profiles import Profile
 
@@ -51,8 +58,9 @@ def theil_sen(
     repeated x and y values, as `scipy.stats.theilslopes` computes it.
     """
     n = len(xs)
+    points = sorted(zip(xs, ys, strict=True))
     slopes = sorted(
-        (ys[j] - ys[i]) / (xs[j] - xs[i]) for i in range(n) for j in range(n) if xs[j] > xs[i]
+        (y2 - y1) / (x2 - x1) for (x1, y1), (x2, y2) in combinations(points, 2) if x2 > x1
     )
     if not slopes:
         return None
@@ -119,13 +127,28 @@ class ElectrodeTrend:
 
 
 def electrode_trends(
-    records: SiteRecords, profile: Profile, today: date, next_complete: date | None
+    records: SiteRecords,
+    profile: Profile,
+    today: date,
+    next_complete: date | None,
+    history: History | None = None,
 ) -> list[ElectrodeTrend]:
-    """A trend for every component in service with isolated earth readings, by tag."""
+    """A trend for every component in service with isolated earth readings, by tag.
+
+    Args:
+        records: the site's records, cut to `today` (see `history.as_of`).
+        profile: the rule set, for the limit.
+        today: the day judged.
+        next_complete: when the next complete inspection is due (from the schedule).
+        history: `records.readings` grouped by `history.series`, if at hand.
+    """
     tags = {c.id: c for c in records.components}
     limit = profile.limit_for(Quantity.EARTH_ISOLATED, electrode_count(records, today))
     trends = []
-    for (component_id, _), readings in series(records.readings, Quantity.EARTH_ISOLATED).items():
+    grouped = series(records.readings) if history is None else history
+    for (component_id, quantity), readings in grouped.items():
+        if quantity is not Quantity.EARTH_ISOLATED:
+            continue
         component = tags.get(component_id)
         if component is None or not in_service(component, today):
             continue
