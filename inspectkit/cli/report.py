@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import re
 from datetime import date
 from pathlib import Path
 from typing import Annotated
@@ -39,11 +38,10 @@ def _inspection(store: Store, inspection_id: str | None, site: str | None) -> In
 
 def _default_name(store: Store, inspection: Inspection) -> Path:
     from inspectkit.model import Site
-    from inspectkit.report.model import revision_of
+    from inspectkit.report.publish import default_file_name
 
     site = store.get(Site, inspection.site_id)
-    slug = re.sub(r"[^a-z0-9]+", "-", (site.name if site else "site").lower()).strip("-")
-    return Path(f"{slug}-{inspection.date.isoformat()}-r{revision_of(inspection)}.pdf")
+    return Path(default_file_name(site.name if site else "site", inspection))
 
 
 def report(

@@ -1,13 +1,14 @@
 """Producing an inspection's report file: build, render, and optionally sign and freeze.
 
 The command line and the TUI both come through here, so a report made either
-way is the same file. Signing is split in three steps (`prepare`, the pyHanko
-call, `record_signature`) so that the TUI can await the signature inside its
-own event loop; `export_report` runs all three for the command line.
+way is the same file: `export_report` for the command line, and
+`export_report_async` for the TUI, which must not block or nest its event loop.
 """
 
 from __future__ import annotations
 
+import asyncio
+import re
 from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
@@ -18,7 +19,7 @@ from inspectkit.report.content import ReportContent
 from inspectkit.report.keys import key_path
 from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
-from inspectkit.report.sign import SignedReport, sign_pdf
+from inspectkit.report.sign import SignedReport, async_sign_pdf, sign_pdf
 from inspectkit.store import Store
 
 
@@ -33,29 +34,20 @@ class Prepared:
     signing_at: datetime | None
 
 
-def prepare(
+def default_file_name(site_name: str, inspection: Inspection) -> str:
+    """`<site>-<date>-r<revision>.pdf`, the name a report is saved under unless told otherwise."""
+    slug = re.sub(r"[^a-z0-9]+", "-", site_name.lower()).strip("-") or "site"
+    return f"{slug}-{inspection.date.isoformat()}-r{revision_of(inspection)}.pdf"
+
+
+def _plan(
     store: Store,
     inspection_id: str,
-    *,
-    sign: bool = False,
-    keep_photos: set[str] | None = None,
-    branding: Branding | None = None,
-    now: datetime | None = None,
-) -> Prepared:
-    """Build and render a report; when it is to be signed, check it can be first.
-
-    Args:
-        store: The database.
-        inspection_id: The inspection reported on.
-        sign: The report will be signed: the inspection must be a draft whose
-            inspector has a key.
-        keep_photos: Ids of the photos to include (all by default).
-        branding: The contractor's branding (templates/report.toml by default).
-        now: The signing time (tests pass a fixed one).
-
-    Raises:
-        ReportError: no such inspection, already signed, or no inspector key.
-    """
+    sign: bool,
+    keep_photos: set[str] | None,
+    now: datetime | None,
+) -> tuple[Inspection, ReportContent, Path | None, datetime | None]:
+    """The database side of a report: check it may be signed, then build its content."""
     inspection = store.get(Inspection, inspection_id)
     if inspection is None:
         raise ReportError(f"no inspection with id {inspection_id}; check the id")
@@ -82,6 +74,33 @@ def prepare(
     content = build_report(store, inspection_id, signing=signing_at)
     if keep_photos is not None:
         content = content.without_photos(keep_photos)
+    return inspection, content, key, signing_at
+
+
+def prepare(
+    store: Store,
+    inspection_id: str,
+    *,
+    sign: bool = False,
+    keep_photos: set[str] | None = None,
+    branding: Branding | None = None,
+    now: datetime | None = None,
+) -> Prepared:
+    """Build and render a report; when it is to be signed, check it can be first.
+
+    Args:
+        store: The database.
+        inspection_id: The inspection reported on.
+        sign: The report will be signed: the inspection must be a draft whose
+            inspector has a key.
+        keep_photos: Ids of the photos to include (all by default).
+        branding: The contractor's branding (templates/report.toml by default).
+        now: The signing time (tests pass a fixed one).
+
+    Raises:
+        ReportError: no such inspection, already signed, or no inspector key.
+    """
+    inspection, content, key, signing_at = _plan(store, inspection_id, sign, keep_photos, now)
     rendered = render_report(content, branding or load_branding())
     return Prepared(inspection, content, rendered, key, signing_at)
 
@@ -94,18 +113,24 @@ def reason(prepared: Prepared) -> str:
     )
 
 
-def record_signature(store: Store, prepared: Prepared, signed: SignedReport) -> Inspection:
-    """Freeze the inspection: signed, when, which revision, and the signed file's hash."""
-    frozen = prepared.inspection.model_copy(
-        update={
-            "state": InspectionState.SIGNED,
-            "finished": True,
-            "signed_at": prepared.signing_at or utcnow(),
-            "report_sha256": signed.sha256,
-            "report_revision": revision_of(prepared.inspection),
-        }
-    )
-    return store.save(frozen)
+def _finish(
+    store: Store, prepared: Prepared, output: Path, signed: SignedReport | None
+) -> bytes:
+    """Write the file, then (when signed) freeze the inspection: a failed write leaves a draft."""
+    data = signed.data if signed is not None else prepared.rendered.data
+    output.write_bytes(data)
+    if signed is not None:
+        frozen = prepared.inspection.model_copy(
+            update={
+                "state": InspectionState.SIGNED,
+                "finished": True,
+                "signed_at": prepared.signing_at or utcnow(),
+                "report_sha256": signed.sha256,
+                "report_revision": revision_of(prepared.inspection),
+            }
+        )
+        store.save(frozen)
+    return data
 
 
 def export_report(
@@ -120,21 +145,42 @@ def export_report(
 ) -> tuple[Prepared, bytes]:
     """Write an inspection's report to `output`, signed and frozen when a passphrase is given.
 
-    The file is written before the inspection is frozen, so a failure to write
-    leaves the inspection a draft.
-
     Raises:
         ReportError, SignError: see `prepare` and `sign_pdf`.
     """
-    sign = passphrase is not None
-    prepared = prepare(store, inspection_id, sign=sign, keep_photos=keep_photos,
-                       branding=branding, now=now)
-    data = prepared.rendered.data
-    if sign and prepared.key is not None:
-        signed = sign_pdf(data, prepared.key, passphrase or b"", prepared.rendered.signature_slot,
-                          reason=reason(prepared), location=prepared.content.site_name)
-        output.write_bytes(signed.data)
-        record_signature(store, prepared, signed)
-        return prepared, signed.data
-    output.write_bytes(data)
-    return prepared, data
+    prepared = prepare(store, inspection_id, sign=passphrase is not None,
+                       keep_photos=keep_photos, branding=branding, now=now)
+    signed = None
+    if passphrase is not None and prepared.key is not None:
+        signed = sign_pdf(prepared.rendered.data, prepared.key, passphrase,
+                          prepared.rendered.signature_slot, reason=reason(prepared),
+                          location=prepared.content.site_name)
+    return prepared, _finish(store, prepared, output, signed)
+
+
+async def export_report_async(
+    store: Store,
+    inspection_id: str,
+    output: Path,
+    *,
+    passphrase: bytes | None = None,
+    keep_photos: set[str] | None = None,
+    branding: Branding | None = None,
+    now: datetime | None = None,
+) -> tuple[Prepared, bytes]:
+    """`export_report` inside a running event loop (the TUI).
+
+    The database work stays on the loop's thread (a connection cannot cross
+    threads); the rendering, which touches no database, runs in a worker thread;
+    the signature is awaited.
+    """
+    inspection, content, key, signing_at = _plan(
+        store, inspection_id, passphrase is not None, keep_photos, now
+    )
+    rendered = await asyncio.to_thread(render_report, content, branding or load_branding())
+    prepared = Prepared(inspection, content, rendered, key, signing_at)
+    signed = None
+    if passphrase is not None and key is not None:
+        signed = await async_sign_pdf(rendered.data, key, passphrase, rendered.signature_slot,
+                                      reason=reason(prepared), location=content.site_name)
+    return prepared, _finish(store, prepared, output, signed)
