@@ -25,7 +25,7 @@ FIRST = date(2026, 3, 2)
 STAMP = datetime(2026, 3, 1, 12, tzinfo=UTC)
 
 
-def _fill(store: Store) -> None:
+def fill_round_db(store: Store) -> None:
     """Five sites around 52 N 1 W due in March 2026, and one with no position."""
     for i in range(6):
         where = {} if i == 5 else {"latitude": 52 + i / 10, "longitude": -1 - i / 10}
@@ -40,7 +40,7 @@ def _fill(store: Store) -> None:
 
 @pytest.fixture
 def plan(store: Store) -> RoundPlan:
-    _fill(store)
+    fill_round_db(store)
     return make_plan(store, Window(FIRST, 30), load_plan_settings(), Point(52.0, -1.0))
 
 
@@ -100,7 +100,7 @@ def test_table_shows_each_day_and_the_site_without_position(plan: RoundPlan) -> 
 @pytest.fixture
 def demo_db(db_path: Path) -> Path:
     with Store.open(db_path) as store:
-        _fill(store)
+        fill_round_db(store)
     return db_path
 
 

@@ -13,6 +13,7 @@ from inspectkit.tui.commands import ActionsProvider
 from inspectkit.tui.dialogs.cautions import CautionsDialog
 from inspectkit.tui.preferences import Preferences
 from inspectkit.tui.screens.findings import FindingsScreen
+from inspectkit.tui.screens.plan import PlanScreen
 from inspectkit.tui.screens.settings import SettingsScreen
 from inspectkit.tui.screens.sites import SitesScreen
 
@@ -34,6 +35,7 @@ class InspectApp(App[None]):
         "sites": SitesScreen,
         "findings": FindingsScreen,
         "settings": SettingsScreen,
+        "plan": PlanScreen,
     }
 
     BINDINGS = [
@@ -49,6 +51,11 @@ class InspectApp(App[None]):
         Binding(
             "f4", "switch_mode('settings')", "Settings", id="app.settings",
             tooltip="Inspector, instrument, profiles and data folder",
+        ),
+        # Kept out of the footer until the footer snapshots are updated; the palette lists it.
+        Binding(
+            "f5", "switch_mode('plan')", "Plan", id="app.plan",
+            tooltip="The next round of visits, day by day", show=False,
         ),
     ]
 

@@ -1,0 +1,134 @@
+"""The plan screen: the round by day, dropping and pinning a site, drafts for the visits."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from test_plan_export import FIRST, fill_round_db
+from textual.pilot import Pilot
+from textual.widgets import DataTable, Input
+
+from inspectkit.cautions import ACKNOWLEDGED_SETTING
+from inspectkit.model import Inspection
+from inspectkit.plan.geo import Point
+from inspectkit.plan.planner import save_depot
+from inspectkit.store import Store
+from inspectkit.tui.app import make_app
+from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.screens.plan import PlanScreen
+
+
+@pytest.fixture
+def round_db(db_path: Path) -> Path:
+    with Store.open(db_path) as store:
+        fill_round_db(store)
+        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+        save_depot(store, Point(52.0, -1.0))
+    return db_path
+
+
+def _sites(screen: PlanScreen) -> list[str]:
+    table = screen.query_one("#round", DataTable)
+    return [
+        str(table.get_cell(row, "site"))
+        for row in table.rows
+        if not str(row.value).startswith("day:")
+    ]
+
+
+def _visits(screen: PlanScreen) -> list[str]:
+    assert screen.plan is not None
+    return [v.candidate.site.name for _, v in screen.plan.visits]
+
+
+async def _open(pilot: Pilot[None]) -> PlanScreen:
+    await pilot.press("f5")
+    await pilot.pause()
+    screen = pilot.app.screen
+    assert isinstance(screen, PlanScreen)
+    return screen
+
+
+async def _highlight(screen: PlanScreen, pilot: Pilot[None], site: str) -> None:
+    table = screen.query_one("#round", DataTable)
+    row = next(i for i, r in enumerate(table.rows) if str(table.get_cell(r, "site")) == site)
+    table.move_cursor(row=row)
+    await pilot.pause()
+
+
+async def test_the_round_shows_day_by_day_with_the_unplaced_site(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert sorted(_visits(screen)) == [f"Hall {i}" for i in range(5)]
+        assert _sites(screen)[-1] == "Hall 5"  # no position: listed apart, at the end
+        assert screen.query_one("#depot", Input).value == "52.000000,-1.000000"
+
+
+async def test_drop_then_keep_a_site(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        await _highlight(screen, pilot, "Hall 2")
+        await pilot.press("d")
+        await pilot.pause()
+        assert "Hall 2" not in _visits(screen)
+        assert screen.plan is not None and [c.site.name for c in screen.plan.dropped] == ["Hall 2"]
+        await _highlight(screen, pilot, "Hall 2")
+        await pilot.press("d")
+        await pilot.pause()
+        assert "Hall 2" in _visits(screen)
+
+
+async def test_pinned_site_goes_on_the_first_day(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        await _highlight(screen, pilot, "Hall 4")
+        await pilot.press("p")
+        await pilot.pause()
+        assert screen.plan is not None
+        first_day = screen.plan.days[0]
+        assert first_day.day == FIRST
+        assert "Hall 4" in [v.candidate.site.name for v in first_day.visits]
+
+
+async def test_create_drafts_for_the_planned_visits(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _open(pilot)
+        await pilot.press("c")
+        await pilot.pause()
+        assert isinstance(app.screen, ConfirmDialog)
+        await pilot.press("y")
+        await pilot.pause()
+        drafts = app.store.select(Inspection, "state = 'draft'")
+        assert len(drafts) == 5
+        assert all(d.date >= FIRST for d in drafts)
+
+
+async def test_without_a_depot_the_screen_asks_for_one(db_path: Path) -> None:
+    with Store.open(db_path) as store:
+        fill_round_db(store)
+        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+    app = make_app(db_path, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is None
+        depot = screen.query_one("#depot", Input)
+        depot.value = "52.0,-1.0"
+        depot.focus()
+        await pilot.press("enter")
+        await pilot.pause()
+        assert screen.plan is not None and len(screen.plan.visits) == 5
+        assert app.store.get_setting("plan.depot") == "52.000000,-1.000000"
+
+
+async def test_w_widens_the_window(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        await pilot.press("w")
+        await pilot.pause()
+        assert screen.plan is not None and screen.plan.window.days == 60
