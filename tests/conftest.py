@@ -10,7 +10,9 @@ from inspectkit.store import Store
 
 
 @pytest.fixture(autouse=True)
-def _isolated_home(tmp_path_factory: pytest.TempPathFactory, monkeypatch: pytest.MonkeyPatch) -> None:
+def _isolated_home(
+    tmp_path_factory: pytest.TempPathFactory, monkeypatch: pytest.MonkeyPatch
+) -> None:
     """No test reads or writes the developer's real data or config folders."""
     home = tmp_path_factory.mktemp("home")
     monkeypatch.setenv("HOME", str(home))

@@ -64,6 +64,9 @@ def test_an_unknown_option_is_bad_input() -> None:
 
 def test_python_dash_m_runs_the_command() -> None:
     done = subprocess.run(
-        [sys.executable, "-m", "inspectkit", "--version"], capture_output=True, text=True, check=False
+        [sys.executable, "-m", "inspectkit", "--version"],
+        capture_output=True,
+        text=True,
+        check=False,
     )
     assert done.returncode == 0 and __version__ in done.stdout

@@ -238,7 +238,11 @@ def plateau_check(
     if missing:
         where = " and ".join(f"{_percent(f)} ({f * c:.2f} m)" for f in missing)
         return PlateauResult(
-            False, reported, low, high, None,
+            False,
+            reported,
+            low,
+            high,
+            None,
             f"no reading near {where} of the E–C distance: take one there to check the plateau",
         )
     assert low is not None and high is not None
@@ -257,9 +261,7 @@ def plateau_check(
     return PlateauResult(spread <= tolerance, reported, low, high, spread, message)
 
 
-def _checked_traverse(
-    points: Sequence[tuple[float, float]], c: float
-) -> list[tuple[float, float]]:
+def _checked_traverse(points: Sequence[tuple[float, float]], c: float) -> list[tuple[float, float]]:
     """The points sorted by distance, each checked; refuse fewer than three or any out of (0, C)."""
     if len(points) < 3:
         raise EarthingError(
@@ -441,9 +443,7 @@ def min_electrode_length_l1(level: ProtectionLevel, resistivity_ohm_m: float) ->
     return 5.0
 
 
-def min_electrode_length(
-    level: ProtectionLevel, resistivity_ohm_m: float, vertical: bool
-) -> float:
+def min_electrode_length(level: ProtectionLevel, resistivity_ohm_m: float, vertical: bool) -> float:
     """Minimum length of each type A electrode: l1 laid horizontally, 0.5·l1 driven vertically.
 
     Source: IEC 62305-3 clause 5.4.2.1 (published, as quoted), with l1 from Figure 2.
