@@ -246,15 +246,28 @@ class Store:
                 self.db[record.table].update(record.id, after)
                 changes.append((record.table, record.id, "update", before, after))
             else:
-                self.db[record.table].insert(after)
+                self._insert(record.table, after)
                 changes.append((record.table, record.id, "insert", None, after))
             existing[record.table][record.id] = after
         self._log(changes, at)
 
+    def _insert(self, table: str, row: dict[str, Any]) -> None:
+        """One new row by plain SQL, inside the caller's transaction.
+
+        sqlite-utils' `insert` looks the table up again on every call; a bundle
+        import adds thousands of rows at once.
+        """
+        names = ",".join(f"[{name}]" for name in row)
+        marks = ",".join("?" * len(row))
+        sql = f"INSERT INTO [{table}] ({names}) VALUES ({marks})"
+        self.db.conn.execute(sql, list(row.values()))
+
     def _log(self, changes: list[Any], at: str) -> None:
         if changes:
             entries = audit.make_entries(audit.last_hash(self.db), changes, at=at, who=self.user)
-            self.db["audit"].insert_all(entries, batch_size=1000)
+            names = list(entries[0])
+            sql = f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})"
+            self.db.conn.executemany(sql, ([e[n] for n in names] for e in entries))
 
     def log_conflicts(
         self, conflicts: Sequence[tuple[str, str, dict[str, Any], dict[str, Any]]]
