@@ -21,6 +21,7 @@ import json
 import os
 import re
 import shutil
+import stat
 import tempfile
 import zipfile
 import zlib
@@ -53,6 +54,7 @@ VERSION = 1
 #: Setting naming this database in the bundles it writes.
 DATABASE_ID_SETTING = "sync.database_id"
 _SHA = re.compile(r"^[0-9a-f]{64}$")
+_BLOCK = 1 << 20
 
 #: Fields that name another record, by table: field → table it points into.
 REFERENCES: dict[str, dict[str, str]] = {
@@ -101,6 +103,7 @@ class Bundle:
     Attributes:
         manifest: The manifest as written.
         rows: Stored-form rows by table, in `RECORD_TYPES` order.
+        records: The same rows as checked records, by table and id.
         history: Earlier version hashes by table and record id.
         photos: Photo hashes in the bundle → the checked file staged on disk, or
             None when reading without staging (dry run).
@@ -108,6 +111,7 @@ class Bundle:
 
     manifest: dict[str, Any]
     rows: dict[str, list[dict[str, Any]]]
+    records: dict[str, dict[str, Record]]
     history: dict[str, dict[str, set[str]]]
     photos: dict[str, Path | None] = field(default_factory=dict)
 
@@ -198,12 +202,23 @@ def export_bundle(
             )
             archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED)
             for sha in shas:
-                archive.write(photo_path(store, sha), f"{PHOTO_PREFIX}{sha}", zipfile.ZIP_STORED)
+                _add_file(archive, photo_path(store, sha), f"{PHOTO_PREFIX}{sha}")
         os.replace(temp, target)
     except BaseException:
         Path(temp).unlink(missing_ok=True)
         raise
     return ExportSummary(target, {t: len(r) for t, r in rows.items()}, len(shas))
+
+
+def _add_file(archive: zipfile.ZipFile, source: Path, name: str) -> None:
+    """Store a file uncompressed (photos are compressed already), in large blocks."""
+    info = zipfile.ZipInfo(name, date_time=(1980, 1, 1, 0, 0, 0))
+    info.compress_type = zipfile.ZIP_STORED
+    info.external_attr = (stat.S_IFREG | 0o644) << 16
+    info.file_size = source.stat().st_size
+    with source.open("rb") as src, archive.open(info, "w") as dest:
+        while block := src.read(_BLOCK):
+            dest.write(block)
 
 
 def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | None = None) -> Bundle:
@@ -222,7 +237,7 @@ def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | Non
             manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
             records = _read(archive, RECORDS, limits)
             _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
-            rows, history = _records(records, manifest)
+            rows, checked, history = _records(records, manifest)
             photos = {
                 info.filename.removeprefix(PHOTO_PREFIX): _photo(
                     archive, info, manifest, limits, staging
@@ -232,7 +247,7 @@ def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | Non
             }
     except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
         raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
-    return Bundle(manifest, rows, history, photos)
+    return Bundle(manifest, rows, checked, history, photos)
 
 
 def _read(archive: zipfile.ZipFile, name: str, limits: Limits) -> bytes:
@@ -313,7 +328,9 @@ def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
 
 def _records(
     data: bytes, manifest: dict[str, Any]
-) -> tuple[dict[str, list[dict[str, Any]]], dict[str, dict[str, set[str]]]]:
+) -> tuple[
+    dict[str, list[dict[str, Any]]], dict[str, dict[str, Record]], dict[str, dict[str, set[str]]]
+]:
     """Every row checked through its model and found in the stored form."""
     content = _json(data, RECORDS)
     tables = content.get("tables") if isinstance(content, dict) else None
@@ -324,16 +341,17 @@ def _records(
     if unknown:
         raise BundleError(f"{RECORDS}: unknown table {unknown[0]!r}; the bundle is not for this")
     rows: dict[str, list[dict[str, Any]]] = {}
+    checked: dict[str, dict[str, Record]] = {}
     for model in RECORD_TYPES:
         table_rows = tables.get(model.table, [])
         if not isinstance(table_rows, list):
             raise BundleError(f"{RECORDS}: table {model.table!r} must be a list of records")
-        seen: set[str] = set()
+        seen: dict[str, Record] = {}
         for number, row in enumerate(table_rows, start=1):
-            _check_row(model, number, row)
-            if row["id"] in seen:
-                raise BundleError(f"{model.table} {row['id']} appears twice in the bundle")
-            seen.add(row["id"])
+            record = _check_row(model, number, row)
+            if record.id in seen:
+                raise BundleError(f"{model.table} {record.id} appears twice in the bundle")
+            seen[record.id] = record
         counted = manifest.get("counts", {}).get(model.table, len(table_rows))
         if counted != len(table_rows):
             raise BundleError(
@@ -341,6 +359,7 @@ def _records(
                 f"{len(table_rows)}; the bundle is damaged"
             )
         rows[model.table] = table_rows
+        checked[model.table] = seen
     history: dict[str, dict[str, set[str]]] = {}
     for table, by_id in raw_history.items():
         if table not in MODEL_FOR_TABLE or not isinstance(by_id, dict):
@@ -351,10 +370,10 @@ def _records(
             ):
                 raise BundleError(f"{RECORDS}: history of {table} {row_id} must list sha256s")
         history[table] = {row_id: set(hashes) for row_id, hashes in by_id.items()}
-    return rows, history
+    return rows, checked, history
 
 
-def _check_row(model: type[Record], number: int, row: Any) -> None:
+def _check_row(model: type[Record], number: int, row: Any) -> Record:
     """A bundle row must validate and be exactly the row the store would hold.
 
     Records are checked with every rule but the clock: they were entered on another
@@ -373,6 +392,7 @@ def _check_row(model: type[Record], number: int, row: Any) -> None:
             f"{RECORDS}: {where} is not in the stored form (extra, missing or reworded "
             "fields); export it again with inspectkit"
         )
+    return record
 
 
 def place_photos(store: Store, photos: dict[str, Path | None]) -> int:

@@ -30,7 +30,7 @@ from typing import Any, Literal
 from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
 from inspectkit.store.photos import photo_path
-from inspectkit.store.rows import STORED, canonical
+from inspectkit.store.rows import canonical
 from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, read_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
 from inspectkit.sync.versions import known_versions, version_hash
@@ -105,6 +105,8 @@ class _Plan:
     conflicts: list[tuple[Conflict, dict[str, Any], dict[str, Any]]] = field(default_factory=list)
     unchanged: int = 0
     kept_newer: int = 0
+    #: The bundle's checked records, by table and id.
+    records: dict[str, dict[str, Record]] = field(default_factory=dict)
 
 
 class _DryRun(Exception):
@@ -157,7 +159,7 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
     """Decide every record, after checking that all it references is here or in the bundle."""
     _check_references(store, bundle)
     _check_photo_files(store, bundle)
-    plan = _Plan()
+    plan = _Plan(records=bundle.records)
     for table, rows in bundle.rows.items():
         ours_by_id = _stored_rows(store, table, [r["id"] for r in rows])
         differing = []
@@ -306,7 +308,7 @@ def _parents_first(items: list[_Write], ref: str) -> list[_Write]:
 def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
     """Write the plan; records the store refuses as frozen are kept ours, one by one."""
     writes = _ordered(plan.writes)
-    records = [_record(table, row) for table, row, _ in writes]
+    records = [plan.records[table][row["id"]] for table, row, _ in writes]
     refused: set[str] = set()
     try:
         with store.transaction():
@@ -330,7 +332,3 @@ def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
         logged.append((conflict.table, conflict.record_id, lost, kept))
         report.conflicts.append(conflict)
     store.log_conflicts(logged)
-
-
-def _record(table: str, row: dict[str, Any]) -> Record:
-    return MODEL_FOR_TABLE[table].model_validate(row, context=STORED)

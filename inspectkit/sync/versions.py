@@ -29,14 +29,20 @@ def _text_hash(text: str) -> str:
 
 
 def known_versions(store: Store, table: str, ids: Sequence[str]) -> dict[str, set[str]]:
-    """For each record id, the hashes of every version of it the audit log holds."""
+    """For each record id changed after it was added, the hashes of all its versions.
+
+    A record only ever inserted has one version, the one it holds now, so its
+    insert row is skipped: every later version shows as some row's `before`, the
+    first included, and a conflict row holds both sides.
+    """
     known: dict[str, set[str]] = {}
     ids = list(ids)
     for start in range(0, len(ids), _CHUNK):
         chunk = ids[start : start + _CHUNK]
         marks = ",".join("?" * len(chunk))
         for row_id, before, after in store.db.execute(
-            f"SELECT row_id, before, after FROM audit WHERE table_name = ? AND row_id IN ({marks})",
+            "SELECT row_id, before, after FROM audit WHERE table_name = ? "
+            f"AND before IS NOT NULL AND row_id IN ({marks})",
             [table, *chunk],
         ):
             versions = known.setdefault(row_id, set())

@@ -1,0 +1,217 @@
+"""Benchmark: export and import a site with 20 years of readings and 200 photos.
+
+Compared in the same process against the floor: copying the same photo files with
+shutil and inserting the same rows into a fresh database with bare sqlite3. Prints
+both times, the ratio (target ≤ 2) and peak memory.
+
+Run: /work/venv/bin/python bench/bench_sync.py [--photos 200] [--years 20]
+"""
+
+from __future__ import annotations
+
+import argparse
+import random
+import resource
+import shutil
+import sqlite3
+import tempfile
+import time
+import tracemalloc
+from datetime import UTC, date, datetime, timedelta
+from pathlib import Path
+
+from PIL import Image
+
+from inspectkit.model import (
+    Component,
+    ComponentKind,
+    Finding,
+    Grade,
+    Inspection,
+    InspectionKind,
+    InspectionState,
+    JointState,
+    Method,
+    Photo,
+    Quantity,
+    Reading,
+    Site,
+)
+from inspectkit.store import Store
+from inspectkit.store.database import apply_migrations
+from inspectkit.store.photos import file_sha256, photo_path, put_file
+from inspectkit.store.schema import SCHEMA_VERSION
+from inspectkit.sync.bundle import export_bundle
+from inspectkit.sync.merge import import_bundle
+
+TABLES = ("site", "component", "instrument", "inspector", "inspection", "reading", "finding",
+          "photo")  # fmt: skip
+
+
+def build(root: Path, years: int, photos: int, joints: int) -> tuple[Store, str]:
+    """An invented site: quarterly visits for `years`, each joint measured twice per visit."""
+    rng = random.Random(7)
+    store = Store.open(root / "source.sqlite", user="bench")
+    site = store.save(Site(name="Lowmoor Grain Terminal", protection_level="II",
+                           latitude=52.1, longitude=-1.3))  # fmt: skip
+    tjs = [Component(site_id=site.id, kind=ComponentKind.TEST_JOINT, tag=f"TJ-{n:02d}")
+           for n in range(1, joints + 1)]  # fmt: skip
+    store.save_all(tjs)
+    start = date(2026 - years, 1, 15)
+    inspections = []
+    for visit in range(years * 4):
+        day = start + timedelta(days=91 * visit)
+        inspection = Inspection(site_id=site.id, kind=InspectionKind.COMPLETE, date=day)
+        readings = []
+        for n, tj in enumerate(tjs):
+            at = datetime(day.year, day.month, day.day, 9, tzinfo=UTC) + timedelta(minutes=3 * n)
+            readings.append(
+                Reading(
+                    inspection_id=inspection.id,
+                    component_id=tj.id,
+                    quantity=Quantity.EARTH_ISOLATED,
+                    value=round(rng.uniform(4, 40), 2),
+                    method=Method.FALL_OF_POTENTIAL_3P,
+                    joint_state=JointState.OPEN,
+                    taken_at=at,
+                )
+            )
+            readings.append(
+                Reading(
+                    inspection_id=inspection.id,
+                    component_id=tj.id,
+                    quantity=Quantity.CONTINUITY,
+                    value=round(rng.uniform(0.01, 0.3), 3),
+                    method=Method.LOW_OHM_4W,
+                    taken_at=at,
+                )
+            )
+        findings = [
+            Finding(
+                inspection_id=inspection.id,
+                component_id=rng.choice(tjs).id,
+                grade=Grade.NEEDS_ATTENTION,
+                text="clamp corroded",
+            )
+        ]
+        store.save_all([inspection, *readings, *findings])  # fmt: skip
+        inspections.append(inspection)
+    pictures = root / "pictures"
+    pictures.mkdir()
+    records = []
+    for n in range(photos):
+        width = rng.randint(430, 700)
+        noise = Image.effect_noise((width, width * 3 // 4), rng.uniform(40, 90)).convert("RGB")
+        path = pictures / f"IMG_{n:04d}.jpg"
+        noise.save(path, "JPEG", quality=90)
+        sha = put_file(store, path)
+        inspection = inspections[n % len(inspections)]
+        records.append(Photo(sha256=sha, original_name=path.name, inspection_id=inspection.id,
+                             component_id=tjs[n % joints].id))  # fmt: skip
+    store.save_all(records)
+    # The last years' visits are signed, as the office would hold them.
+    signed = [i.model_copy(update={"state": InspectionState.SIGNED,
+                                   "signed_at": datetime(i.date.year, i.date.month, i.date.day,
+                                                         17, tzinfo=UTC)})
+              for i in inspections[-8:]]  # fmt: skip
+    store.save_all(signed)
+    return store, site.id
+
+
+def ours(source: Store, site_id: str, work: Path) -> dict[str, float]:
+    """Export then import; the seconds each took."""
+    started = time.perf_counter()
+    bundle = export_bundle(source, site_id, work / "site.zip").path
+    exported = time.perf_counter()
+    with Store.open(work / "target.sqlite", user="bench") as target:
+        import_bundle(target, bundle)
+    return {"export": exported - started, "import": time.perf_counter() - exported}
+
+
+def floor(source: Store, work: Path) -> None:
+    """The same files and rows moved with nothing else: no checks, no audit, no merge."""
+    folder = work / "floor-photos"
+    for (sha,) in source.db.execute("SELECT DISTINCT sha256 FROM photo"):
+        target = folder / sha[:2] / sha
+        target.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copy(photo_path(source, sha), target)
+    conn = sqlite3.connect(work / "floor.sqlite")
+    conn.execute("PRAGMA journal_mode = WAL")
+    import sqlite_utils
+
+    apply_migrations(sqlite_utils.Database(conn), upto=SCHEMA_VERSION)
+    with conn:
+        for table in TABLES:
+            cursor = source.db.execute(f"SELECT * FROM [{table}]")
+            names = [d[0] for d in cursor.description]
+            marks = ",".join("?" * len(names))
+            conn.executemany(f"INSERT INTO [{table}] ({','.join(names)}) VALUES ({marks})", cursor)
+    conn.close()
+
+
+def best_of(runs: int, fn, root: Path) -> tuple[float, dict[str, float]]:  # noqa: ANN001
+    """The fastest total of `runs` runs of fn(folder), and the fastest of each phase it reports."""
+    totals, phases = [], {}
+    for n in range(runs):
+        work = Path(tempfile.mkdtemp(dir=root, prefix=f"run-{n}-"))
+        started = time.perf_counter()
+        parts = fn(work) or {}
+        totals.append(time.perf_counter() - started)
+        for name, seconds in parts.items():
+            phases[name] = min(seconds, phases.get(name, seconds))
+        shutil.rmtree(work)
+    return min(totals), phases
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--years", type=int, default=20)
+    parser.add_argument("--photos", type=int, default=200)
+    parser.add_argument("--joints", type=int, default=30)
+    parser.add_argument("--runs", type=int, default=5)
+    args = parser.parse_args()
+    with tempfile.TemporaryDirectory(prefix="bench-sync-") as tmp:
+        root = Path(tmp)
+        source, site_id = build(root, args.years, args.photos, args.joints)
+        counts = {t: source.db.execute(f"SELECT COUNT(*) FROM [{t}]").fetchone()[0]
+                  for t in TABLES}  # fmt: skip
+        sizes = [p.stat().st_size for p in source.photos_dir.rglob("*") if p.is_file()]
+        kb = f"{min(sizes) // 1024}-{max(sizes) // 1024} KB, {sum(sizes) / 1e6:.1f} MB"
+        print(f"data: {counts['reading']} readings, {counts['inspection']} inspections, "
+              f"{counts['finding']} findings, {len(sizes)} photos ({kb})")  # fmt: skip
+        # Interleaved, so that a busy machine slows both alike.
+        floor_s, ours_s, phases = float("inf"), float("inf"), {}
+        for _ in range(args.runs):
+            floor_s = min(floor_s, best_of(1, lambda w: floor(source, w), root)[0])
+            total, parts = best_of(1, lambda w: ours(source, site_id, w), root)
+            ours_s = min(ours_s, total)
+            phases = {k: min(v, phases.get(k, v)) for k, v in parts.items()}
+        tracemalloc.start()
+        work = Path(tempfile.mkdtemp(dir=root, prefix="mem-"))
+        ours(source, site_id, work)
+        _, peak = tracemalloc.get_traced_memory()
+        tracemalloc.stop()
+        with Store.open(work / "target.sqlite") as target:
+            same = all(
+                sorted(target.db.execute(f"SELECT * FROM [{t}]").fetchall())
+                == sorted(source.db.execute(f"SELECT * FROM [{t}]").fetchall())
+                for t in TABLES
+            )
+            files_ok = all(file_sha256(p) == p.name for p in target.photos_dir.rglob("*")
+                           if p.is_file())  # fmt: skip
+        source.close()
+    print(f"floor (shutil.copy + bare INSERT): {floor_s * 1000:8.1f} ms")
+    print(
+        f"export + import (checked, merged, audited): {ours_s * 1000:8.1f} ms "
+        f"(export {phases['export'] * 1000:.1f} ms, import {phases['import'] * 1000:.1f} ms)"
+    )
+    print(f"ratio: {ours_s / floor_s:.2f} (target <= 2)")
+    print(
+        f"peak traced Python memory in export+import: {peak / 1e6:.1f} MB; "
+        f"process peak RSS: {resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024:.0f} MB"
+    )
+    print(f"target identical to source: rows {same}, photo hashes {files_ok}")
+
+
+if __name__ == "__main__":
+    main()
