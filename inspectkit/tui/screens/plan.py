@@ -17,10 +17,23 @@ from inspectkit.tui.dialogs.confirm import ConfirmDialog
 
 #: Window lengths `w` steps through, in days.
 WINDOWS = (14, 30, 60, 90)
+#: Columns: heading, key, width (None: a share of what the fixed ones leave).
 COLUMNS = (
-    ("Day", "day"), ("#", "order"), ("Site", "site"), ("Kind", "kind"),
-    ("On site", "onsite"), ("Drive", "drive"), ("Arrive", "arrive"), ("Note", "note"),
+    ("#", "order", 2), ("Site", "site", None), ("Kind", "kind", None),
+    ("Time", "onsite", 5), ("Drive", "drive", 5), ("At", "arrive", 5), ("Note", "note", 11),
 )
+
+
+def _free_widths(width: int) -> tuple[int, int]:
+    """Widths of the site and kind columns so a row fits across the terminal."""
+    fixed = sum(w for _, _, w in COLUMNS if w is not None) + 2 * len(COLUMNS) + 2
+    free = max(30, width - fixed)
+    return free * 11 // 20, free - free * 11 // 20
+
+
+def _short(kind_label: str) -> str:
+    """A visit's kinds in few columns: "complete+recheck"."""
+    return kind_label.replace(" + ", "+").replace("re-check", "recheck")
 
 
 def _hhmm(minutes: float) -> str:
@@ -72,10 +85,11 @@ class PlanScreen(Screen[None]):
         yield Footer()
 
     def on_mount(self) -> None:
-        for label, key in COLUMNS:
-            self.table.add_column(label, key=key)
-        depot = self._depot_text()
-        self.query_one("#depot", Input).value = depot
+        site_width, kind_width = _free_widths(self.app.size.width)
+        for label, key, width in COLUMNS:
+            width = width or (site_width if key == "site" else kind_width)
+            self.table.add_column(label, key=key, width=width)
+        self.query_one("#depot", Input).value = self._depot_text()
         self.table.focus()
 
     def on_screen_resume(self) -> None:
@@ -124,25 +138,29 @@ class PlanScreen(Screen[None]):
         table = self.table
         table.clear()
         for day in plan.days:
-            flag = "  too long!" if day.too_long else ""
             table.add_row(
-                Text(day.day.strftime("%a %d %b"), style="bold"), "",
-                Text(f"{len(day.visits)} visits · {day.km:.0f} km · back {day.back:%H:%M}{flag}",
-                     style="bold red" if day.too_long else "bold"),
-                "", "", "", "", "", key=f"day:{day.day.isoformat()}",
+                "",
+                Text(f"{day.day:%a %d %b}", style="bold"),
+                Text("TOO LONG", style="bold red")
+                if day.too_long
+                else Text(f"{len(day.visits)} · {day.km:.0f} km", style="bold"),
+                "", "", Text(f"{day.back:%H:%M}", style="bold"), "back",
+                key=f"day:{day.day.isoformat()}",
             )
             for visit in day.visits:
                 c = visit.candidate
                 table.add_row(
-                    "", str(visit.order), c.site.name, c.kind_label,
+                    str(visit.order), c.site.name, _short(c.kind_label),
                     _hhmm(c.onsite_minutes), _hhmm(visit.drive_minutes),
                     visit.arrive.strftime("%H:%M"), self._note(c), key=c.site.id,
                 )
         for title, group in (("no position", plan.no_position), ("dropped", plan.dropped)):
+            if group:
+                table.add_row("", Text(title, style="bold italic"), key=f"day:{title}")
             for c in group:
                 table.add_row(
-                    Text(title, style="italic"), "", c.site.name, c.kind_label,
-                    _hhmm(c.onsite_minutes), "", "", self._note(c), key=c.site.id,
+                    "", c.site.name, _short(c.kind_label), _hhmm(c.onsite_minutes), "", "",
+                    self._note(c), key=c.site.id,
                 )
         late = len(plan.past_window)
         self.query_one("#summary", Static).update(
@@ -160,7 +178,7 @@ class PlanScreen(Screen[None]):
         if c.site.id in self.pinned:
             words.append("pinned")
         if c.overdue_days:
-            words.append(f"overdue {c.overdue_days} d")
+            words.append(f"{c.overdue_days} d late")
         return Text(" · ".join(words), style="bold red" if c.overdue_days else "")
 
     def highlighted_site(self) -> str | None:
