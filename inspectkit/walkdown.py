@@ -306,7 +306,7 @@ def record_reading(
     note: str = "",
     *,
     taken_at: datetime | None = None,
-    profile: Profile | None = None,
+    context: SiteContext | None = None,
 ) -> ReadingOutcome:
     """Save what the inspector typed for one quantity of one component, and judge it.
 
@@ -319,14 +319,17 @@ def record_reading(
         method: How it was measured; the usual method for the quantity when None.
         joint_state: Open or closed; taken from the quantity for earth readings.
         taken_at: When it was read (default: now).
-        profile: The site's rule set, if the caller holds it already.
+        context: The site's profile and parts, if the caller holds them already
+            (the screen does, for the whole walk).
 
     Raises:
         WalkdownError: the text, method, state or note is not valid, or the
             inspection is signed; `field` says which.
     """
     inspection = _open_inspection(store, inspection_id)
-    component = _component(store, inspection, component_id)
+    if context is None or context.site.id != inspection.site_id:
+        context = site_context(store, inspection.site_id)
+    component = context.part(component_id)
     quantity = _validated_enum(Quantity, quantity, "quantity")
     if quantity not in QUANTITIES_FOR[component.kind]:
         allowed = ", ".join(q.label for q in QUANTITIES_FOR[component.kind]) or "none"
@@ -362,7 +365,7 @@ def record_reading(
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
     reading = _save(store, _validated(Reading, data, now=now))
-    return judge_reading(store, inspection, component, reading, profile)
+    return judge_reading(store, inspection, reading, context)
 
 
 def _validated_enum(enum: type[Any], value: Any, name: str) -> Any:
@@ -373,16 +376,47 @@ def _validated_enum(enum: type[Any], value: Any, name: str) -> Any:
         raise WalkdownError(name, f"{value!r} is not a {name}; use one of: {allowed}") from None
 
 
-def site_profile(store: Store, site: Site) -> Profile:
-    """The rule set a site is held to.
+@dataclass(frozen=True)
+class SiteContext:
+    """What judging a reading needs about its site, read once for a whole walk.
+
+    Attributes:
+        site: The site.
+        profile: The rule set it is held to.
+        components: All its components, retired ones too (history refers to them).
+    """
+
+    site: Site
+    profile: Profile
+    components: tuple[Component, ...]
+
+    def part(self, component_id: str) -> Component:
+        """One of the site's components.
+
+        Raises:
+            WalkdownError: no component of this site has that id.
+        """
+        for component in self.components:
+            if component.id == component_id:
+                return component
+        raise WalkdownError("component", f"no component {component_id} on this site")
+
+
+def site_context(store: Store, site_id: str) -> SiteContext:
+    """Read a site, its profile and its components for a walk.
 
     Raises:
-        WalkdownError: the site names a profile that cannot be loaded.
+        WalkdownError: no such site, or it names a profile that cannot be loaded.
     """
+    site = store.get(Site, site_id)
+    if site is None:
+        raise WalkdownError("site", f"no site with id {site_id}; pick a site from the list")
     try:
-        return load_profile(site.profile)
+        profile = load_profile(site.profile)
     except ProfileError as exc:
         raise WalkdownError("profile", str(exc)) from None
+    components = tuple(store.select(Component, "site_id = ?", [site_id]))
+    return SiteContext(site, profile, components)
 
 
 #: The engine's rules that speak about a single reading; the others judge the whole site.
@@ -396,17 +430,11 @@ READING_RULES = (
 
 
 def judge_reading(
-    store: Store,
-    inspection: Inspection,
-    component: Component,
-    reading: Reading,
-    profile: Profile | None = None,
+    store: Store, inspection: Inspection, reading: Reading, context: SiteContext
 ) -> ReadingOutcome:
     """Pass or fail against the site's profile, through the engine's rules, and the last visit."""
-    site = store.get(Site, inspection.site_id)
-    assert site is not None  # an inspection's site cannot be deleted under it
-    profile = profile or site_profile(store, site)
-    records = _records_for(store, site, reading)
+    profile = context.profile
+    records = _records_for(store, context, reading)
     today = max(inspection.date, reading.taken_at.date())
     schedule = schedule_site(records, profile, today)
     facts = rules.facts_for(records, profile, today, schedule, [])
@@ -415,7 +443,7 @@ def judge_reading(
             r
             for rule in READING_RULES
             for r in rule(facts)
-            if r.component_id == component.id and r.reading_id in (None, reading.id)
+            if r.component_id == reading.component_id and r.reading_id in (None, reading.id)
         ),
         key=Result.sort_key,
     )
@@ -437,8 +465,9 @@ def judge_reading(
     )
 
 
-def _records_for(store: Store, site: Site, reading: Reading) -> SiteRecords:
+def _records_for(store: Store, context: SiteContext, reading: Reading) -> SiteRecords:
     """What the rules need to judge one reading: the site, its parts and that one series."""
+    site = context.site
     inspections = store.select(Inspection, "site_id = ?", [site.id], order_by="date, created_at")
     ids = [i.id for i in inspections]
     readings = store.select(
@@ -453,7 +482,7 @@ def _records_for(store: Store, site: Site, reading: Reading) -> SiteRecords:
     }
     return SiteRecords(
         site=site,
-        components=store.select(Component, "site_id = ?", [site.id]),
+        components=list(context.components),
         inspections=inspections,
         readings=readings,
         instruments=instruments,
@@ -676,20 +705,19 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
     completeness rule asks for. For every kind: components not yet graded.
     """
     inspection = _inspection(store, inspection_id)
-    site = store.get(Site, inspection.site_id)
-    assert site is not None
-    stops = walking_order(store.select(Component, "site_id = ?", [site.id]), on=inspection.date)
+    context = site_context(store, inspection.site_id)
+    stops = walking_order(context.components, on=inspection.date)
     items: list[Missing] = []
     if inspection.kind in COMPLETE_KINDS:
         # The engine judges unfinished drafts; judge this one as such even if finished.
         judged = inspection.model_copy(update={"finished": False})
         records = SiteRecords(
-            site=site,
+            site=context.site,
             components=[s.component for s in stops],
             inspections=[judged],
             readings=store.select(Reading, "inspection_id = ?", [inspection_id]),
         )
-        profile = site_profile(store, site)
+        profile = context.profile
         facts = rules.facts_for(
             records, profile, judged.date, schedule_site(records, profile, judged.date), []
         )
@@ -740,15 +768,11 @@ class SavedEntries:
 def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
     """Every reading (judged), finding and photo count recorded in a visit so far."""
     inspection = _inspection(store, inspection_id)
-    site = store.get(Site, inspection.site_id)
-    assert site is not None
-    profile = site_profile(store, site)
-    components = {c.id: c for c in store.select(Component, "site_id = ?", [site.id])}
+    context = site_context(store, inspection.site_id)
     readings = {}
     for reading in store.select(Reading, "inspection_id = ?", [inspection_id], "taken_at"):
-        component = components[reading.component_id]
         readings[(reading.component_id, reading.quantity)] = judge_reading(
-            store, inspection, component, reading, profile
+            store, inspection, reading, context
         )
     photos: dict[str | None, int] = {}
     for photo in store.select(Photo, "inspection_id = ?", [inspection_id]):

@@ -21,7 +21,6 @@ from inspectkit.model import (
     Instrument,
     Quantity,
     Severity,
-    Site,
     SoilCondition,
 )
 from inspectkit.store import Store
@@ -45,7 +44,7 @@ from inspectkit.walkdown import (
     record_reading,
     saved_entries,
     set_soil,
-    site_profile,
+    site_context,
     walk_for,
 )
 
@@ -163,11 +162,11 @@ class WalkdownScreen(Screen[None]):
 
     def compose(self) -> ComposeResult:
         inspection = self.inspection
-        site = self.store.get(Site, inspection.site_id)
-        self.profile = site_profile(self.store, site) if site else None
+        self.context = site_context(self.store, inspection.site_id)
+        site = self.context.site
         self.stops = walk_for(self.store, self.inspection_id)
         self.saved = saved_entries(self.store, self.inspection_id)
-        self.title = site.name if site else "walkdown"
+        self.title = site.name
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
         with Horizontal(id="bar"):
@@ -204,6 +203,10 @@ class WalkdownScreen(Screen[None]):
         chosen = self.store.get_setting(INSTRUMENT_SETTING)
         known = {value for _, value in self._instrument_options()}
         return chosen if chosen in known else None
+
+    def on_screen_resume(self) -> None:
+        # Components may have been edited on another screen meanwhile.
+        self.context = site_context(self.store, self.context.site.id)
 
     async def on_mount(self) -> None:
         if not self.stops:
@@ -372,7 +375,7 @@ class WalkdownScreen(Screen[None]):
             text,
             instrument_id=None if instrument is Select.NULL else str(instrument),
             soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
-            profile=self.profile,
+            context=self.context,
         )
         self.saved.readings[(self.stop.component.id, quantity)] = outcome
         self._refresh_mark()
