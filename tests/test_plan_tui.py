@@ -50,10 +50,13 @@ async def _open(pilot: Pilot[None]) -> PlanScreen:
     return screen
 
 
-async def _highlight(screen: PlanScreen, pilot: Pilot[None], site: str) -> None:
+async def _press_on(screen: PlanScreen, pilot: Pilot[None], site: str, key: str) -> None:
+    """Highlight the site's row, then press the key."""
     table = screen.query_one("#round", DataTable)
     row = next(i for i, r in enumerate(table.rows) if str(table.get_cell(r, "site")) == site)
     table.move_cursor(row=row)
+    await pilot.pause()
+    await pilot.press(key)
     await pilot.pause()
 
 
@@ -70,14 +73,10 @@ async def test_drop_then_keep_a_site(round_db: Path) -> None:
     app = make_app(round_db, today=FIRST)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = await _open(pilot)
-        await _highlight(screen, pilot, "Hall 2")
-        await pilot.press("d")
-        await pilot.pause()
+        await _press_on(screen, pilot, "Hall 2", "d")
         assert "Hall 2" not in _visits(screen)
         assert screen.plan is not None and [c.site.name for c in screen.plan.dropped] == ["Hall 2"]
-        await _highlight(screen, pilot, "Hall 2")
-        await pilot.press("d")
-        await pilot.pause()
+        await _press_on(screen, pilot, "Hall 2", "d")
         assert "Hall 2" in _visits(screen)
 
 
@@ -85,9 +84,7 @@ async def test_pinned_site_goes_on_the_first_day(round_db: Path) -> None:
     app = make_app(round_db, today=FIRST)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = await _open(pilot)
-        await _highlight(screen, pilot, "Hall 4")
-        await pilot.press("p")
-        await pilot.pause()
+        await _press_on(screen, pilot, "Hall 4", "p")
         assert screen.plan is not None
         first_day = screen.plan.days[0]
         assert first_day.day == FIRST
