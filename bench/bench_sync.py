@@ -44,6 +44,11 @@ from inspectkit.store.schema import SCHEMA_VERSION
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
 
+#: What each test joint gets at each visit: quantity, method, joint state, value range.
+MEASURED = (
+    (Quantity.EARTH_ISOLATED, Method.FALL_OF_POTENTIAL_3P, JointState.OPEN, 4.0, 40.0),
+    (Quantity.CONTINUITY, Method.LOW_OHM_4W, None, 0.01, 0.3),
+)
 TABLES = ("site", "component", "instrument", "inspector", "inspection", "reading", "finding",
           "photo")  # fmt: skip
 
@@ -65,27 +70,12 @@ def build(root: Path, years: int, photos: int, joints: int) -> tuple[Store, str]
         readings = []
         for n, tj in enumerate(tjs):
             at = datetime(day.year, day.month, day.day, 9, tzinfo=UTC) + timedelta(minutes=3 * n)
-            readings.append(
-                Reading(
-                    inspection_id=inspection.id,
-                    component_id=tj.id,
-                    quantity=Quantity.EARTH_ISOLATED,
-                    value=round(rng.uniform(4, 40), 2),
-                    method=Method.FALL_OF_POTENTIAL_3P,
-                    joint_state=JointState.OPEN,
-                    taken_at=at,
-                )
-            )
-            readings.append(
-                Reading(
-                    inspection_id=inspection.id,
-                    component_id=tj.id,
-                    quantity=Quantity.CONTINUITY,
-                    value=round(rng.uniform(0.01, 0.3), 3),
-                    method=Method.LOW_OHM_4W,
-                    taken_at=at,
-                )
-            )
+            readings += [
+                Reading(inspection_id=inspection.id, component_id=tj.id, quantity=quantity,
+                        value=round(rng.uniform(low, high), 3), method=method,
+                        joint_state=joint, taken_at=at)
+                for quantity, method, joint, low, high in MEASURED
+            ]  # fmt: skip
         findings = [
             Finding(
                 inspection_id=inspection.id,

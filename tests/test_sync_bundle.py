@@ -149,7 +149,7 @@ def test_a_signed_inspection_survives_an_import_that_tries_to_change_it(office, 
     other.save(draft.model_copy(update={"notes": "rewritten after signing"}))
     reading = other.get(Reading, records.readings[0].id)
     other.save(reading.model_copy(update={"value": 99.0}))
-    other.save(records.readings[0].model_copy(update={"id": new_id(), "value": 5.0}))
+    added = other.save(records.readings[0].model_copy(update={"id": new_id(), "value": 5.0}))
     rows_before = record_rows(store)
 
     report = import_bundle(store, export_bundle(other, records.site.id, tmp_path / "x.zip").path)
@@ -161,6 +161,17 @@ def test_a_signed_inspection_survives_an_import_that_tries_to_change_it(office, 
     assert all("signed inspection" in message for message in report.kept_signed)
     assert [(c.table, c.kept) for c in report.conflicts] == [("inspection", "ours")]
     assert store.verify_audit() == []
+    # The other way, the signed copy and what it recorded replace the edited draft.
+    back = import_bundle(other, export_bundle(store, records.site.id, tmp_path / "s.zip").path)
+    assert ("reading", "theirs") in [(c.table, c.kept) for c in back.conflicts]
+    assert other.get(Inspection, signed.id).state.value == "signed"
+    ours_rows, other_rows = record_rows(store), record_rows(other)
+    for table, rows in ours_rows.items():
+        assert set(rows) <= set(other_rows[table]), table
+    # Only the reading added to the draft stays over there: bundles carry no deletions.
+    extra = set(other_rows["reading"]) - set(ours_rows["reading"])
+    assert [row[0] for row in extra] == [added.id]
+    assert other.verify_audit() == []
     store.close()
     other.close()
 

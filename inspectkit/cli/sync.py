@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 from collections.abc import Callable
-from datetime import date
+from datetime import date, datetime
 from enum import StrEnum
 from pathlib import Path
 from typing import Annotated, TextIO
@@ -40,15 +40,6 @@ class Prefer(StrEnum):
     THEIRS = "theirs"
 
 
-def _day(value: str | None) -> date | None:
-    if value is None:
-        return None
-    try:
-        return date.fromisoformat(value)
-    except ValueError:
-        raise typer.BadParameter(f"{value!r} is not a date; use YYYY-MM-DD") from None
-
-
 def _site_id(store: Store, name_or_id: str | None) -> str | None:
     if name_or_id is None:
         return None
@@ -76,8 +67,12 @@ def export(
         Table, typer.Option("--records", help="For csv/json: readings or findings.")
     ] = Table.READINGS,
     since: Annotated[
-        str | None,
-        typer.Option("--since", help="Bundle: only records changed on or after YYYY-MM-DD."),
+        datetime | None,
+        typer.Option(
+            "--since",
+            formats=["%Y-%m-%d"],
+            help="Bundle: only records changed on or after YYYY-MM-DD.",
+        ),
     ] = None,
     db: DbOption = None,
 ) -> None:
@@ -89,7 +84,7 @@ def export(
     from inspectkit.sync import exports
     from inspectkit.sync.bundle import export_bundle
 
-    since_day = _day(since)
+    since_day = since.date() if since else None
     with open_store(ctx, db) as store:
         site_id = _site_id(store, site)
         if fmt is Format.BUNDLE:

@@ -189,6 +189,10 @@ class Store:
             return None
         return dict(zip([d[0] for d in cursor.description], values, strict=True))
 
+    def rows_by_id(self, table: str, ids: Sequence[str]) -> dict[str, dict[str, Any]]:
+        """Stored rows of one table by id, exactly as SQLite holds them (what the audit hashes)."""
+        return self._rows(table, ids)
+
     def _rows(self, table: str, ids: Sequence[str]) -> dict[str, dict[str, Any]]:
         found: dict[str, dict[str, Any]] = {}
         for start in range(0, len(ids), _CHUNK):

@@ -7,10 +7,10 @@ The rules, per record of the bundle (theirs) against the database (ours):
 - ours is a version they have seen: theirs is later, ours is updated;
 - theirs is a version we have seen: ours is later, kept;
 - neither: both were edited since they last met, a conflict. A signed inspection
-  beats a draft; otherwise `prefer` decides, and without it the newer
-  `updated_at` wins. Both versions go to the audit log, so the losing one is
-  never lost, and the conflict is reported once (the next exchange sees that
-  both sides know both versions).
+  beats a draft, and so does what was recorded in it; otherwise `prefer`
+  decides, and without it the newer `updated_at` wins. Both versions go to the
+  audit log, so the losing one is never lost, and the conflict is reported once
+  (the next exchange sees that both sides know both versions).
 
 A signed inspection and what was recorded in it are never overwritten: the store
 refuses, and the record is reported as kept ours.
@@ -39,6 +39,8 @@ Side = Literal["ours", "theirs"]
 #: A row to write: table, stored-form row, and "added" or "updated".
 _Write = tuple[str, dict[str, Any], str]
 _CHUNK = 500
+#: Records made in an inspection, frozen with it once it is signed.
+_PARTS = frozenset({"reading", "finding", "photo"})
 #: Fields that point at a record of the same table; parents are written first.
 _SELF_REFERENCES = {"component": "parent_id", "inspection": "amends_id"}
 
@@ -160,8 +162,9 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
     _check_references(store, bundle)
     _check_photo_files(store, bundle)
     plan = _Plan(records=bundle.records)
+    signed_there = {r["id"] for r in bundle.rows["inspection"] if r["state"] == "signed"}
     for table, rows in bundle.rows.items():
-        ours_by_id = _stored_rows(store, table, [r["id"] for r in rows])
+        ours_by_id = store.rows_by_id(table, [r["id"] for r in rows])
         differing = []
         for theirs in rows:
             ours = ours_by_id.get(theirs["id"])
@@ -175,10 +178,12 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
                 differing.append((ours, theirs))
         seen = known_versions(store, table, [theirs["id"] for _, theirs in differing])
         for ours, theirs in differing:
-            if version_hash(theirs) in seen.get(theirs["id"], set()):
+            final = table in _PARTS and theirs.get("inspection_id") in signed_there
+            if not final and version_hash(theirs) in seen.get(theirs["id"], set()):
                 plan.kept_newer += 1
                 continue
-            kept = _winner(table, ours, theirs, prefer)
+            # What a signed inspection recorded is final: the signed copy wins here too.
+            kept = "theirs" if final else _winner(table, ours, theirs, prefer)
             conflict = Conflict(
                 table,
                 theirs["id"],
@@ -218,32 +223,6 @@ def _label(table: str, row: dict[str, Any]) -> str:
     return row["id"]
 
 
-def _stored_rows(store: Store, table: str, ids: list[str]) -> dict[str, dict[str, Any]]:
-    found: dict[str, dict[str, Any]] = {}
-    for start in range(0, len(ids), _CHUNK):
-        chunk = ids[start : start + _CHUNK]
-        marks = ",".join("?" * len(chunk))
-        cursor = store.db.execute(f"SELECT * FROM [{table}] WHERE id IN ({marks})", chunk)
-        names = [d[0] for d in cursor.description]
-        for values in cursor:
-            row = dict(zip(names, values, strict=True))
-            found[row["id"]] = row
-    return found
-
-
-def _present_ids(store: Store, table: str, ids: set[str]) -> set[str]:
-    wanted = sorted(ids)
-    present: set[str] = set()
-    for start in range(0, len(wanted), _CHUNK):
-        chunk = wanted[start : start + _CHUNK]
-        marks = ",".join("?" * len(chunk))
-        present.update(
-            row[0]
-            for row in store.db.execute(f"SELECT id FROM [{table}] WHERE id IN ({marks})", chunk)
-        )
-    return present
-
-
 def _check_references(store: Store, bundle: Bundle) -> None:
     """Refuse a bundle whose records point at records neither it nor the database holds."""
     in_bundle = {table: {r["id"] for r in rows} for table, rows in bundle.rows.items()}
@@ -255,7 +234,7 @@ def _check_references(store: Store, bundle: Bundle) -> None:
                 if ref and ref not in in_bundle[target]:
                     wanted.setdefault(target, {}).setdefault(ref, (table, row["id"], name))
     for target, refs in wanted.items():
-        missing = sorted(set(refs) - _present_ids(store, target, set(refs)))
+        missing = sorted(set(refs) - set(store.rows_by_id(target, sorted(refs))))
         if missing:
             table, row_id, name = refs[missing[0]]
             raise BundleError(
