@@ -14,7 +14,6 @@ from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
-from itertools import combinations
 from statistics import NormalDist, median
 from typing import Any
 
@@ -59,9 +58,13 @@ def theil_sen(
     """
     n = len(xs)
     points = sorted(zip(xs, ys, strict=True))
-    slopes = sorted(
-        (y2 - y1) / (x2 - x1) for (x1, y1), (x2, y2) in combinations(points, 2) if x2 > x1
-    )
+    slopes = [
+        (y2 - y1) / (x2 - x1)
+        for i, (x1, y1) in enumerate(points)
+        for x2, y2 in points[i + 1 :]
+        if x2 > x1
+    ]
+    slopes.sort()
     if not slopes:
         return None
     slope = median(slopes)

@@ -164,7 +164,7 @@ def _by_site(store: Store, model: type[Record], sql: str) -> Iterator[tuple[str,
     build = _trusted_builder(model, names)
     for site_id, rows in groupby(cursor, key=itemgetter(0)):
         with _collector_paused():
-            records = [build(row[1:]) for row in rows]
+            records = [build(row) for row in rows]
         yield site_id, records
 
 
@@ -185,35 +185,61 @@ def _collector_paused() -> Iterator[None]:
             gc.enable()
 
 
-def _trusted_builder(model: type[Record], names: list[str]) -> Callable[[tuple[Any, ...]], Record]:
+def _trusted_builder(
+    model: type[Record], names: list[str], skip: int = 1
+) -> Callable[[tuple[Any, ...]], Record]:
     """A fast way from a stored row to its record, for rows the store itself wrote.
 
     Every row was validated when it was written, so reading half a million of them
     back need not validate again: the text columns are turned back into dates,
     enums and booleans, and the record is assembled the way pydantic's
-    `model_construct` does. Should the table's columns not be exactly the model's
+    `model_construct` does. The function is generated with one expression per
+    column (as `dataclasses` generates `__init__`), since a loop over the columns
+    costs as much again. Should the table's columns not be exactly the model's
     fields (a database from another version), each row is validated instead.
+
+    Args:
+        model: the record type.
+        names: the columns, in the order the query gives them after the first `skip`.
+        skip: leading columns that are not the record's (the site id).
     """
     fields = model.model_fields
     if set(names) != set(fields):
-        return lambda row: from_row(model, dict(zip(names, row, strict=True)))
-    converters = [_converter(fields[name].annotation) for name in names]
-    every = set(names)
-    new, put = object.__new__, object.__setattr__
-
-    def build(row: tuple[Any, ...]) -> Record:
-        pairs = zip(converters, row, strict=True)
-        values = dict(
-            zip(names, [v if c is None or v is None else c(v) for c, v in pairs], strict=True)
-        )
-        record = new(model)
-        put(record, "__dict__", values)
-        put(record, "__pydantic_fields_set__", set(every))
-        put(record, "__pydantic_extra__", None)
-        put(record, "__pydantic_private__", None)
-        return record
-
-    return build
+        return lambda row: from_row(model, dict(zip(names, row[skip:], strict=True)))
+    scope: dict[str, Any] = {
+        "new": object.__new__,
+        "put": object.__setattr__,
+        "model": model,
+        "every": frozenset(names),
+        "parse_time": datetime.fromisoformat,
+        "UTC": UTC,
+        "stored_time": _stored_time,
+    }
+    items = []
+    for index, name in enumerate(names, start=skip):
+        convert = _converter(fields[name].annotation)
+        cell = f"row[{index}]"
+        if convert is None:
+            items.append(f"{name!r}: {cell}")
+        elif convert is _stored_time:  # the usual case inline: stored in UTC with its offset
+            items.append(
+                f"{name!r}: None if {cell} is None else (t if (t := parse_time({cell})).tzinfo"
+                f" is UTC else stored_time({cell}))"
+            )
+        else:
+            scope[f"convert_{index}"] = convert
+            items.append(f"{name!r}: None if {cell} is None else convert_{index}({cell})")
+    source = (
+        "def build(row):\n"
+        "    record = new(model)\n"
+        f"    put(record, '__dict__', {{{', '.join(items)}}})\n"
+        "    put(record, '__pydantic_fields_set__', set(every))\n"
+        "    put(record, '__pydantic_extra__', None)\n"
+        "    put(record, '__pydantic_private__', None)\n"
+        "    return record\n"
+    )
+    exec(source, scope)  # noqa: S102 - the source is made above from the model's own field names
+    return scope["build"]  # type: ignore[no-any-return]
 
 
 def _converter(annotation: Any) -> Callable[[Any], Any] | None:
