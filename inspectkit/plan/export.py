@@ -106,6 +106,8 @@ def render_table(plan: RoundPlan) -> str:
         f"days of {plan.settings.hours_per_day:g} h from "
         f"{plan.settings.day_start.strftime('%H:%M')}"
     ]
+    if not plan.days:
+        lines.append("Nothing with a position is due in this window.")
     for d in plan.days:
         flags = []
         if d.too_long:

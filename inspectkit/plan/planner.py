@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Iterable
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from datetime import date, datetime, timedelta
 
 from inspectkit.engine.schedule import schedule_site
@@ -104,7 +104,7 @@ class RoundPlan:
     days: tuple[PlannedDay, ...]
     no_position: tuple[Candidate, ...] = ()
     dropped: tuple[Candidate, ...] = ()
-    skipped: tuple[tuple[str, str], ...] = field(default=())
+    skipped: tuple[tuple[str, str], ...] = ()
 
     @property
     def visits(self) -> list[tuple[PlannedDay, Visit]]:
