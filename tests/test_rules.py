@@ -223,8 +223,36 @@ def test_overdue_site_and_drifting_electrode_through_check_site():
     assert "visual inspection is" in schedule.message and "days overdue" in schedule.message
     (trend,) = [r for r in check.results if r.rule == "trend"]
     assert trend.severity is Severity.WATCH and trend.due is not None
+    assert trend.value == pytest.approx(8.4) and trend.limit == 10.0 and trend.unit == "Ω"
     assert check.results[0].severity is Severity.OVERDUE
     assert check.summary.startswith("1 overdue, 1 watch; next: visual inspection")
+
+
+def test_site_with_no_inspections_is_due_now_and_says_so():
+    site = SiteBuilder("II")
+    site.joint_with_electrode(1)
+    check = check_site(site.records(), IEC, TODAY)
+    assert [r.rule for r in check.results] == ["schedule", "schedule"]
+    assert all("no " in r.message and "due today" in r.message for r in check.results)
+    assert check.worst is Severity.WATCH
+
+
+def test_today_before_the_first_inspection_judges_nothing_recorded_later():
+    site, _, _ = _one_electrode(40.0, start=2026)
+    check = check_site(site.records(), IEC, date(2025, 1, 1))
+    assert [r.rule for r in check.results] == ["schedule", "schedule"]
+    assert check.trends == ()
+
+
+def test_readings_on_the_same_day_the_later_one_decides():
+    site = SiteBuilder("II")
+    _, electrode = site.joint_with_electrode(1, down=False)
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, electrode, Quantity.EARTH_ISOLATED, 14.0, hour=9)
+    site.reading(
+        visit, electrode, Quantity.EARTH_ISOLATED, 4.0, hour=11
+    )  # after remaking the joint
+    assert _by_rule(site, "limit") == []
 
 
 def test_clean_site_is_ok():

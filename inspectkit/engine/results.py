@@ -22,7 +22,8 @@ class Result:
         component_id, component_tag: the component, where the result is about one.
         reading_id: the reading, where it is about one.
         message: one sentence a person can act on.
-        value, limit, unit: the figure judged and what it was judged against (SI units).
+        value, limit, unit: the figure judged and what it was judged against (SI units;
+            for a trend, the fitted value at the last reading).
         due: the date something must be done by, where there is one.
     """
 

@@ -385,9 +385,9 @@ def drifting_electrodes(facts: SiteFacts) -> Iterator[Result]:
             "before then.",
             component_id=trend.component_id,
             component_tag=trend.component_tag,
-            value=trend.slope_ohm_per_year,
+            value=trend.fitted_last,
             limit=trend.limit,
-            unit="Ω/year",
+            unit=Quantity.EARTH_ISOLATED.unit,
             due=trend.crossing,
         )
 
