@@ -208,15 +208,35 @@ def test_cli_export_and_import(office, tmp_path):
     store, records = office
     runner = CliRunner()
     out = tmp_path / "cli.zip"
-    result = runner.invoke(
-        app, ["export", "--db", str(store.path), "--site", "Harbour", "-o", str(out)]
-    )
+    args = ["export", "--db", str(store.path), "--site", "Harbour", "-o", str(out)]
+    result = runner.invoke(app, [*args, "--since", "2026-01-01"])
     assert result.exit_code == 0, result.output
-    target = tmp_path / "target.sqlite"
-    Store.open(target).close()
+    assert "3 reading" in result.output and "1 photo files" in result.output
+    target = tmp_path / "new-laptop.sqlite"  # not there yet: the import makes it
     result = runner.invoke(app, ["import", str(out), "--db", str(target), "--dry-run"])
     assert result.exit_code == 0, result.output
     assert "would be added" in result.output
     result = runner.invoke(app, ["import", str(out), "--db", str(target), "--json"])
     assert result.exit_code == 0, result.output
     assert json.loads(result.output)["added"]["reading"] == 3
+    # A conflict is reported, and exits 1 so that a script notices.
+    with Store.open(target) as laptop:
+        edit(laptop, laptop.get(Site, records.site.id), 1, notes="laptop")
+    edit(store, store.get(Site, records.site.id), 2, notes="office")
+    back = tmp_path / "back.zip"
+    runner.invoke(app, ["export", "--db", str(target), "--site", records.site.id, "-o", str(back)])
+    result = runner.invoke(
+        app, ["import", str(back), "--db", str(store.path), "--prefer", "theirs"]
+    )
+    assert result.exit_code == 1, result.output
+    assert "conflict: site Harbour Mill" in result.output and "kept theirs" in result.output
+    assert store.get(Site, records.site.id).notes == "laptop"
+
+
+def test_cli_refuses_a_broken_bundle_with_exit_2(office, tmp_path):
+    store, _ = office
+    broken = tmp_path / "broken.zip"
+    broken.write_bytes(b"not a zip at all")
+    result = CliRunner().invoke(app, ["import", str(broken), "--db", str(store.path)])
+    assert result.exit_code == 2
+    assert "refused, nothing was changed" in result.output

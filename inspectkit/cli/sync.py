@@ -153,7 +153,8 @@ def import_(
     """
     from inspectkit.sync.merge import import_bundle
 
-    with open_store(ctx, db) as store:
+    # A laptop that has never held a record receives its first bundle into a new file.
+    with open_store(ctx, db, create=True) as store:
         try:
             report = import_bundle(
                 store, bundle, prefer=prefer.value if prefer else None, dry_run=dry_run
