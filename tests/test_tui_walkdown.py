@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from collections.abc import AsyncIterator
+from contextlib import asynccontextmanager
 from datetime import UTC, date, datetime, timedelta
 from pathlib import Path
 
@@ -61,6 +63,17 @@ def walk_db(tmp_path: Path) -> tuple[Path, str]:
         site = build_walk_site(store)
         visit = start_inspection(store, site.site.id, "complete", None, date.today())
     return path, visit.id
+
+
+@asynccontextmanager
+async def walking(
+    walk_db: tuple[Path, str],
+) -> AsyncIterator[tuple[WalkHarness, Pilot[None], WalkdownScreen]]:
+    """The harness running at 80×24 with the walkdown screen shown."""
+    app = WalkHarness(*walk_db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        yield app, pilot, screen_of(app)
 
 
 def screen_of(app: App[None]) -> WalkdownScreen:
@@ -207,11 +220,8 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
 async def test_bad_input_says_what_is_expected_and_keeps_the_text(
     walk_db: tuple[Path, str],
 ) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(
             next(i for i, s in enumerate(screen.stops) if s.component.tag == "ER-01")
         )
@@ -233,11 +243,8 @@ async def test_bad_input_says_what_is_expected_and_keeps_the_text(
 
 
 async def test_unsaved_text_waits_and_moving_on_saves_it(walk_db: tuple[Path, str]) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)  # RC-01, continuity
         entry = screen.query_one(ReadingEntry)
         entry.input.focus()
@@ -252,11 +259,8 @@ async def test_unsaved_text_waits_and_moving_on_saves_it(walk_db: tuple[Path, st
 
 
 async def test_a_defect_needs_words_before_it_is_saved(walk_db: tuple[Path, str]) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
         await grade(pilot, screen, Grade.DEFECT)
         assert "not saved" in str(screen.query_one("#grade-status", Static).render())
         assert app.store.select(Finding, "inspection_id = ?", [visit_id]) == []
@@ -267,11 +271,7 @@ async def test_a_defect_needs_words_before_it_is_saved(walk_db: tuple[Path, str]
 
 
 async def test_jump_to_a_tag(walk_db: tuple[Path, str]) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    async with walking(walk_db) as (app, pilot, screen):
         await pilot.press("ctrl+g")
         await pilot.pause()
         assert isinstance(app.screen, TagPrompt)
@@ -291,10 +291,7 @@ async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str])
         rc = walk_for(store, visit_id)[2].component
         record_reading(store, visit_id, rc.id, "continuity", "0.15")
         grade_component(store, visit_id, rc.id, "sound")
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    async with walking(walk_db) as (app, pilot, screen):
         assert "done" in str(screen.stop_list.get_option_at_index(2).prompt)
         await screen.show_stop(2)
         entry = screen.query_one(ReadingEntry)
@@ -303,10 +300,8 @@ async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str])
 
 
 async def test_finish_lists_what_is_missing_first(walk_db: tuple[Path, str]) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, _):
         await pilot.press("ctrl+f")
         await pilot.pause()
         question = str(app.screen.query_one("#question", Static).render())
@@ -321,11 +316,8 @@ async def test_finish_lists_what_is_missing_first(walk_db: tuple[Path, str]) -> 
 async def test_a_folder_of_photos_is_matched_by_time(
     walk_db: tuple[Path, str], tmp_path: Path
 ) -> None:
-    path, visit_id = walk_db
-    app = WalkHarness(path, visit_id)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        screen = screen_of(app)
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)
         await type_into(pilot, screen.query_one(ReadingEntry), "0.1")
         write_photo(tmp_path / "card" / "IMG_1.jpg", datetime.now(UTC))

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import subprocess
+import sys
 from datetime import UTC, date, datetime, timedelta
 from pathlib import Path
 
@@ -276,3 +278,10 @@ def test_signed_inspection_refuses_entries(store: Store, site: WalkSite) -> None
 def test_every_kind_has_a_checklist(kind: ComponentKind) -> None:
     items = load_checklist(kind)
     assert len(items) >= 3
+
+
+def test_the_walkdown_logic_imports_without_textual() -> None:
+    """A command or a test can walk a site without the screen's framework loaded."""
+    code = "import sys, inspectkit.walkdown, inspectkit.checklists; print('textual' in sys.modules)"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"

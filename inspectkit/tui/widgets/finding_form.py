@@ -26,6 +26,13 @@ GRADE_STYLES: dict[Grade, str] = {
 }
 _GRADES = list(GRADE_WORDS)
 
+#: The finding's words: key, label and an example; all but the first only when not sound.
+_FIELDS = (
+    ("text", "what was found / note", "e.g. clamp loose, conductor bent at the gutter"),
+    ("remedial", "remedial action", "e.g. re-tighten clamp, replace fixing"),
+    ("due", "due by (YYYY-MM-DD)", "e.g. 2026-07-31"),
+)
+
 #: Saves grade, text, remedial action and due date together; raises WalkdownError.
 FindingSaver = Callable[[Grade, str, str, str], Finding]
 
@@ -59,27 +66,20 @@ class FindingForm(Vertical):
                 yield RadioButton(word, value=grade is chosen, id=f"grade-{grade.value}")
         yield Static(self._grade_text(), id="grade-status")
         finding = self.finding
-        yield SavingField(
-            "what was found / note",
-            lambda t: self._save("text", t),
-            value=finding.text if finding else "",
-            placeholder="e.g. clamp loose, conductor bent at the gutter",
-            id="finding-text",
-        )
-        yield SavingField(
-            "remedial action",
-            lambda t: self._save("remedial", t),
-            value=finding.remedial_action if finding else "",
-            placeholder="e.g. re-tighten clamp, replace fixing",
-            id="finding-remedial",
-        ).set_class(True, "only-not-sound")
-        yield SavingField(
-            "due by (YYYY-MM-DD)",
-            lambda t: self._save("due", t),
-            value=finding.due_by.isoformat() if finding and finding.due_by else "",
-            placeholder="e.g. 2026-07-31",
-            id="finding-due",
-        ).set_class(True, "only-not-sound")
+        saved = {
+            "text": finding.text if finding else "",
+            "remedial": finding.remedial_action if finding else "",
+            "due": finding.due_by.isoformat() if finding and finding.due_by else "",
+        }
+        for key, label, example in _FIELDS:
+            field = SavingField(
+                label,
+                lambda t, key=key: self._save(key, t),
+                value=saved[key],
+                placeholder=example,
+                id=f"finding-{key}",
+            )
+            yield field.set_class(key != "text", "only-not-sound")
 
     def on_mount(self) -> None:
         self.set_class(self.chosen in (None, Grade.SOUND), "-sound")
@@ -106,7 +106,7 @@ class FindingForm(Vertical):
         grade = self.chosen
         if grade is None:
             raise WalkdownError("grade", "pick a grade first: sound, needs attention or defect")
-        values = {key: self._field(key).value for key in ("text", "remedial", "due")}
+        values = {key: self._field(key).value for key, _, _ in _FIELDS}
         values[changed] = text
         self.finding = self._save_finding(grade, values["text"], values["remedial"], values["due"])
         self._show_grade()
@@ -132,7 +132,7 @@ class FindingForm(Vertical):
                 Text(f"✗ {GRADE_WORDS[grade]} not saved: {exc}\n  type what was found below")
             )
             return
-        for key in ("text", "remedial", "due"):
+        for key, _, _ in _FIELDS:
             field = self._field(key)
             if field.dirty:
                 field.saved_value = field.value
