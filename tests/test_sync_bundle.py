@@ -240,3 +240,31 @@ def test_cli_refuses_a_broken_bundle_with_exit_2(office, tmp_path):
     result = CliRunner().invoke(app, ["import", str(broken), "--db", str(store.path)])
     assert result.exit_code == 2
     assert "refused, nothing was changed" in result.output
+
+
+def test_an_import_signing_one_inspection_and_refused_on_another_keeps_both_rules(office, tmp_path):
+    """One refused record sends the merge record by record; the signing bundle still wins."""
+    store, records = office
+    second = Inspection(site_id=records.site.id, kind="visual", date=date(2026, 7, 1))
+    late = Reading(**{**records.readings[2].model_dump(), "id": new_id(),
+                      "inspection_id": second.id})  # fmt: skip
+    store.save_all([second, late])
+    store.close()
+    laptop = Store.open(copy_db(tmp_path / "office.sqlite", tmp_path / "laptop.sqlite"))
+    store = Store.open(tmp_path / "office.sqlite")
+    # Office: signs the first inspection and edits the second's reading.
+    sign(store, store.get(Inspection, records.inspection.id))
+    edit(store, store.get(Reading, late.id), 5, note="re-read after rain")
+    # Laptop: signs the second inspection and edits a reading of the first.
+    sign(laptop, laptop.get(Inspection, second.id))
+    edit(laptop, laptop.get(Reading, records.readings[0].id), 4, note="leads swapped")
+
+    report = import_bundle(laptop, export_bundle(store, records.site.id, tmp_path / "o.zip").path)
+
+    assert len(report.kept_signed) == 1 and late.id in report.kept_signed[0]
+    assert laptop.get(Reading, late.id).note == ""
+    assert laptop.get(Reading, records.readings[0].id).note == ""  # the signed copy's
+    assert laptop.get(Inspection, records.inspection.id).state.value == "signed"
+    assert laptop.verify_audit() == []
+    laptop.close()
+    store.close()

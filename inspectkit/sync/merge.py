@@ -284,6 +284,11 @@ def _parents_first(items: list[_Write], ref: str) -> list[_Write]:
     return result
 
 
+def _phase(write: _Write) -> int:
+    table, _, what = write
+    return 0 if what == "added" else 2 if table == "inspection" else 1
+
+
 def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
     """Write the plan; records the store refuses as frozen are kept ours, one by one."""
     writes = _ordered(plan.writes)
@@ -293,7 +298,12 @@ def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
         with store.transaction():
             store.save_all(records, touch=False)
     except FrozenRecordError:
-        for record in records:
+        # One by one, in an order that checks each record against the signatures the
+        # database held before the import, as the batch did: new records first, then
+        # changed ones, and inspections last (one signed by this bundle must not
+        # refuse the readings it brings along).
+        for table, row, _ in sorted(writes, key=_phase):
+            record = plan.records[table][row["id"]]
             try:
                 with store.transaction():
                     store.save_all([record], touch=False)
