@@ -105,7 +105,7 @@ def import_csv(
         )  # fmt: skip
         return
     for outcome in result.rows:
-        typer.echo(outcome.describe())
+        typer.echo(outcome.describe(dry_run))
     verb = "would be added" if dry_run else "added"
     typer.echo(f"{result.added} readings {verb}, {len(result.rows) - result.added} skipped.")
 

@@ -97,8 +97,8 @@ def export(
                 summary = export_bundle(store, site_id, target, since=since_day)
             except BundleError as exc:
                 fail(str(exc))
-            counts = ", ".join(f"{n} {t}" for t, n in summary.counts.items() if n)
-            typer.echo(f"Wrote {summary.path}: {counts}, {summary.photos} photo files.")
+            counts = ", ".join(f"{t} {n}" for t, n in summary.counts.items() if n)
+            typer.echo(f"Wrote {summary.path}: records {counts}; {summary.photos} photo files.")
             return
         if since_day is not None:
             fail("--since applies to bundles only")

@@ -129,14 +129,15 @@ class RowOutcome:
     #: "added", or "already recorded" when the inspection holds the same reading.
     action: str
 
-    def describe(self) -> str:
+    def describe(self, dry_run: bool = False) -> str:
         r = self.reading
         shown = (
             units.format_value(r.value, r.quantity, r.over_range) if r.value is not None else "OL"
         )
         return (
             f"row {self.row} (line {self.line}): {self.tag} {r.quantity.label} {shown} "
-            f"at {r.taken_at.isoformat(timespec='minutes')}: {self.action}"
+            f"at {r.taken_at.isoformat(timespec='minutes')}: "
+            f"{'would be added' if dry_run and self.action == 'added' else self.action}"
         )
 
 

@@ -82,7 +82,7 @@ class ImportReport:
         lines = [f"Bundle for site {self.site_name}:"]
         for what, counts in (("added", self.added), ("updated", self.updated)):
             if counts:
-                parts = ", ".join(f"{n} {table}" for table, n in sorted(counts.items()))
+                parts = ", ".join(f"{table} {n}" for table, n in sorted(counts.items()))
                 lines.append(f"  {sum(counts.values())} records {verb} {what} ({parts})")
         lines.append(f"  {self.unchanged} records already the same")
         if self.kept_newer:
