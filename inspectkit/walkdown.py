@@ -241,14 +241,25 @@ def _component(store: Store, inspection: Inspection, component_id: str) -> Compo
     return component
 
 
-def _validated(model: type[Any], data: dict[str, Any], now: date | datetime | None = None) -> Any:
-    """A record checked by its model; a refusal names the field and what to type."""
+def _validated(
+    model: type[Any],
+    data: dict[str, Any],
+    now: date | datetime | None = None,
+    whole: str = "record",
+) -> Any:
+    """A record checked by its model; a refusal names the field and what to type.
+
+    Args:
+        whole: The field to blame for a check on the whole record (the model's
+            own rules, such as a defect needing words).
+    """
     try:
         return model.model_validate(data, context={"now": now} if now is not None else None)
     except ValidationError as exc:
         first = exc.errors()[0]
-        loc = first["loc"][0] if first["loc"] else "record"
-        raise WalkdownError(str(loc), explain(exc)) from None
+        if first["loc"]:
+            raise WalkdownError(str(first["loc"][0]), explain(exc)) from None
+        raise WalkdownError(whole, explain(exc).removeprefix("record: ")) from None
 
 
 def _save(store: Store, record: Any) -> Any:
@@ -575,13 +586,25 @@ def grade_component(
         "grade": grade,
         "text": text.strip(),
         "remedial_action": remedial_action.strip(),
-        "due_by": due_by or None,
+        "due_by": _day(due_by, "due_by") if isinstance(due_by, str) else due_by,
         "category": category.strip(),
     }
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
-    return _save(store, _validated(Finding, data))
+    return _save(store, _validated(Finding, data, whole="text"))
+
+
+def _day(text: str, field: str) -> date | None:
+    """A day typed as YYYY-MM-DD; blank is none."""
+    if not text.strip():
+        return None
+    try:
+        return date.fromisoformat(text.strip())
+    except ValueError:
+        raise WalkdownError(
+            field, f"{text.strip()!r} is not a date; type it as YYYY-MM-DD, e.g. 2026-07-31"
+        ) from None
 
 
 # ------------------------------------------------------------------------ photos

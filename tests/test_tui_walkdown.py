@@ -326,3 +326,20 @@ async def test_a_folder_of_photos_is_matched_by_time(
         photos = app.store.select(Photo, "inspection_id = ?", [visit_id])
         assert [p.component_id for p in photos] == [screen.stop.component.id]
         assert "1 attached" in status_of(screen.query_one("#photo", SavingField))
+
+
+async def test_a_bad_due_date_is_marked_on_its_own_field(walk_db: tuple[Path, str]) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        await grade(pilot, screen, Grade.NEEDS_ATTENTION)
+        due = screen.query_one("#finding-due", SavingField)
+        due.input.value = "next week"
+        text = screen.query_one("#finding-text", SavingField)
+        await type_into(pilot, text, "fixing loose")
+        assert "YYYY-MM-DD" in status_of(due)
+        assert "field marked ✗" in status_of(text)
+        assert app.store.select(Finding, "inspection_id = ?", [visit_id]) == []
+        await type_into(pilot, due, "2026-07-31")
+        assert "✓ saved" in status_of(text) and "✓ saved" in status_of(due)
+        [finding] = app.store.select(Finding, "inspection_id = ?", [visit_id])
+        assert (finding.text, finding.due_by) == ("fixing loose", date(2026, 7, 31))

@@ -285,3 +285,12 @@ def test_the_walkdown_logic_imports_without_textual() -> None:
     code = "import sys, inspectkit.walkdown, inspectkit.checklists; print('textual' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_a_bad_due_date_names_the_format(store: Store, site: WalkSite, visit: Inspection) -> None:
+    with pytest.raises(WalkdownError) as err:
+        grade_component(store, visit.id, site.tag("AT-01").id, "defect", "bent", "", "2026-13-01")
+    assert err.value.field == "due_by" and "YYYY-MM-DD" in str(err.value)
+    with pytest.raises(WalkdownError) as err:
+        grade_component(store, visit.id, site.tag("AT-01").id, "defect", "  ")
+    assert err.value.field == "text"

@@ -33,6 +33,9 @@ _FIELDS = (
     ("due", "due by (YYYY-MM-DD)", "e.g. 2026-07-31"),
 )
 
+#: Which of the form's fields a refusal from the record's model is about.
+_FIELD_OF = {"text": "text", "remedial_action": "remedial", "due_by": "due"}
+
 #: Saves grade, text, remedial action and due date together; raises WalkdownError.
 FindingSaver = Callable[[Grade, str, str, str], Finding]
 
@@ -108,9 +111,29 @@ class FindingForm(Vertical):
             raise WalkdownError("grade", "pick a grade first: sound, needs attention or defect")
         values = {key: self._field(key).value for key, _, _ in _FIELDS}
         values[changed] = text
-        self.finding = self._save_finding(grade, values["text"], values["remedial"], values["due"])
+        try:
+            self.finding = self._save_finding(
+                grade, values["text"], values["remedial"], values["due"]
+            )
+        except WalkdownError as exc:
+            at_fault = _FIELD_OF.get(exc.field)
+            if at_fault is None or at_fault == changed or changed == "grade":
+                raise
+            self._field(at_fault).show_error(str(exc))
+            raise WalkdownError(
+                changed, "kept as typed until the field marked ✗ is fixed"
+            ) from None
         self._show_grade()
+        self._all_saved(but=changed)
         return SAVED
+
+    def _all_saved(self, but: str) -> None:
+        """The other fields went into the finding just saved: say so where they waited."""
+        for key, _, _ in _FIELDS:
+            field = self._field(key)
+            if key != but and (field.dirty or field.has_class("-error")):
+                field.saved_value = field.value
+                field.show_status(SAVED)
 
     def _show_grade(self) -> None:
         status = self.query_one("#grade-status", Static)
@@ -132,8 +155,3 @@ class FindingForm(Vertical):
                 Text(f"✗ {GRADE_WORDS[grade]} not saved: {exc}\n  type what was found below")
             )
             return
-        for key, _, _ in _FIELDS:
-            field = self._field(key)
-            if field.dirty:
-                field.saved_value = field.value
-                field.show_status(SAVED)
