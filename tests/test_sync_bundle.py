@@ -268,3 +268,21 @@ def test_an_import_signing_one_inspection_and_refused_on_another_keeps_both_rule
     assert laptop.verify_audit() == []
     laptop.close()
     store.close()
+
+
+def test_every_demo_site_travels_to_a_fresh_database_and_back_unchanged(tmp_path):
+    from inspectkit.demo.generate import build_demo
+
+    source = Store.open(build_demo(tmp_path / "demo.sqlite", date(2026, 11, 1)))
+    target = Store.open(tmp_path / "fresh.sqlite")
+    for site in source.select(Site):
+        report = import_bundle(target, export_bundle(source, site.id, tmp_path / "to.zip").path)
+        assert not report.conflicts and not report.kept_signed, report.lines()
+    assert record_rows(target) == record_rows(source)
+    assert photo_files(target) == photo_files(source)
+    assert target.verify_audit() == []
+    for site in target.select(Site):
+        report = import_bundle(source, export_bundle(target, site.id, tmp_path / "back.zip").path)
+        assert not report.changed, report.lines()
+    source.close()
+    target.close()
