@@ -165,6 +165,19 @@ def _photo_file_missing(tmp, members):
     return _write(tmp / "b.zip", _with_records(members, content))
 
 
+def _duplicate_member(tmp, members):
+    path = _write(tmp / "b.zip", members)
+    with pytest.warns(UserWarning, match="Duplicate name"), zipfile.ZipFile(path, "a") as archive:
+        archive.writestr("records.json", b'{"tables": {}, "history": {}}')
+    return path
+
+
+def _unknown_table(tmp, members):
+    content = _records(members)
+    content["tables"]["invoice"] = []
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
 CASES = {
     "path with ..": (_escape, "leads out of the bundle"),
     "absolute path": (_absolute, "absolute path"),
@@ -182,6 +195,8 @@ CASES = {
     "not a zip": (_not_a_zip, "not a bundle"),
     "unlisted member": (_unlisted_photo, "not in the manifest"),
     "photo file nowhere": (_photo_file_missing, "neither in the bundle nor in"),
+    "duplicate member": (_duplicate_member, "appears twice"),
+    "unknown table": (_unknown_table, "unknown table 'invoice'"),
 }
 
 
