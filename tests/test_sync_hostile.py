@@ -84,6 +84,8 @@ def _backslash_escape(tmp, members):
 
 
 def _link(tmp, members):
+    # A Unix symlink's mode sits in the high 16 bits of the external attributes
+    # (PKWARE APPNOTE.TXT 4.4.15, host-dependent; Info-ZIP's Unix convention).
     name = _photo(members)
     return _write(
         tmp / "b.zip", {**members, name: b"/etc/passwd"}, attrs={name: (stat.S_IFLNK | 0o777) << 16}

@@ -65,6 +65,7 @@ def check_members(archive: zipfile.ZipFile, limits: Limits) -> list[zipfile.ZipI
         if name in seen:
             raise BundleError(f"member {name!r} appears twice; the bundle is damaged")
         seen.add(name)
+        # Unix mode bits, as Info-ZIP stores them (PKWARE APPNOTE.TXT 4.4.15).
         mode = info.external_attr >> 16
         if stat.S_ISLNK(mode):
             raise BundleError(f"member {name!r} is a link; a bundle holds plain files only")
