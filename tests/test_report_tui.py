@@ -97,3 +97,26 @@ async def test_export_draft_leaves_it_a_draft(harness, tmp_path: Path) -> None:
         await pilot.pause()
     assert out.is_file()
     assert store.get(Inspection, made.current.id).state is InspectionState.DRAFT
+
+
+async def test_the_site_screen_opens_the_latest_visits_report(tmp_path: Path) -> None:
+    from inspectkit.tui.app import make_app
+    from inspectkit.tui.preferences import Preferences
+    from inspectkit.tui.screens.site import SiteScreen
+    from test_report_factory import TODAY
+
+    db = tmp_path / "db.sqlite"
+    with Store.open(db) as store:
+        made = build_site(store, tmp_path, photos=0)
+        Preferences(store).acknowledge_cautions()
+    app = make_app(db, today=TODAY)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await app.workers.wait_for_complete()
+        await app.push_screen(SiteScreen(made.site.id))
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("r")
+        await pilot.pause()
+        assert isinstance(app.screen, ReportScreen)
+        assert app.screen.inspection_id == made.current.id
+        assert "Müllerhof Granary" in _preview(app)
