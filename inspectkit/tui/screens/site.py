@@ -83,6 +83,10 @@ class SiteScreen(Screen[None]):
             "x", "retire_component", "Retire", id="site.retire",
             tooltip="Retire the highlighted component; its history is kept",
         ),
+        Binding(
+            "r", "report", "Report", id="site.report", show=False,
+            tooltip="Preview, sign and export the report of the visit highlighted in Visits",
+        ),
     ]
 
     def __init__(self, site_id: str) -> None:
@@ -308,6 +312,17 @@ class SiteScreen(Screen[None]):
             ),
             begin,
         )
+
+    def action_report(self) -> None:
+        """Open the report of the visit highlighted in the Visits tab (the latest by default)."""
+        from inspectkit.tui.screens.report import ReportScreen
+
+        table = self.query_one("#visits", DataTable)
+        if table.row_count == 0:
+            self.notify("No visit yet: start a walkdown first", severity="warning")
+            return
+        row = table.coordinate_to_cell_key(table.cursor_coordinate).row_key
+        self.app.push_screen(ReportScreen(str(row.value)))
 
     def action_edit_site(self) -> None:
         if self.records is None:
