@@ -8,7 +8,7 @@ from datetime import UTC, date, datetime
 from pathlib import Path
 
 import pytest
-from sync_factories import build_site, copy_db, edit, photo_files, record_rows, sign
+from sync_factories import build_site, copy_db, edit, file_hash, photo_files, record_rows, sign
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
@@ -179,12 +179,13 @@ def test_a_signed_inspection_survives_an_import_that_tries_to_change_it(office, 
 def test_dry_run_reports_and_writes_nothing(office, tmp_path):
     store, records = office
     bundle = export_bundle(store, records.site.id, tmp_path / "b.zip").path
-    laptop = Store.open(tmp_path / "laptop.sqlite")
-    audits = _audit_count(laptop)
-    report = import_bundle(laptop, bundle, dry_run=True)
-    assert report.dry_run and report.added["reading"] == 3 and report.photos_added == 1
-    assert _audit_count(laptop) == audits and laptop.select(Site) == []
-    assert photo_files(laptop) == set()
+    Store.open(tmp_path / "laptop.sqlite").close()
+    before = file_hash(tmp_path / "laptop.sqlite")
+    with Store.open(tmp_path / "laptop.sqlite") as laptop:
+        report = import_bundle(laptop, bundle, dry_run=True)
+        assert report.dry_run and report.added["reading"] == 3 and report.photos_added == 1
+        assert laptop.select(Site) == [] and photo_files(laptop) == set()
+    assert file_hash(tmp_path / "laptop.sqlite") == before
 
 
 def test_since_exports_only_what_changed_and_refuses_records_without_their_parents(
