@@ -247,6 +247,10 @@ def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | Non
             }
     except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
         raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
+    except OSError as exc:
+        raise BundleError(
+            f"{path}: cannot be read or unpacked ({exc}); nothing was written"
+        ) from exc
     return Bundle(manifest, rows, checked, history, photos)
 
 
