@@ -50,8 +50,8 @@ from inspectkit.walkdown import (
 
 #: Setting that remembers the instrument in use, shared with the settings screen.
 INSTRUMENT_SETTING = "instrument_id"
-#: How many missing items the finish question lists before "and N more".
-_MISSING_SHOWN = 8
+#: How many ungraded tags the finish question names before "and N more".
+_UNGRADED_SHOWN = 20
 
 #: A stop's state in the list: the word carries the meaning, the colour repeats it.
 _MARK_STYLES = {
@@ -496,10 +496,14 @@ def _finish_question(missing: list[Missing]) -> Text:
         return Text(
             "Every component is graded and every test taken.\nMark the inspection complete?"
         )
-    text = Text(f"Still missing ({len(missing)}):\n", style="bold")
-    for item in missing[:_MISSING_SHOWN]:
-        text.append(f" • {item.what}\n", style="")
-    if len(missing) > _MISSING_SHOWN:
-        text.append(f" … and {len(missing) - _MISSING_SHOWN} more\n")
+    text = Text("Still missing:\n", style="bold")
+    for item in missing:
+        if item.component is None:
+            text.append(f" • {item.what}\n")
+    ungraded = [item.component.tag for item in missing if item.component is not None]
+    if ungraded:
+        shown = ", ".join(ungraded[:_UNGRADED_SHOWN])
+        more = len(ungraded) - _UNGRADED_SHOWN
+        text.append(f" • not graded yet: {shown}{f' and {more} more' if more > 0 else ''}\n")
     text.append("\nMark the inspection complete anyway?", style="bold")
     return text
