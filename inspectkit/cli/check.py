@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
+import gc
 from collections.abc import Iterator
+from contextlib import contextmanager
 from datetime import date, datetime
 from typing import Annotated
 
@@ -37,7 +39,25 @@ def gather(
         if found is None:
             raise LookupError(site)
         sites = iter([load_site_records(store, found.id)])
-    return worst_first(check_all(sites, profiles, today))
+    with _collector_paused():
+        return worst_first(check_all(sites, profiles, today))
+
+
+@contextmanager
+def _collector_paused() -> Iterator[None]:
+    """Pause the cycle collector for a run over the whole database.
+
+    A run makes half a million records and their results, none holding a reference
+    cycle, and lets each site's go before the next: the collector would find nothing
+    in them, yet would sweep them again and again (a tenth of the run, measured).
+    """
+    was_on = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_on:
+            gc.enable()
 
 
 def render(checks: list[SiteCheck]) -> Iterator[str]:

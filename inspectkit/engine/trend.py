@@ -67,12 +67,15 @@ def theil_sen(
     slopes.sort()
     if not slopes:
         return None
-    slope = median(slopes)
+    middle = len(slopes) // 2  # sorted already: no need for statistics.median to sort again
+    slope = slopes[middle] if len(slopes) % 2 else (slopes[middle - 1] + slopes[middle]) / 2
     intercept = median(ys) - slope * median(xs)
     alpha = min(confidence, 1 - confidence)
     z = NormalDist().inv_cdf(alpha / 2)
 
     def ties(values: Sequence[float]) -> int:
+        if len(set(values)) == len(values):
+            return 0
         return sum(k * (k - 1) * (2 * k + 5) for k in Counter(values).values())
 
     sigma_sq = (n * (n - 1) * (2 * n + 5) - ties(xs) - ties(ys)) / 18
