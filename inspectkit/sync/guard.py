@@ -40,7 +40,7 @@ class Limits:
     """
 
     member_bytes: int = 64 << 20
-    records_bytes: int = 512 << 20
+    records_bytes: int = 128 << 20
     total_bytes: int = 16 << 30
     ratio: float = 200.0
     ratio_floor: int = 1 << 20
