@@ -1,4 +1,4 @@
-"""Amendments: a signed inspection is corrected by a new draft that references it and says what changed."""
+"""Amendments: a signed inspection is corrected by a new draft that says what changed."""
 
 from __future__ import annotations
 
@@ -9,6 +9,8 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 from reportlab import rl_config
+from test_report_factory import PASSPHRASE, build_site
+from test_report_sign import NOW, give_key
 
 from inspectkit.model import Finding, Inspection, InspectionKind, InspectionState, Reading
 from inspectkit.report.amend import AmendError, create_amendment
@@ -16,8 +18,6 @@ from inspectkit.report.model import build_report
 from inspectkit.report.publish import export_report
 from inspectkit.report.verify import verify_pdf
 from inspectkit.store import Store
-from test_report_factory import PASSPHRASE, build_site
-from test_report_sign import NOW, give_key
 
 
 @pytest.fixture(autouse=True)
@@ -57,8 +57,9 @@ def test_amending_a_draft_is_refused(tmp_path: Path) -> None:
 
 def test_amended_report_references_the_original_and_says_what_changed(amended) -> None:
     store, made, inspector, amendment, folder = amended
-    copy = next(r for r in store.select(Reading, "inspection_id = ?", [amendment.id])
-                if r.value == 0.35)
+    copy = next(
+        r for r in store.select(Reading, "inspection_id = ?", [amendment.id]) if r.value == 0.35
+    )
     store.save(copy.model_copy(update={"value": 0.15, "note": "re-tested after cleaning"}))
     original = store.get(Inspection, made.current.id)
 

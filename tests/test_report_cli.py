@@ -7,12 +7,12 @@ from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
+from test_report_factory import build_site
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
 from inspectkit.model import Inspection, InspectionState, Inspector
 from inspectkit.store import Store
-from test_report_factory import build_site
 
 
 @pytest.fixture
@@ -37,8 +37,9 @@ def test_keys_new_report_sign_verify_and_amend(db: Path, tmp_path: Path) -> None
     assert (db.parent / inspector.signing_key).is_file()
 
     out = tmp_path / "signed.pdf"
-    signed = run("report", "--site", "müllerhof", "-o", str(out), "--sign", "--db", str(db),
-                 "--json")
+    signed = run(
+        "report", "--site", "müllerhof", "-o", str(out), "--sign", "--db", str(db), "--json"
+    )
     assert signed.exit_code == 0, signed.output
     summary = json.loads(signed.output)
     assert summary["signed"] and summary["pages"] == len(PdfReader(out).pages)
@@ -57,12 +58,30 @@ def test_keys_new_report_sign_verify_and_amend(db: Path, tmp_path: Path) -> None
 
 
 def test_passphrase_is_prompted_for_without_the_variable(db: Path, tmp_path: Path) -> None:
-    made = run("keys", "new", "--inspector", "Zoë Ångström-Müller", "--db", str(db),
-               passphrase=None, input="pw\npw\n")
+    made = run(
+        "keys",
+        "new",
+        "--inspector",
+        "Zoë Ångström-Müller",
+        "--db",
+        str(db),
+        passphrase=None,
+        input="pw\npw\n",
+    )
     assert made.exit_code == 0, made.output
     out = tmp_path / "r.pdf"
-    signed = run("report", "--site", "Müllerhof Granary", "-o", str(out), "--sign", "--db",
-                 str(db), passphrase=None, input="pw\n")
+    signed = run(
+        "report",
+        "--site",
+        "Müllerhof Granary",
+        "-o",
+        str(out),
+        "--sign",
+        "--db",
+        str(db),
+        passphrase=None,
+        input="pw\n",
+    )
     assert signed.exit_code == 0, signed.output
     assert "pw" not in signed.output.replace("Key passphrase", "")
 
@@ -70,8 +89,9 @@ def test_passphrase_is_prompted_for_without_the_variable(db: Path, tmp_path: Pat
 def test_bad_input_exits_2_with_the_field_named(db: Path, tmp_path: Path) -> None:
     nobody = run("keys", "new", "--inspector", "nobody", "--db", str(db))
     assert nobody.exit_code == 2 and "--inspector 'nobody'" in nobody.output
-    no_key = run("report", "--site", "Müllerhof", "-o", str(tmp_path / "a.pdf"), "--sign",
-                 "--db", str(db))
+    no_key = run(
+        "report", "--site", "Müllerhof", "-o", str(tmp_path / "a.pdf"), "--sign", "--db", str(db)
+    )
     assert no_key.exit_code == 2 and "no signing key" in no_key.output
     assert not (tmp_path / "a.pdf").exists()
     neither = run("report", "--db", str(db))

@@ -1,4 +1,4 @@
-"""Rendering: every reading's value, limit and result in the text; pages, photos, charts, footers."""
+"""Rendering: every reading's value, limit and result in the text; pages, photos, charts."""
 
 from __future__ import annotations
 
@@ -10,6 +10,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 from reportlab import rl_config
+from test_report_factory import _jpeg, build_site
 
 from inspectkit.report.branding import BrandingError, load_branding
 from inspectkit.report.content import CAUTIONS, Field, ReadingRow
@@ -18,7 +19,6 @@ from inspectkit.report.photos import downscale
 from inspectkit.report.render import render_report
 from inspectkit.store import Store
 from inspectkit.units import format_value
-from test_report_factory import _jpeg, build_site
 
 
 @pytest.fixture(autouse=True)
@@ -105,9 +105,9 @@ def test_photo_choice_leaves_the_others_out(built) -> None:
 def test_same_content_gives_the_same_bytes(built) -> None:
     store, made = built
     content = build_report(store, made.current.id)
-    assert render_report(content, load_branding()).data == render_report(
-        content, load_branding()
-    ).data
+    assert (
+        render_report(content, load_branding()).data == render_report(content, load_branding()).data
+    )
 
 
 def test_long_tables_split_with_the_header_repeated(built) -> None:
@@ -145,8 +145,18 @@ def test_a_hand_built_report_renders_without_a_store(built) -> None:
     store, made = built
     content = replace(
         build_report(store, made.current.id),
-        readings=(ReadingRow("r", "SPD-01", "surge protective device", "bonding resistance",
-                             "low-ohm, 4-wire", "0.9 Ω", "≤ 1 Ω", "PASS"),),
+        readings=(
+            ReadingRow(
+                "r",
+                "SPD-01",
+                "surge protective device",
+                "bonding resistance",
+                "low-ohm, 4-wire",
+                "0.9 Ω",
+                "≤ 1 Ω",
+                "PASS",
+            ),
+        ),
         site=(Field("Client", "Ærø Ølstue"),),
         inspection_date=date(2026, 1, 2),
     )

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import hashlib
-import io
 from datetime import UTC, datetime
 from pathlib import Path
 
@@ -13,17 +12,24 @@ from pyhanko.pdf_utils.reader import PdfFileReader
 from pyhanko.sign.validation import validate_pdf_signature
 from pyhanko_certvalidator import ValidationContext
 from reportlab import rl_config
+from test_report_factory import PASSPHRASE, build_site
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
 from inspectkit.model import Inspection, InspectionState, Inspector, Reading
-from inspectkit.report.keys import KeyProblem, key_path, keys_dir, new_key, read_key, stored_key_path
+from inspectkit.report.keys import (
+    KeyProblem,
+    key_path,
+    keys_dir,
+    new_key,
+    read_key,
+    stored_key_path,
+)
 from inspectkit.report.model import ReportError
 from inspectkit.report.publish import export_report
 from inspectkit.report.sign import SignError
 from inspectkit.report.verify import verify_pdf
 from inspectkit.store import FrozenRecordError, Store
-from test_report_factory import PASSPHRASE, build_site
 
 NOW = datetime(2026, 11, 3, 16, 0, tzinfo=UTC)
 
@@ -36,10 +42,22 @@ def _invariant(monkeypatch: pytest.MonkeyPatch) -> None:
 def give_key(store: Store, inspector: Inspector) -> Inspector:
     """A fresh key beside the database, recorded on the inspector as `keys new` does."""
     path = keys_dir(store) / f"{inspector.id}.p12"
-    made = new_key(path, PASSPHRASE, name=inspector.name, organisation=inspector.organisation,
-                   qualification=inspector.qualification, now=NOW)
-    return store.save(inspector.model_copy(update={
-        "signing_key": stored_key_path(store, path), "certificate_pem": made.certificate_pem}))
+    made = new_key(
+        path,
+        PASSPHRASE,
+        name=inspector.name,
+        organisation=inspector.organisation,
+        qualification=inspector.qualification,
+        now=NOW,
+    )
+    return store.save(
+        inspector.model_copy(
+            update={
+                "signing_key": stored_key_path(store, path),
+                "certificate_pem": made.certificate_pem,
+            }
+        )
+    )
 
 
 @pytest.fixture

@@ -6,6 +6,8 @@ from pathlib import Path
 
 import pytest
 from reportlab import rl_config
+from test_report_factory import PASSPHRASE, build_site
+from test_report_sign import give_key
 from textual.app import App
 from textual.widgets import Input, SelectionList, Static
 
@@ -13,8 +15,6 @@ from inspectkit.model import Inspection, InspectionState
 from inspectkit.report.verify import async_verify_pdf
 from inspectkit.store import Store
 from inspectkit.tui.screens.report import ReportScreen
-from test_report_factory import PASSPHRASE, build_site
-from test_report_sign import give_key
 
 
 class Harness(App[None]):
@@ -100,10 +100,11 @@ async def test_export_draft_leaves_it_a_draft(harness, tmp_path: Path) -> None:
 
 
 async def test_the_site_screen_opens_the_latest_visits_report(tmp_path: Path) -> None:
+    from test_report_factory import TODAY
+
     from inspectkit.tui.app import make_app
     from inspectkit.tui.preferences import Preferences
     from inspectkit.tui.screens.site import SiteScreen
-    from test_report_factory import TODAY
 
     db = tmp_path / "db.sqlite"
     with Store.open(db) as store:

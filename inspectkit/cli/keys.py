@@ -20,8 +20,9 @@ InspectorOption = Annotated[
     str, typer.Option("--inspector", help="The inspector's name (or the start of it) or id.")
 ]
 
-keys_app = typer.Typer(help="Signing keys of inspectors.", no_args_is_help=True,
-                       rich_markup_mode=None)
+keys_app = typer.Typer(
+    help="Signing keys of inspectors.", no_args_is_help=True, rich_markup_mode=None
+)
 
 
 def passphrase(*, confirm: bool = False) -> bytes:
@@ -59,8 +60,12 @@ def new(
     inspector: InspectorOption,
     output: Annotated[
         Path | None,
-        typer.Option("-o", "--output", dir_okay=False,
-                     help="Key file to write (default: beside the database, in <db>-keys/)."),
+        typer.Option(
+            "-o",
+            "--output",
+            dir_okay=False,
+            help="Key file to write (default: beside the database, in <db>-keys/).",
+        ),
     ] = None,
     db: DbOption = None,
 ) -> None:
@@ -77,22 +82,36 @@ def new(
             fail(f"{path} exists already; choose another file with -o")
         secret = passphrase(confirm=True)
         try:
-            made = new_key(path, secret, name=person.name, organisation=person.organisation,
-                           qualification=person.qualification)
+            made = new_key(
+                path,
+                secret,
+                name=person.name,
+                organisation=person.organisation,
+                qualification=person.qualification,
+            )
         except KeyProblem as exc:
             fail(str(exc))
-        store.save(person.model_copy(update={"signing_key": stored_key_path(store, path),
-                                              "certificate_pem": made.certificate_pem}))
+        store.save(
+            person.model_copy(
+                update={
+                    "signing_key": stored_key_path(store, path),
+                    "certificate_pem": made.certificate_pem,
+                }
+            )
+        )
     typer.echo(f"Key for {person.name} written to {path}")
-    typer.echo(f"Certificate valid until {made.not_after.date().isoformat()}; "
-               "give clients the certificate (inspectkit keys show) to check reports with.")
+    typer.echo(
+        f"Certificate valid until {made.not_after.date().isoformat()}; "
+        "give clients the certificate (inspectkit keys show) to check reports with."
+    )
 
 
 @keys_app.command("import")
 def import_key(
     ctx: typer.Context,
-    file: Annotated[Path, typer.Argument(help="PKCS#12 file (.p12/.pfx) from a CA.",
-                                         dir_okay=False)],
+    file: Annotated[
+        Path, typer.Argument(help="PKCS#12 file (.p12/.pfx) from a CA.", dir_okay=False)
+    ],
     inspector: InspectorOption,
     db: DbOption = None,
 ) -> None:
@@ -105,8 +124,14 @@ def import_key(
             key = read_key(file, passphrase())
         except KeyProblem as exc:
             fail(str(exc))
-        store.save(person.model_copy(update={"signing_key": stored_key_path(store, file),
-                                              "certificate_pem": key.certificate_pem}))
+        store.save(
+            person.model_copy(
+                update={
+                    "signing_key": stored_key_path(store, file),
+                    "certificate_pem": key.certificate_pem,
+                }
+            )
+        )
     typer.echo(f"Key of {key.subject} recorded for {person.name} (file {file})")
 
 

@@ -1,4 +1,4 @@
-"""`inspectkit report` and `inspectkit amend`: write (and sign) an inspection's PDF report, correct one."""
+"""`inspectkit report` and `inspectkit amend`: write, sign and correct PDF inspection reports."""
 
 from __future__ import annotations
 
@@ -46,15 +46,27 @@ def _default_name(store: Store, inspection: Inspection) -> Path:
 
 def report(
     ctx: typer.Context,
-    inspection_id: Annotated[str | None, typer.Argument(
-        help="The inspection's id.", show_default=False, metavar="INSPECTION")] = None,
-    site: Annotated[str | None, typer.Option(
-        "--site", help="Report on this site's latest inspection (name or id).")] = None,
-    output: Annotated[Path | None, typer.Option(
-        "-o", "--output", dir_okay=False,
-        help="PDF file to write (default: <site>-<date>-r<revision>.pdf here).")] = None,
-    sign: Annotated[bool, typer.Option(
-        "--sign", help="Sign with the inspector's key and freeze the inspection.")] = False,
+    inspection_id: Annotated[
+        str | None,
+        typer.Argument(help="The inspection's id.", show_default=False, metavar="INSPECTION"),
+    ] = None,
+    site: Annotated[
+        str | None,
+        typer.Option("--site", help="Report on this site's latest inspection (name or id)."),
+    ] = None,
+    output: Annotated[
+        Path | None,
+        typer.Option(
+            "-o",
+            "--output",
+            dir_okay=False,
+            help="PDF file to write (default: <site>-<date>-r<revision>.pdf here).",
+        ),
+    ] = None,
+    sign: Annotated[
+        bool,
+        typer.Option("--sign", help="Sign with the inspector's key and freeze the inspection."),
+    ] = False,
     db: DbOption = None,
     json_out: JsonOption = False,
 ) -> None:
@@ -92,14 +104,17 @@ def report(
         emit_json(summary)
         return
     state = f"signed, sha256 {summary['sha256']}" if sign else "not signed"
-    typer.echo(f"{path}: {summary['pages']} pages, {len(data) / 1e6:.1f} MB, "
-               f"{prepared.content.verdict_word}; {state}")
+    typer.echo(
+        f"{path}: {summary['pages']} pages, {len(data) / 1e6:.1f} MB, "
+        f"{prepared.content.verdict_word}; {state}"
+    )
 
 
 def amend(
     ctx: typer.Context,
-    inspection_id: Annotated[str, typer.Argument(help="The signed inspection to correct.",
-                                                 metavar="INSPECTION")],
+    inspection_id: Annotated[
+        str, typer.Argument(help="The signed inspection to correct.", metavar="INSPECTION")
+    ],
     db: DbOption = None,
 ) -> None:
     """Start an amendment of a signed inspection: a new draft holding copies of its records."""
@@ -110,8 +125,10 @@ def amend(
             amendment = create_amendment(store, inspection_id, date.today())
         except AmendError as exc:
             fail(str(exc), Exit.BAD_INPUT)
-    typer.echo(f"Amendment {amendment.id} (revision {amendment.report_revision}) created as a "
-               f"draft; edit it, then `inspectkit report {amendment.id} --sign`.")
+    typer.echo(
+        f"Amendment {amendment.id} (revision {amendment.report_revision}) created as a "
+        f"draft; edit it, then `inspectkit report {amendment.id} --sign`."
+    )
 
 
 def register(app: typer.Typer) -> None:

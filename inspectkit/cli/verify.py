@@ -14,9 +14,14 @@ def verify(
     ctx: typer.Context,
     file: Annotated[Path, typer.Argument(help="The signed PDF report.", dir_okay=False)],
     db: DbOption = None,
-    cert: Annotated[Path | None, typer.Option(
-        "--cert", dir_okay=False,
-        help="The inspector's certificate (PEM) to trust, when no database is given.")] = None,
+    cert: Annotated[
+        Path | None,
+        typer.Option(
+            "--cert",
+            dir_okay=False,
+            help="The inspector's certificate (PEM) to trust, when no database is given.",
+        ),
+    ] = None,
     json_out: JsonOption = False,
 ) -> None:
     """Say whether a signed report is intact or altered, who signed it and when.
@@ -61,19 +66,21 @@ def verify(
     matches = record is not None if db_given else None
     ok = result.ok and matches is not False
     if json_out:
-        emit_json({
-            "file": str(file),
-            "intact": result.intact,
-            "whole_file": result.whole_file,
-            "trusted": result.trusted,
-            "signer": result.signer,
-            "signed_at": result.signed_at.isoformat() if result.signed_at else None,
-            "sha256": result.sha256,
-            "matches_database": matches,
-            "inspection": record.id if record else None,
-            "problem": result.problem,
-            "ok": ok,
-        })
+        emit_json(
+            {
+                "file": str(file),
+                "intact": result.intact,
+                "whole_file": result.whole_file,
+                "trusted": result.trusted,
+                "signer": result.signer,
+                "signed_at": result.signed_at.isoformat() if result.signed_at else None,
+                "sha256": result.sha256,
+                "matches_database": matches,
+                "inspection": record.id if record else None,
+                "problem": result.problem,
+                "ok": ok,
+            }
+        )
     else:
         if result.intact and result.whole_file:
             typer.echo(f"{file}: INTACT — unchanged since it was signed")
@@ -85,8 +92,10 @@ def verify(
         if result.signer and not result.trusted:
             typer.echo("Signer NOT KNOWN: the certificate is not one given by --db or --cert")
         if matches is True and record is not None:
-            typer.echo(f"Matches the database: inspection {record.id} of {record.date.isoformat()}"
-                       f" at {site_name}, revision {record.report_revision}")
+            typer.echo(
+                f"Matches the database: inspection {record.id} of {record.date.isoformat()}"
+                f" at {site_name}, revision {record.report_revision}"
+            )
         elif matches is False:
             typer.echo("Does NOT match the database: no signed inspection has this file's sha256")
     raise typer.Exit(int(Exit.OK if ok else Exit.ACT))

@@ -128,19 +128,21 @@ def describe_changes(
     for key, old in before_f.items():
         new = after_f.get(key)
         if new is None:
-            lines.append(f"{tag(old.component_id)} finding \"{old.text}\": removed.")
+            lines.append(f'{tag(old.component_id)} finding "{old.text}": removed.')
             continue
-        changed = [name.replace("_", " ") for name in fields if getattr(new, name) != getattr(old, name)]
+        changed = [
+            name.replace("_", " ") for name in fields if getattr(new, name) != getattr(old, name)
+        ]
         if changed:
             lines.append(
                 f"{tag(old.component_id)} finding: {', '.join(changed)} changed "
-                f"(now {new.grade.value.replace('_', ' ')}: \"{new.text}\")."
+                f'(now {new.grade.value.replace("_", " ")}: "{new.text}").'
             )
     for key, new in after_f.items():
         if key not in before_f:
             lines.append(
                 f"{tag(new.component_id)} finding added: {new.grade.value.replace('_', ' ')} "
-                f"\"{new.text}\"."
+                f'"{new.text}".'
             )
     before_p = {p.sha256 for p in original[2]}
     after_p = {p.sha256: p for p in amended[2]}

@@ -1,4 +1,4 @@
-"""The contractor's name, contact lines, logo and colours for reports, from `templates/report.toml`."""
+"""The contractor's name, contact, logo and colours for reports, from templates/report.toml."""
 
 from __future__ import annotations
 
@@ -63,7 +63,8 @@ def load_branding(path: Path | None = None) -> Branding:
         logo = (path.parent / logo_text).resolve()
         if not logo.is_file():
             raise BrandingError(
-                f"{path}: contractor.logo {logo_text!r} is not a file; fix the path or leave it empty"
+                f"{path}: contractor.logo {logo_text!r} is not a file; "
+                "fix the path or leave it empty"
             )
     found: dict[str, str] = {}
     for key in ("primary", "accent"):

@@ -52,8 +52,9 @@ def trend_drawing(chart: TrendChart, width: float, height: float, colour: str) -
     if fit:
         lines.append((fit, colors.HexColor("#444444"), 1.2, None))
     if chart.limit is not None:
-        lines.append(([(low_x, chart.limit), (high_x, chart.limit)], colors.HexColor("#B00020"),
-                      1, (4, 3)))
+        lines.append(
+            ([(low_x, chart.limit), (high_x, chart.limit)], colors.HexColor("#B00020"), 1, (4, 3))
+        )
     plot.data = [line for line, *_ in lines] + readings
     for index, (_, stroke, thickness, dash) in enumerate(lines):
         plot.lines[index].strokeColor = stroke
@@ -61,8 +62,9 @@ def trend_drawing(chart: TrendChart, width: float, height: float, colour: str) -
         plot.lines[index].strokeDashArray = dash
     for index in range(len(lines), len(plot.data)):
         plot.lines[index].strokeColor = main
-        plot.lines[index].symbol = makeMarker("FilledCircle", size=4.5, fillColor=main,
-                                              strokeColor=main)
+        plot.lines[index].symbol = makeMarker(
+            "FilledCircle", size=4.5, fillColor=main, strokeColor=main
+        )
     plot.joinedLines = 1
     plot.xValueAxis.valueMin, plot.xValueAxis.valueMax = low_x, high_x
     plot.xValueAxis.labelTextFormat = _year_label
@@ -74,18 +76,31 @@ def trend_drawing(chart: TrendChart, width: float, height: float, colour: str) -
         axis.labels.fontName = FONT
         axis.labels.fontSize = 7
     drawing.add(plot)
-    drawing.add(String(4, height - 12, f"{chart.tag}: earth resistance (Ω)", fontName=FONT,
-                       fontSize=8))
+    drawing.add(
+        String(4, height - 12, f"{chart.tag}: earth resistance (Ω)", fontName=FONT, fontSize=8)
+    )
     legend = "• readings   — fitted line"
     if chart.limit is not None:
         legend += "   - - limit"
-    drawing.add(String(width - 4, height - 12, legend, fontName=FONT, fontSize=7,
-                       textAnchor="end"))
-    if chart.crossing is not None and chart.limit is not None and low_x <= chart.crossing.toordinal() <= high_x:
+    drawing.add(String(width - 4, height - 12, legend, fontName=FONT, fontSize=7, textAnchor="end"))
+    if (
+        chart.crossing is not None
+        and chart.limit is not None
+        and low_x <= chart.crossing.toordinal() <= high_x
+    ):
         x = plot.x + plot.width * (chart.crossing.toordinal() - low_x) / (high_x - low_x)
         y = plot.y + plot.height * chart.limit / plot.yValueAxis.valueMax
-        drawing.add(Line(x, plot.y, x, y, strokeColor=colors.HexColor("#B00020"),
-                         strokeDashArray=(1, 2)))
-        drawing.add(String(x, y + 4, f"reaches limit {chart.crossing.isoformat()}",
-                           fontName=FONT, fontSize=7, textAnchor="middle"))
+        drawing.add(
+            Line(x, plot.y, x, y, strokeColor=colors.HexColor("#B00020"), strokeDashArray=(1, 2))
+        )
+        drawing.add(
+            String(
+                x,
+                y + 4,
+                f"reaches limit {chart.crossing.isoformat()}",
+                fontName=FONT,
+                fontSize=7,
+                textAnchor="middle",
+            )
+        )
     return drawing

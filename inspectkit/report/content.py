@@ -194,24 +194,41 @@ def text_sections(content: ReportContent) -> list[Section]:
     if content.amendment:
         sections.append(Section("What this amendment changed", content.amendment))
     sections += [
-        Section("Points to act on or watch",
-                tuple(f"{n.result:<10} {n.tag:<8} {n.message}" for n in content.notices)
-                or ("Nothing to act on or watch.",)),
+        Section(
+            "Points to act on or watch",
+            tuple(f"{n.result:<10} {n.tag:<8} {n.message}" for n in content.notices)
+            or ("Nothing to act on or watch.",),
+        ),
         Section("Inspection", fields(content.inspection)),
         Section("Site", fields(content.site) + fields(content.structure)),
-        Section("Instruments", tuple(" · ".join(row) for row in content.instruments)
-                or ("No instrument recorded.",)),
-        Section("Readings", tuple(
-            f"{r.tag:<8} {r.quantity}: {r.value} (limit {r.limit}) → {r.result}"
-            for r in content.readings) or ("No readings.",)),
-        Section("Findings", tuple(
-            f"{f.tag:<8} {f.grade}: {f.text}"
-            + (f" — {f.remedial_action}" if f.remedial_action else "")
-            + (f" (by {f.due_by})" if f.due_by else "")
-            + (f" [{len(f.photos)} photo(s)]" if f.photos else "")
-            for f in content.findings) or ("No findings.",)),
-        Section("Electrode trends", tuple(t.summary for t in content.trends)
-                or ("No electrode has enough readings for a trend.",)),
+        Section(
+            "Instruments",
+            tuple(" · ".join(row) for row in content.instruments) or ("No instrument recorded.",),
+        ),
+        Section(
+            "Readings",
+            tuple(
+                f"{r.tag:<8} {r.quantity}: {r.value} (limit {r.limit}) → {r.result}"
+                for r in content.readings
+            )
+            or ("No readings.",),
+        ),
+        Section(
+            "Findings",
+            tuple(
+                f"{f.tag:<8} {f.grade}: {f.text}"
+                + (f" — {f.remedial_action}" if f.remedial_action else "")
+                + (f" (by {f.due_by})" if f.due_by else "")
+                + (f" [{len(f.photos)} photo(s)]" if f.photos else "")
+                for f in content.findings
+            )
+            or ("No findings.",),
+        ),
+        Section(
+            "Electrode trends",
+            tuple(t.summary for t in content.trends)
+            or ("No electrode has enough readings for a trend.",),
+        ),
         Section("Next inspections", fields(content.schedule)),
         Section("Not inspected", (content.not_inspected or "Every part listed was inspected.",)),
         Section("Safety", (*content.cautions, content.deferral)),

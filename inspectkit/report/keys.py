@@ -128,9 +128,7 @@ def read_key(path: Path, passphrase: bytes) -> SigningKey:
     try:
         key, certificate, _ = pkcs12.load_key_and_certificates(blob, passphrase)
     except ValueError as exc:
-        raise KeyProblem(
-            f"{path}: wrong passphrase, or not a PKCS#12 (.p12/.pfx) file"
-        ) from exc
+        raise KeyProblem(f"{path}: wrong passphrase, or not a PKCS#12 (.p12/.pfx) file") from exc
     if key is None or certificate is None:
         raise KeyProblem(f"{path}: holds no private key and certificate; export both from the CA")
     return _describe(path, certificate)

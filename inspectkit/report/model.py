@@ -140,7 +140,9 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
     return as_of(trimmed, inspection.date)
 
 
-def _reading_result(reading: Reading, results: list[Result], judged: bool, limit: float | None) -> str:
+def _reading_result(
+    reading: Reading, results: list[Result], judged: bool, limit: float | None
+) -> str:
     """The result word for a reading, from what the engine said about it."""
     if results:
         worst = max(results, key=lambda r: r.severity.rank)
@@ -154,7 +156,10 @@ def _reading_result(reading: Reading, results: list[Result], judged: bool, limit
 
 
 def _readings(
-    inspection: Inspection, records: SiteRecords, check: SiteCheck, profile: Profile,
+    inspection: Inspection,
+    records: SiteRecords,
+    check: SiteCheck,
+    profile: Profile,
     components: dict[str, Component],
 ) -> tuple[ReadingRow, ...]:
     by_reading: dict[str, list[Result]] = {}
@@ -168,10 +173,11 @@ def _readings(
     order = {kind: n for n, kind in enumerate(WALKING_ORDER)}
     for reading in sorted(
         mine,
-        key=lambda r: (order.get(components[r.component_id].kind, 99)
-                       if r.component_id in components else 99,
-                       components[r.component_id].tag if r.component_id in components else "",
-                       r.taken_at),
+        key=lambda r: (
+            order.get(components[r.component_id].kind, 99) if r.component_id in components else 99,
+            components[r.component_id].tag if r.component_id in components else "",
+            r.taken_at,
+        ),
     ):
         component = components.get(reading.component_id)
         limit = profile.limit_for(reading.quantity, count)
@@ -207,21 +213,29 @@ def _findings(
     mine = [f for f in records.findings if f.inspection_id == inspection.id]
     photos = [p for p in records.photos if p.inspection_id == inspection.id]
     rank = {Grade.DEFECT: 0, Grade.NEEDS_ATTENTION: 1, Grade.SOUND: 2}
-    mine.sort(key=lambda f: (rank[f.grade], components[f.component_id].tag
-                             if f.component_id in components else ""))
+    mine.sort(
+        key=lambda f: (
+            rank[f.grade],
+            components[f.component_id].tag if f.component_id in components else "",
+        )
+    )
     shown: set[str] = set()
     rows = []
     for finding in mine:
-        own = [p for p in photos if p.component_id and p.component_id == finding.component_id
-               and p.id not in shown]
+        own = [
+            p
+            for p in photos
+            if p.component_id and p.component_id == finding.component_id and p.id not in shown
+        ]
         shown.update(p.id for p in own)
         rows.append(_finding_row(store, finding, own, components))
     rest = tuple(_photo_item(store, p, components) for p in photos if p.id not in shown)
     return tuple(rows), rest
 
 
-def _finding_row(store: Store, finding: Finding, photos: list[Photo],
-                 components: dict[str, Component]) -> FindingRow:
+def _finding_row(
+    store: Store, finding: Finding, photos: list[Photo], components: dict[str, Component]
+) -> FindingRow:
     component = components.get(finding.component_id or "")
     return FindingRow(
         tag=component.tag if component else "site",
@@ -256,8 +270,11 @@ def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | No
             trend.next_complete or trend.last_day,
             trend.last_day + timedelta(days=round(CHART_YEARS_AHEAD * YEAR_DAYS)),
         )
-        end = trend.crossing if trend.crossing and trend.last_day < trend.crossing <= horizon \
+        end = (
+            trend.crossing
+            if trend.crossing and trend.last_day < trend.crossing <= horizon
             else horizon
+        )
 
         def at(day: date) -> float:
             return max(0.0, trend.fitted_last + slope * (day - trend.last_day).days / YEAR_DAYS)
@@ -275,11 +292,16 @@ def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | No
 
 def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field, ...]:
     site = records.site
-    counts = Counter(c.kind for c in records.components if c.retired_on is None or c.retired_on > on)
+    counts = Counter(
+        c.kind for c in records.components if c.retired_on is None or c.retired_on > on
+    )
     fields = [
         Field("Protection level", f"LPL {site.protection_level.value}"),
-        Field("Rule set", f"{profile.title or profile.name}"
-              + (f" ({profile.standard})" if profile.standard else "")),
+        Field(
+            "Rule set",
+            f"{profile.title or profile.name}"
+            + (f" ({profile.standard})" if profile.standard else ""),
+        ),
         Field("Critical structure", "yes" if site.critical else "no"),
         Field("Explosion risk", "yes" if site.explosive_risk else "no"),
     ]
@@ -290,11 +312,15 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
             fields.append(Field(kind.label.capitalize() + "s", str(counts[kind])))
     types = Counter(c.electrode_type.value for c in records.components if c.electrode_type)
     if types:
-        fields.append(Field("Electrode types", ", ".join(f"{n} {t}" for t, n in sorted(types.items()))))
+        fields.append(
+            Field("Electrode types", ", ".join(f"{n} {t}" for t, n in sorted(types.items())))
+        )
     return tuple(fields)
 
 
-def _instruments(inspection: Inspection, records: SiteRecords) -> tuple[tuple[str, str, str, str], ...]:
+def _instruments(
+    inspection: Inspection, records: SiteRecords
+) -> tuple[tuple[str, str, str, str], ...]:
     used: dict[str, bool] = {}
     for reading in records.readings:
         if reading.inspection_id == inspection.id and reading.instrument_id:
@@ -305,9 +331,17 @@ def _instruments(inspection: Inspection, records: SiteRecords) -> tuple[tuple[st
         instrument = records.instruments.get(instrument_id)
         if instrument is None:
             continue
-        due = instrument.calibration_due.isoformat() if instrument.calibration_due else "not recorded"
-        rows.append((instrument.description, instrument.serial, due,
-                     "OUT OF CALIBRATION" if lapsed else "in calibration"))
+        due = (
+            instrument.calibration_due.isoformat() if instrument.calibration_due else "not recorded"
+        )
+        rows.append(
+            (
+                instrument.description,
+                instrument.serial,
+                due,
+                "OUT OF CALIBRATION" if lapsed else "in calibration",
+            )
+        )
     return tuple(sorted(rows))
 
 
@@ -319,8 +353,10 @@ def revision_of(inspection: Inspection) -> int:
 def _revision_label(inspection: Inspection, signing: datetime | None) -> str:
     revision = revision_of(inspection)
     if inspection.state is InspectionState.SIGNED and inspection.signed_at:
-        return (f"revision {revision}, copy of the report signed "
-                f"{inspection.signed_at.date().isoformat()}")
+        return (
+            f"revision {revision}, copy of the report signed "
+            f"{inspection.signed_at.date().isoformat()}"
+        )
     if signing is not None:
         return f"revision {revision}, signed {signing.date().isoformat()}"
     return f"revision {revision}, DRAFT (not signed)"
@@ -367,10 +403,10 @@ def build_report(
     tally = Counter(row.result.split(":")[0] for row in readings)
     grades = Counter(f.grade for f in findings)
     headline = [
-        f"{len(readings)} readings: " + (", ".join(f"{n} {w.lower()}" for w, n in tally.most_common())
-                                         or "none taken"),
-        f"{len(findings)} findings: " + (", ".join(f"{n} {g.lower()}" for g, n in grades.most_common())
-                                         or "none recorded"),
+        f"{len(readings)} readings: "
+        + (", ".join(f"{n} {w.lower()}" for w, n in tally.most_common()) or "none taken"),
+        f"{len(findings)} findings: "
+        + (", ".join(f"{n} {g.lower()}" for g, n in grades.most_common()) or "none recorded"),
         f"Next visual inspection due {check.schedule.next_visual.isoformat()}, "
         f"next complete inspection due {check.schedule.next_complete.isoformat()}",
     ]
@@ -385,9 +421,11 @@ def build_report(
             + (f", sha256 {original.report_sha256}" if original.report_sha256 else "")
             + "), which it replaces."
         )
-        changes = tuple(describe_changes(
-            _parts(all_records, original.id), _parts(all_records, inspection.id), components
-        )) or ("No reading, finding or photo was changed.",)
+        changes = tuple(
+            describe_changes(
+                _parts(all_records, original.id), _parts(all_records, inspection.id), components
+            )
+        ) or ("No reading, finding or photo was changed.",)
     inspection_fields = [
         Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
         Field("Inspector", inspector.name if inspector else "not recorded"),
@@ -411,8 +449,12 @@ def build_report(
             Field("Client", site.client),
             Field("Address", site.address),
             Field("Town", site.town),
-            Field("Coordinates", f"{site.latitude:.5f}, {site.longitude:.5f}"
-                  if site.latitude is not None and site.longitude is not None else ""),
+            Field(
+                "Coordinates",
+                f"{site.latitude:.5f}, {site.longitude:.5f}"
+                if site.latitude is not None and site.longitude is not None
+                else "",
+            ),
             Field("Notes", site.notes),
         ),
         structure=_structure(records, profile, inspection.date),
@@ -426,8 +468,11 @@ def build_report(
         ),
         trends=trends,
         schedule=(
-            Field("Intervals", f"visual every {check.schedule.visual_months} months, complete "
-                  f"every {check.schedule.complete_months} months ({check.schedule.interval_basis})"),
+            Field(
+                "Intervals",
+                f"visual every {check.schedule.visual_months} months, complete "
+                f"every {check.schedule.complete_months} months ({check.schedule.interval_basis})",
+            ),
             Field("Next visual inspection", check.schedule.next_visual.isoformat()),
             Field("Next complete inspection", check.schedule.next_complete.isoformat()),
         ),
@@ -441,7 +486,9 @@ def build_report(
     )
 
 
-def _parts(records: SiteRecords, inspection_id: str) -> tuple[list[Reading], list[Finding], list[Photo]]:
+def _parts(
+    records: SiteRecords, inspection_id: str
+) -> tuple[list[Reading], list[Finding], list[Photo]]:
     return (
         [r for r in records.readings if r.inspection_id == inspection_id],
         [f for f in records.findings if f.inspection_id == inspection_id],
@@ -451,5 +498,7 @@ def _parts(records: SiteRecords, inspection_id: str) -> tuple[list[Reading], lis
 
 def latest_inspection(store: Store, site_id: str) -> Inspection | None:
     """A site's most recent inspection (by date, then by when it was recorded)."""
-    found = store.select(Inspection, "site_id = ?", [site_id], order_by="date DESC, created_at DESC")
+    found = store.select(
+        Inspection, "site_id = ?", [site_id], order_by="date DESC, created_at DESC"
+    )
     return found[0] if found else None

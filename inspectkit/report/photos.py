@@ -64,5 +64,6 @@ def downscale(
                 return SmallPhoto(out.getvalue(), upright.width, upright.height)
         if max(upright.size) <= 200:
             return SmallPhoto(out.getvalue(), upright.width, upright.height)
-        upright = upright.resize((upright.width * 4 // 5, upright.height * 4 // 5),
-                                 Image.Resampling.LANCZOS)
+        upright = upright.resize(
+            (upright.width * 4 // 5, upright.height * 4 // 5), Image.Resampling.LANCZOS
+        )

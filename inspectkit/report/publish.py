@@ -59,7 +59,9 @@ def _plan(
                 f"inspection {inspection_id} is signed already; to correct it, run "
                 f"`inspectkit amend {inspection_id}` and sign the amendment"
             )
-        inspector = store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
+        inspector = (
+            store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
+        )
         if inspector is None:
             raise ReportError(
                 f"inspection {inspection_id} names no inspector; set one before signing"
@@ -113,9 +115,7 @@ def reason(prepared: Prepared) -> str:
     )
 
 
-def _finish(
-    store: Store, prepared: Prepared, output: Path, signed: SignedReport | None
-) -> bytes:
+def _finish(store: Store, prepared: Prepared, output: Path, signed: SignedReport | None) -> bytes:
     """Write the file, then (when signed) freeze the inspection: a failed write leaves a draft."""
     data = signed.data if signed is not None else prepared.rendered.data
     output.write_bytes(data)
@@ -148,13 +148,24 @@ def export_report(
     Raises:
         ReportError, SignError: see `prepare` and `sign_pdf`.
     """
-    prepared = prepare(store, inspection_id, sign=passphrase is not None,
-                       keep_photos=keep_photos, branding=branding, now=now)
+    prepared = prepare(
+        store,
+        inspection_id,
+        sign=passphrase is not None,
+        keep_photos=keep_photos,
+        branding=branding,
+        now=now,
+    )
     signed = None
     if passphrase is not None and prepared.key is not None:
-        signed = sign_pdf(prepared.rendered.data, prepared.key, passphrase,
-                          prepared.rendered.signature_slot, reason=reason(prepared),
-                          location=prepared.content.site_name)
+        signed = sign_pdf(
+            prepared.rendered.data,
+            prepared.key,
+            passphrase,
+            prepared.rendered.signature_slot,
+            reason=reason(prepared),
+            location=prepared.content.site_name,
+        )
     return prepared, _finish(store, prepared, output, signed)
 
 
@@ -181,6 +192,12 @@ async def export_report_async(
     prepared = Prepared(inspection, content, rendered, key, signing_at)
     signed = None
     if passphrase is not None and key is not None:
-        signed = await async_sign_pdf(rendered.data, key, passphrase, rendered.signature_slot,
-                                      reason=reason(prepared), location=content.site_name)
+        signed = await async_sign_pdf(
+            rendered.data,
+            key,
+            passphrase,
+            rendered.signature_slot,
+            reason=reason(prepared),
+            location=content.site_name,
+        )
     return prepared, _finish(store, prepared, output, signed)

@@ -11,7 +11,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from io import BytesIO
-from pathlib import Path
 from typing import Any
 
 from reportlab import rl_config
@@ -20,6 +19,7 @@ from reportlab.lib.enums import TA_CENTER
 from reportlab.lib.pagesizes import A4
 from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
+from reportlab.lib.utils import ImageReader
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen import canvas as pdfcanvas
@@ -38,7 +38,6 @@ from reportlab.platypus import (
     Table,
     TableStyle,
 )
-from reportlab.lib.utils import ImageReader
 
 from inspectkit.report.branding import Branding
 from inspectkit.report.charts import trend_drawing
@@ -104,21 +103,54 @@ def _styles(branding: Branding) -> dict[str, ParagraphStyle]:
         "body": base,
         "small": ParagraphStyle("small", parent=base, fontSize=7.5, leading=9.5),
         "cell": ParagraphStyle("cell", parent=base, fontSize=8, leading=10),
-        "cellbold": ParagraphStyle("cellbold", parent=base, fontName="Vera-Bold", fontSize=8,
-                                   leading=10),
-        "head": ParagraphStyle("head", parent=base, fontName="Vera-Bold", fontSize=8,
-                               leading=10, textColor=colors.white),
-        "h1": ParagraphStyle("h1", parent=base, fontName="Vera-Bold", fontSize=15, leading=19,
-                             textColor=primary, spaceBefore=6, spaceAfter=6, keepWithNext=1),
-        "h2": ParagraphStyle("h2", parent=base, fontName="Vera-Bold", fontSize=11, leading=14,
-                             textColor=primary, spaceBefore=10, spaceAfter=4, keepWithNext=1),
-        "title": ParagraphStyle("title", parent=base, fontName="Vera-Bold", fontSize=24,
-                                leading=29, textColor=primary),
+        "cellbold": ParagraphStyle(
+            "cellbold", parent=base, fontName="Vera-Bold", fontSize=8, leading=10
+        ),
+        "head": ParagraphStyle(
+            "head",
+            parent=base,
+            fontName="Vera-Bold",
+            fontSize=8,
+            leading=10,
+            textColor=colors.white,
+        ),
+        "h1": ParagraphStyle(
+            "h1",
+            parent=base,
+            fontName="Vera-Bold",
+            fontSize=15,
+            leading=19,
+            textColor=primary,
+            spaceBefore=6,
+            spaceAfter=6,
+            keepWithNext=1,
+        ),
+        "h2": ParagraphStyle(
+            "h2",
+            parent=base,
+            fontName="Vera-Bold",
+            fontSize=11,
+            leading=14,
+            textColor=primary,
+            spaceBefore=10,
+            spaceAfter=4,
+            keepWithNext=1,
+        ),
+        "title": ParagraphStyle(
+            "title", parent=base, fontName="Vera-Bold", fontSize=24, leading=29, textColor=primary
+        ),
         "cover": ParagraphStyle("cover", parent=base, fontSize=12, leading=16),
-        "verdict": ParagraphStyle("verdict", parent=base, fontName="Vera-Bold", fontSize=22,
-                                  leading=26, alignment=TA_CENTER),
-        "caption": ParagraphStyle("caption", parent=base, fontName="Vera-Italic", fontSize=7.5,
-                                  leading=9.5),
+        "verdict": ParagraphStyle(
+            "verdict",
+            parent=base,
+            fontName="Vera-Bold",
+            fontSize=22,
+            leading=26,
+            alignment=TA_CENTER,
+        ),
+        "caption": ParagraphStyle(
+            "caption", parent=base, fontName="Vera-Italic", fontSize=7.5, leading=9.5
+        ),
     }
 
 
@@ -143,8 +175,12 @@ class _SignatureBox(Flowable):
         canvas.rect(0, 0, self.width, self.height)
         x, y = canvas.absolutePosition(0, 0)
         self.record["page"] = canvas.getPageNumber() - 1
-        self.record["box"] = (int(x) + 2, int(y) + 2, int(x + self.width) - 2,
-                              int(y + self.height) - 2)
+        self.record["box"] = (
+            int(x) + 2,
+            int(y) + 2,
+            int(x + self.width) - 2,
+            int(y + self.height) - 2,
+        )
 
 
 def _numbered_canvas(content: ReportContent, branding: Branding) -> type[pdfcanvas.Canvas]:
@@ -201,8 +237,13 @@ def _cover_band(branding: Branding) -> Any:
         text_x = MARGIN
         if branding.logo is not None:
             canvas.drawImage(
-                ImageReader(str(branding.logo)), MARGIN, height - 33 * mm, 28 * mm, 28 * mm,
-                preserveAspectRatio=True, mask="auto",
+                ImageReader(str(branding.logo)),
+                MARGIN,
+                height - 33 * mm,
+                28 * mm,
+                28 * mm,
+                preserveAspectRatio=True,
+                mask="auto",
             )
             text_x += 32 * mm
         canvas.setFillColor(colors.white)
@@ -215,17 +256,27 @@ def _cover_band(branding: Branding) -> Any:
     return draw
 
 
-def _fields_table(fields: tuple[Field, ...], styles: dict[str, ParagraphStyle], width: float) -> Table:
-    rows = [[Paragraph(_text(f.label), styles["cellbold"]), Paragraph(_text(f.value or "—"),
-                                                                       styles["cell"])]
-            for f in fields]
+def _fields_table(
+    fields: tuple[Field, ...], styles: dict[str, ParagraphStyle], width: float
+) -> Table:
+    rows = [
+        [
+            Paragraph(_text(f.label), styles["cellbold"]),
+            Paragraph(_text(f.value or "—"), styles["cell"]),
+        ]
+        for f in fields
+    ]
     table = Table(rows, colWidths=[width * 0.32, width * 0.68])
-    table.setStyle(TableStyle([
-        ("VALIGN", (0, 0), (-1, -1), "TOP"),
-        ("LINEBELOW", (0, 0), (-1, -1), 0.25, colors.HexColor("#CCCCCC")),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 3),
-        ("TOPPADDING", (0, 0), (-1, -1), 3),
-    ]))
+    table.setStyle(
+        TableStyle(
+            [
+                ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                ("LINEBELOW", (0, 0), (-1, -1), 0.25, colors.HexColor("#CCCCCC")),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 3),
+                ("TOPPADDING", (0, 0), (-1, -1), 3),
+            ]
+        )
+    )
     return table
 
 
@@ -249,46 +300,64 @@ def _grid(
         if result_column is not None:
             tint = _RESULT_TINTS.get(row[result_column].split()[0] if row[result_column] else "")
             if tint:
-                tints.append(("BACKGROUND", (result_column, index), (result_column, index),
-                              colors.HexColor(tint)))
+                tints.append(
+                    (
+                        "BACKGROUND",
+                        (result_column, index),
+                        (result_column, index),
+                        colors.HexColor(tint),
+                    )
+                )
     table = Table(
         [[Paragraph(_text(h), styles["head"]) for h in header], *body],
         colWidths=widths,
         repeatRows=1,
     )
-    table.setStyle(TableStyle([
-        ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor(branding.primary)),
-        ("VALIGN", (0, 0), (-1, -1), "TOP"),
-        ("GRID", (0, 0), (-1, -1), 0.25, colors.HexColor("#BBBBBB")),
-        ("TOPPADDING", (0, 0), (-1, -1), 2.5),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5),
-        *tints,
-    ]))
+    table.setStyle(
+        TableStyle(
+            [
+                ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor(branding.primary)),
+                ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                ("GRID", (0, 0), (-1, -1), 0.25, colors.HexColor("#BBBBBB")),
+                ("TOPPADDING", (0, 0), (-1, -1), 2.5),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5),
+                *tints,
+            ]
+        )
+    )
     return table
 
 
-def _photo_grid(photos: tuple[PhotoItem, ...] | list[PhotoItem],
-                styles: dict[str, ParagraphStyle], width: float) -> list[Flowable]:
+def _photo_grid(
+    photos: tuple[PhotoItem, ...] | list[PhotoItem], styles: dict[str, ParagraphStyle], width: float
+) -> list[Flowable]:
     """Photos two to a row, each with its caption beneath."""
     cells = []
     for item in photos:
         try:
             small = downscale(item.path)
         except OSError as exc:
-            raise RenderError(f"photo {item.photo_id} ({item.path}): cannot be read ({exc})") from exc
+            raise RenderError(
+                f"photo {item.photo_id} ({item.path}): cannot be read ({exc})"
+            ) from exc
         image_width = min(PHOTO_WIDTH, width / 2 - 6)
         image_height = min(image_width * small.aspect, 90 * mm)
         image_width = image_height / small.aspect
-        cells.append([Image(BytesIO(small.data), image_width, image_height),
-                      Paragraph(_text(item.caption), styles["caption"])])
+        cells.append(
+            [
+                Image(BytesIO(small.data), image_width, image_height),
+                Paragraph(_text(item.caption), styles["caption"]),
+            ]
+        )
     if not cells:
         return []
     rows = [cells[i : i + 2] for i in range(0, len(cells), 2)]
     if len(rows[-1]) == 1:
         rows[-1].append("")
     table = Table(rows, colWidths=[width / 2, width / 2])
-    table.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP"),
-                               ("BOTTOMPADDING", (0, 0), (-1, -1), 6)]))
+    table.setStyle(
+        TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("BOTTOMPADDING", (0, 0), (-1, -1), 6)])
+    )
     return [table]
 
 
@@ -307,15 +376,23 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
             add(Paragraph(f"{_text(f.label)}: {_text(f.value)}", styles["cover"]))
     add(Paragraph(f"Inspection date: {content.inspection_date.isoformat()}", styles["cover"]))
     add(Spacer(1, 10 * mm))
-    verdict = Table([[Paragraph(_text(content.verdict_word), styles["verdict"])],
-                     [Paragraph(_text(content.verdict), styles["cover"])]],
-                    colWidths=[width])
-    verdict.setStyle(TableStyle([
-        ("BOX", (0, 0), (-1, -1), 1.5, colors.HexColor(branding.primary)),
-        ("TOPPADDING", (0, 0), (-1, -1), 8),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
-        ("LEFTPADDING", (0, 0), (-1, -1), 10),
-    ]))
+    verdict = Table(
+        [
+            [Paragraph(_text(content.verdict_word), styles["verdict"])],
+            [Paragraph(_text(content.verdict), styles["cover"])],
+        ],
+        colWidths=[width],
+    )
+    verdict.setStyle(
+        TableStyle(
+            [
+                ("BOX", (0, 0), (-1, -1), 1.5, colors.HexColor(branding.primary)),
+                ("TOPPADDING", (0, 0), (-1, -1), 8),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
+                ("LEFTPADDING", (0, 0), (-1, -1), 10),
+            ]
+        )
+    )
     add(verdict)
     add(Spacer(1, 8 * mm))
     for line in content.headline:
@@ -337,14 +414,24 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
             add(Paragraph(f"• {_text(line)}", styles["body"]))
     if content.notices:
         add(Paragraph("Points to act on or watch", styles["h2"]))
-        add(_grid(["Result", "Component", "What was found"],
-                  [[n.result, n.tag, n.message] for n in content.notices],
-                  [width * 0.14, width * 0.14, width * 0.72], styles, branding, 0))
+        add(
+            _grid(
+                ["Result", "Component", "What was found"],
+                [[n.result, n.tag, n.message] for n in content.notices],
+                [width * 0.14, width * 0.14, width * 0.72],
+                styles,
+                branding,
+                0,
+            )
+        )
     add(Paragraph("Next inspections", styles["h2"]))
     add(_fields_table(content.schedule, styles, width))
     add(Paragraph("Not inspected", styles["h2"]))
-    add(Paragraph(_text(content.not_inspected or "Every part listed was inspected."),
-                  styles["body"]))
+    add(
+        Paragraph(
+            _text(content.not_inspected or "Every part listed was inspected."), styles["body"]
+        )
+    )
     add(Paragraph("Safety", styles["h2"]))
     for caution in content.cautions:
         add(Paragraph(f"• {_text(caution)}", styles["small"]))
@@ -358,23 +445,49 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
     add(_fields_table(content.structure, styles, width))
     add(Paragraph("Instruments", styles["h2"]))
     if content.instruments:
-        add(_grid(["Instrument", "Serial", "Calibration due", "On the day"],
-                  [list(row) for row in content.instruments],
-                  [width * 0.4, width * 0.2, width * 0.18, width * 0.22], styles, branding))
+        add(
+            _grid(
+                ["Instrument", "Serial", "Calibration due", "On the day"],
+                [list(row) for row in content.instruments],
+                [width * 0.4, width * 0.2, width * 0.18, width * 0.22],
+                styles,
+                branding,
+            )
+        )
     else:
         add(Paragraph("No instrument was recorded.", styles["body"]))
 
     add(CondPageBreak(60 * mm))
     add(Paragraph("Readings", styles["h1"]))
     if content.readings:
-        add(Paragraph(
-            "Each reading with the limit it was judged against and the result in words; "
-            "the limits are those of the rule set named in the site details.", styles["small"]))
+        add(
+            Paragraph(
+                "Each reading with the limit it was judged against and the result in words; "
+                "the limits are those of the rule set named in the site details.",
+                styles["small"],
+            )
+        )
         add(Spacer(1, 2 * mm))
-        add(_grid(["Tag", "Component", "Quantity, method", "Value", "Limit", "Result"],
-                  [[r.tag, r.component, f"{r.quantity}, {r.method}", r.value, r.limit,
-                    r.result + (f" ({r.note})" if r.note else "")] for r in content.readings],
-                  [w * width for w in (0.1, 0.17, 0.3, 0.12, 0.12, 0.19)], styles, branding, 5))
+        add(
+            _grid(
+                ["Tag", "Component", "Quantity, method", "Value", "Limit", "Result"],
+                [
+                    [
+                        r.tag,
+                        r.component,
+                        f"{r.quantity}, {r.method}",
+                        r.value,
+                        r.limit,
+                        r.result + (f" ({r.note})" if r.note else ""),
+                    ]
+                    for r in content.readings
+                ],
+                [w * width for w in (0.1, 0.17, 0.3, 0.12, 0.12, 0.19)],
+                styles,
+                branding,
+                5,
+            )
+        )
     else:
         add(Paragraph("No readings were taken at this visit.", styles["body"]))
 
@@ -384,37 +497,53 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         add(Paragraph("No findings were recorded.", styles["body"]))
     for finding in content.findings:
         block: list[Flowable] = [
-            Paragraph(f"{_text(finding.tag)} — {_text(finding.grade)}"
-                      + (f" · {_text(finding.category)}" if finding.category else ""),
-                      styles["h2"]),
+            Paragraph(
+                f"{_text(finding.tag)} — {_text(finding.grade)}"
+                + (f" · {_text(finding.category)}" if finding.category else ""),
+                styles["h2"],
+            ),
             Paragraph(_text(finding.text or "No remark."), styles["body"]),
         ]
         if finding.remedial_action:
             due = f" (by {finding.due_by})" if finding.due_by else ""
-            block.append(Paragraph(f"<b>Remedial action{due}:</b> "
-                                   f"{_text(finding.remedial_action)}", styles["body"]))
+            block.append(
+                Paragraph(
+                    f"<b>Remedial action{due}:</b> {_text(finding.remedial_action)}", styles["body"]
+                )
+            )
         block.extend(_photo_grid(finding.photos, styles, width))
         add(KeepTogether(block))
 
     if content.trends:
         add(CondPageBreak(80 * mm))
         add(Paragraph("Electrode trends", styles["h1"]))
-        add(Paragraph(
-            "Earth resistance of each electrode over the years, with a robust fitted line "
-            "(Theil–Sen) carried forward to show when it would reach its limit.",
-            styles["small"]))
+        add(
+            Paragraph(
+                "Earth resistance of each electrode over the years, with a robust fitted line "
+                "(Theil–Sen) carried forward to show when it would reach its limit.",
+                styles["small"],
+            )
+        )
         charts = [
-            [trend_drawing(chart, width / 2 - 4, 58 * mm, branding.primary),
-             Paragraph(_text(chart.summary), styles["small"])]
+            [
+                trend_drawing(chart, width / 2 - 4, 58 * mm, branding.primary),
+                Paragraph(_text(chart.summary), styles["small"]),
+            ]
             for chart in content.trends
         ]
         rows = [charts[i : i + 2] for i in range(0, len(charts), 2)]
         if rows and len(rows[-1]) == 1:
             rows[-1].append("")
         grid = Table(rows, colWidths=[width / 2, width / 2])
-        grid.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP"),
-                                  ("LEFTPADDING", (0, 0), (-1, -1), 0),
-                                  ("BOTTOMPADDING", (0, 0), (-1, -1), 8)]))
+        grid.setStyle(
+            TableStyle(
+                [
+                    ("VALIGN", (0, 0), (-1, -1), "TOP"),
+                    ("LEFTPADDING", (0, 0), (-1, -1), 0),
+                    ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
+                ]
+            )
+        )
         add(grid)
 
     if content.general_photos:
@@ -434,8 +563,13 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
     for line in lines:
         add(Paragraph(_text(line), styles["body"]))
     add(Spacer(1, 3 * mm))
-    add(Paragraph("Digital signature (check it with <i>inspectkit verify</i> or any PDF "
-                  "reader that validates signatures):", styles["small"]))
+    add(
+        Paragraph(
+            "Digital signature (check it with <i>inspectkit verify</i> or any PDF "
+            "reader that validates signatures):",
+            styles["small"],
+        )
+    )
     add(Spacer(1, 2 * mm))
     add(_SignatureBox(95 * mm, 26 * mm, slot))
     return story
@@ -465,15 +599,22 @@ def render_report(content: ReportContent, branding: Branding) -> RenderedReport:
     )
     frame_height = PAGE[1] - MARGIN - doc.bottomMargin
     body = Frame(MARGIN, doc.bottomMargin, PAGE[0] - 2 * MARGIN, frame_height, id="body")
-    cover = Frame(MARGIN, doc.bottomMargin, PAGE[0] - 2 * MARGIN,
-                  PAGE[1] - 48 * mm - doc.bottomMargin, id="cover")
-    doc.addPageTemplates([
-        PageTemplate("cover", frames=[cover], onPage=_cover_band(branding)),
-        PageTemplate("body", frames=[body]),
-    ])
+    cover = Frame(
+        MARGIN,
+        doc.bottomMargin,
+        PAGE[0] - 2 * MARGIN,
+        PAGE[1] - 48 * mm - doc.bottomMargin,
+        id="cover",
+    )
+    doc.addPageTemplates(
+        [
+            PageTemplate("cover", frames=[cover], onPage=_cover_band(branding)),
+            PageTemplate("body", frames=[body]),
+        ]
+    )
     story = _story(content, branding, slot)
     doc.build(story, canvasmaker=_numbered_canvas(content, branding))
     data = out.getvalue()
-    return RenderedReport(data=data, pages=doc.page, signature_slot=SignatureSlot(
-        page=slot["page"], box=slot["box"]))
-
+    return RenderedReport(
+        data=data, pages=doc.page, signature_slot=SignatureSlot(page=slot["page"], box=slot["box"])
+    )

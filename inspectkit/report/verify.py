@@ -112,8 +112,8 @@ def _signer_of(embedded: Any) -> str | None:
 
 def verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verification:
     """Check a signed report against the given trusted certificates (PEM text)."""
-    from pyhanko.sign.validation.errors import SignatureValidationError
     from pyhanko.sign.validation import validate_pdf_signature
+    from pyhanko.sign.validation.errors import SignatureValidationError
 
     _quiet()
     embedded, problem = _embedded(data)
@@ -128,8 +128,8 @@ def verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verification:
 
 async def async_verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verification:
     """`verify_pdf` for code already running an event loop (the TUI)."""
-    from pyhanko.sign.validation.errors import SignatureValidationError
     from pyhanko.sign.validation import async_validate_pdf_signature
+    from pyhanko.sign.validation.errors import SignatureValidationError
 
     _quiet()
     embedded, problem = _embedded(data)

@@ -33,11 +33,17 @@ class ReportScreen(Screen[None]):
     BINDINGS = [
         Binding("escape", "app.pop_screen", "Back", id="report.back", tooltip="Back"),
         Binding(
-            "ctrl+e", "export", "Export draft", id="report.export",
+            "ctrl+e",
+            "export",
+            "Export draft",
+            id="report.export",
             tooltip="Write the PDF without signing it",
         ),
         Binding(
-            "ctrl+s", "sign", "Sign & export", id="report.sign",
+            "ctrl+s",
+            "sign",
+            "Sign & export",
+            id="report.sign",
             tooltip="Sign with the inspector's key, write the PDF and freeze the inspection",
         ),
     ]
@@ -65,8 +71,7 @@ class ReportScreen(Screen[None]):
                 yield Label("Save as")
                 yield Input(id="output")
                 yield Label("Key passphrase (signing only)")
-                yield Input(id="passphrase", password=True,
-                            placeholder=f"or set {PASSPHRASE_ENV}")
+                yield Input(id="passphrase", password=True, placeholder=f"or set {PASSPHRASE_ENV}")
                 yield Static("", id="report-status")
         yield Footer()
 
@@ -125,7 +130,10 @@ class ReportScreen(Screen[None]):
         self.status.update("Signing…" if sign else "Writing…")
         try:
             _, data = await export_report_async(
-                self.app.store, self.inspection_id, output, passphrase=secret,
+                self.app.store,
+                self.inspection_id,
+                output,
+                passphrase=secret,
                 keep_photos=set(self.photos.selected),
             )
         except (ReportError, SignError, RenderError, BrandingError, OSError) as error:
