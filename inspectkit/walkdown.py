@@ -654,6 +654,25 @@ def attach_photo_file(
         raise WalkdownError("photo", str(exc)) from None
 
 
+def attach_photos(
+    store: Store,
+    inspection_id: str,
+    path: Path | str,
+    component_id: str | None = None,
+    caption: str = "",
+) -> list[PhotoMatch]:
+    """Attach a photo file to a component, or a folder's new photos matched by time.
+
+    Raises:
+        WalkdownError: the path is neither a photo nor a folder, or the inspection is signed.
+    """
+    target = Path(path).expanduser()
+    if target.is_dir():
+        return attach_photo_folder(store, inspection_id, target)
+    photo = attach_photo_file(store, inspection_id, target, component_id, caption)
+    return [PhotoMatch(photo, component_id)]
+
+
 def attach_photo_folder(
     store: Store,
     inspection_id: str,

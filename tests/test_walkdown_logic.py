@@ -27,6 +27,7 @@ from inspectkit.walkdown import (
     WalkdownError,
     attach_photo_file,
     attach_photo_folder,
+    attach_photos,
     finish_inspection,
     grade_component,
     missing_for_completion,
@@ -229,8 +230,12 @@ def test_photo_from_a_file_and_from_a_folder_matched_by_time(
     assert single.component_id == tj1.id
     assert len(db.select(Photo, "inspection_id = ?", [visit.id])) == 3
     assert saved_entries(db, visit.id).photos == {tj1.id: 1, tj2.id: 1, None: 1}
+    write_photo(card / "IMG_0004.jpg", at + timedelta(minutes=3))
+    [one] = attach_photos(db, visit.id, card / "IMG_0004.jpg", tj1.id)
+    assert one.component_id == tj1.id and one.photo.original_name == "IMG_0004.jpg"
+    assert attach_photos(db, visit.id, card) == []  # nothing new on the card
     with pytest.raises(WalkdownError) as err:
-        attach_photo_file(db, visit.id, card / "missing.jpg")
+        attach_photos(db, visit.id, card / "missing.jpg")
     assert err.value.field == "photo"
     db.close()
 

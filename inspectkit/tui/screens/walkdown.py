@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
@@ -36,8 +34,7 @@ from inspectkit.walkdown import (
     SavedEntries,
     Stop,
     WalkdownError,
-    attach_photo_file,
-    attach_photo_folder,
+    attach_photos,
     finish_inspection,
     grade_component,
     missing_for_completion,
@@ -396,37 +393,29 @@ class WalkdownScreen(Screen[None]):
         return finding
 
     def _save_photo(self, text: str) -> Text:
-        path = text.strip()
-        if not path:
+        if not text.strip():
             return Text("")
-        target = Path(path).expanduser()
-        if target.is_dir():
-            matches = attach_photo_folder(self.store, self.inspection_id, target)
-            self.saved = saved_entries(self.store, self.inspection_id)
-            here = sum(1 for m in matches if m.component_id == self.stop.component.id)
-            status = Text(
-                f"✓ saved {len(matches)} new photo(s), {here} matched to {self.stop.component.tag}",
-                style="bold green",
-            )
+        here = self.stop.component.id
+        matches = attach_photos(self.store, self.inspection_id, text.strip(), here)
+        counts = self.saved.photos
+        for match in matches:
+            counts[match.component_id] = counts.get(match.component_id, 0) + 1
+        if len(matches) == 1 and matches[0].component_id == here:
+            status = f"✓ saved photo {matches[0].photo.original_name}"
         else:
-            photo = attach_photo_file(
-                self.store, self.inspection_id, target, self.stop.component.id
+            matched = sum(1 for m in matches if m.component_id == here)
+            status = (
+                f"✓ saved {len(matches)} new photo(s), {matched} matched by time to "
+                f"{self.stop.component.tag}"
             )
-            counts = self.saved.photos
-            counts[photo.component_id] = counts.get(photo.component_id, 0) + 1
-            status = Text(f"✓ saved photo {photo.original_name}", style="bold green")
         self.call_after_refresh(self._clear_photo_field)
-        return status
+        return Text(f"{status} ({self._photo_count()} here)", style="bold green")
 
     def _clear_photo_field(self) -> None:
-        fields = self.detail.query("#photo")
-        if fields:
-            field = fields.first(SavingField)
-            field.input.value = ""
+        """Empty the path once attached, ready for the next photo; the status stays."""
+        for field in self.detail.query("#photo").results(SavingField):
             field.saved_value = ""
-            field.query_one(".status", Static).update(
-                Text(f"photos of {self.stop.component.tag}: {self._photo_count()}")
-            )
+            field.input.value = ""
 
     @on(Select.Changed, "#instrument")
     def _instrument_changed(self, event: Select.Changed) -> None:
