@@ -191,15 +191,10 @@ class SiteScreen(Screen[None]):
         check = self.state.check if self.state else None
         if check is None:
             return
-        groups = series(records.readings, Quantity.EARTH_ISOLATED)
+        groups = series(records.readings)
         for trend in check.trends:
-            values = [
-                r.value
-                for (component_id, _), group in groups.items()
-                if component_id == trend.component_id
-                for r in group
-                if r.value is not None
-            ]
+            group = groups.get((trend.component_id, Quantity.EARTH_ISOLATED), [])
+            values = [r.value for r in group if r.value is not None]
             slope = trend.slope_ohm_per_year
             crossing = Text(
                 trend.crossing.isoformat() if trend.crossing else "—",

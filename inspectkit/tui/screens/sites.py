@@ -14,7 +14,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
-from inspectkit.store.queries import site_summaries
+from inspectkit.store import Store
 from inspectkit.tui.site_state import SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
 
@@ -75,6 +75,22 @@ class SiteRow:
         return (getattr(self, by).lower(), self.name.lower())
 
 
+def list_rows(store: Store) -> list[SiteRow]:
+    """The list's columns for every site, straight from SQL.
+
+    The list is the first thing on screen, so it skips building full records:
+    only the six values it shows, read in one query.
+    """
+    cursor = store.db.execute(
+        "SELECT s.id, s.name, s.protection_level, s.client, s.town, MAX(i.date) FROM site s"
+        " LEFT JOIN inspection i ON i.site_id = s.id GROUP BY s.id"
+    )
+    return [
+        SiteRow(site_id, name, level, client, town, date.fromisoformat(last) if last else None)
+        for site_id, name, level, client, town, last in cursor
+    ]
+
+
 class SitesScreen(Screen[None]):
     """Every site; type to filter, Enter to open."""
 
@@ -115,6 +131,8 @@ class SitesScreen(Screen[None]):
     def __init__(self) -> None:
         super().__init__()
         self.wide = False
+        #: The width the columns were last laid out for.
+        self.laid_out_for = 0
         self.rows: dict[str, SiteRow] = {}
         self.sort_by = "state"
         self.descending = False
@@ -138,41 +156,37 @@ class SitesScreen(Screen[None]):
         yield Footer()
 
     def on_mount(self) -> None:
-        self._add_columns()
         self.table.focus()
 
-    def _add_columns(self) -> None:
+    def on_resize(self, event: events.Resize) -> None:
+        """Lay the columns out again only when the width really changed (each costs a rebuild)."""
+        if event.size.width == self.laid_out_for:
+            return
+        self.laid_out_for = event.size.width
+        self.wide = event.size.width >= WIDE
         table = self.table
         table.clear(columns=True)
-        widths = _column_widths(self.size.width, self.wide)
+        widths = _column_widths(event.size.width, self.wide)
         for label, key in COLUMNS + (WIDE_COLUMNS if self.wide else ()):
             table.add_column(label, key=key, width=widths.get(key))
-
-    def on_resize(self, event: events.Resize) -> None:
-        self.wide = event.size.width >= WIDE
-        self._add_columns()
-        self.rebuild()
+        if self.rows:
+            self.rebuild()
 
     def on_screen_resume(self) -> None:
         self.reload()
 
     def reload(self) -> None:
-        """Read the sites again (cheap, one query) and judge them in the background."""
+        """Read the sites again (one query) and judge them in the background."""
         known = self.rows
         self.rows = {
-            s.site.id: SiteRow(
-                s.site.id,
-                s.site.name,
-                s.site.protection_level.value,
-                s.site.client,
-                s.site.town,
-                s.last_visit,
-                known[s.site.id].state if s.site.id in known else None,
-            )
-            for s in site_summaries(self.app.store)
+            row.site_id: replace(row, state=known[row.site_id].state)
+            if row.site_id in known
+            else row
+            for row in list_rows(self.app.store)
         }
         self.rebuild()
-        self.compute_states(list(self.rows))
+        # Judge the sites once the list is on screen, so the first paint does not wait.
+        self.call_after_refresh(self.compute_states, list(self.rows))
 
     @work(thread=True, exclusive=True, group="site-states")
     def compute_states(self, site_ids: list[str]) -> None:
@@ -222,6 +236,8 @@ class SitesScreen(Screen[None]):
         it stays on the top row, so the worst site is highlighted as states arrive.
         """
         table = self.table
+        if not table.columns:
+            return  # laid out on the first resize, which rebuilds
         current = None if table.cursor_row == 0 else self.highlighted_site_id()
         table.clear()
         rows = self.visible_rows()
@@ -240,13 +256,14 @@ class SitesScreen(Screen[None]):
 
     def _cells(self, row: SiteRow) -> tuple[object, ...]:
         state_cell, due_cell = self._state_cells(row)
+        # Text, not str: names are shown as typed, never read as markup.
         cells: tuple[object, ...] = (
-            state_cell, row.name, row.level, row.client, row.town, due_cell
+            state_cell, Text(row.name), Text(row.level), Text(row.client), Text(row.town), due_cell
         )
         if self.wide:
             kind = row.state.next_kind.replace("_", "-") if row.state else ""
             last = row.last_visit.isoformat() if row.last_visit else "never"
-            cells += (kind, last)
+            cells += (Text(kind), Text(last))
         return cells
 
     def show_status(self, shown: int) -> None:
