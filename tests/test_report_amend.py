@@ -90,3 +90,22 @@ def test_unchanged_amendment_says_so(amended) -> None:
     assert build_report(store, amendment.id).amendment == (
         "No reading, finding or photo was changed.",
     )
+
+
+def test_an_amendment_of_an_amendment_replaces_both_earlier_revisions(amended) -> None:
+    store, made, _, amendment, folder = amended
+    export_report(store, amendment.id, folder / "r2.pdf", passphrase=PASSPHRASE, now=NOW)
+    second = create_amendment(store, amendment.id, date(2026, 11, 20))
+    assert second.report_revision == 3
+    copy = next(
+        r for r in store.select(Reading, "inspection_id = ?", [second.id]) if r.value == 0.35
+    )
+    store.save(copy.model_copy(update={"value": 0.12}))
+    content = build_report(store, second.id)
+    assert len(content.readings) == len(made.readings)
+    assert next(r for r in content.readings if r.tag == "DC-02").result == "PASS"
+    assert f"amends the signed report of inspection {amendment.id}" in content.amends
+    # The original, rendered again, still shows what it said then.
+    original = build_report(store, made.current.id)
+    assert next(r for r in original.readings if r.tag == "DC-02").result.startswith("FAIL")
+    assert not original.amends

@@ -120,9 +120,23 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
     inspections replaced by an amendment are dropped with their readings,
     findings and photos; and this inspection counts as finished.
     """
-    replaced = {i.amends_id for i in records.inspections if i.amends_id and i.id != inspection.id}
-    replaced -= {inspection.id}
-    replaced |= {i.id for i in records.inspections if i.amends_id == inspection.id}
+    amenders: dict[str, list[str]] = {}
+    for other in records.inspections:
+        if other.amends_id:
+            amenders.setdefault(other.amends_id, []).append(other.id)
+    # Corrections made after this inspection (amendments of it, and of those) do not
+    # belong in its report; what the remaining amendments correct is replaced by them.
+    later: set[str] = set()
+    waiting = [inspection.id]
+    while waiting:
+        for child in amenders.get(waiting.pop(), []):
+            if child not in later:
+                later.add(child)
+                waiting.append(child)
+    replaced = later | {
+        i.amends_id for i in records.inspections if i.amends_id and i.id not in later
+    }
+    replaced.discard(inspection.id)
     keep = [
         i.model_copy(update={"finished": True}) if i.id == inspection.id else i
         for i in records.inspections
