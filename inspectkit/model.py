@@ -629,6 +629,9 @@ def _enum_or_hint(value: Any, enum: type[StrEnum], what: str) -> Any:
     if isinstance(value, enum):
         return value
     if isinstance(value, str):
+        exact = enum._value2member_map_.get(value)  # the stored form: no work to do
+        if exact is not None:
+            return exact
         key = value.strip().lower().replace("-", "_").replace(" ", "_")
         for member in enum:
             if key in (member.value, member.name.lower()):
