@@ -192,3 +192,13 @@ def test_key_path_is_relative_to_the_database(signed) -> None:
     store, _, inspector, _, db = signed
     assert not Path(inspector.signing_key).is_absolute()
     assert key_path(store, inspector) == db.parent / inspector.signing_key
+
+
+def test_an_unsigned_report_is_not_verified(tmp_path: Path) -> None:
+    store = Store.open(tmp_path / "db.sqlite")
+    made = build_site(store, tmp_path, photos=0)
+    out = tmp_path / "draft.pdf"
+    export_report(store, made.current.id, out)
+    store.close()
+    result = CliRunner().invoke(app, ["verify", str(out)])
+    assert result.exit_code == 1 and "NOT SIGNED" in result.output

@@ -31,7 +31,12 @@ def verify(
     """
     from inspectkit.model import Site
     from inspectkit.report.keys import certificate_from_pem
-    from inspectkit.report.verify import inspection_for_file, inspector_certificates, verify_pdf
+    from inspectkit.report.verify import (
+        NO_SIGNATURE,
+        inspection_for_file,
+        inspector_certificates,
+        verify_pdf,
+    )
     from inspectkit.store import Store, StoreError
 
     try:
@@ -84,6 +89,8 @@ def verify(
     else:
         if result.intact and result.whole_file:
             typer.echo(f"{file}: INTACT — unchanged since it was signed")
+        elif result.problem == NO_SIGNATURE:
+            typer.echo(f"{file}: NOT SIGNED — {result.problem}; nothing to verify")
         else:
             typer.echo(f"{file}: ALTERED — {result.problem}")
         if result.signer:

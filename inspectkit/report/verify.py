@@ -18,6 +18,9 @@ from typing import Any
 from inspectkit.model import Inspection, Inspector
 from inspectkit.store import Store
 
+#: The problem reported for a PDF that was never signed.
+NO_SIGNATURE = "the file carries no signature"
+
 
 @dataclass(frozen=True)
 class Verification:
@@ -75,7 +78,7 @@ def _embedded(data: bytes) -> tuple[Any, str]:
     except (PdfError, ValueError, KeyError, IndexError, TypeError) as exc:
         return None, f"the file cannot be read as a PDF ({exc})"
     if not signatures:
-        return None, "the file carries no signature"
+        return None, NO_SIGNATURE
     return signatures[-1], ""
 
 
@@ -88,6 +91,8 @@ def _result(data: bytes, embedded: Any, status: Any, problem: str) -> Verificati
     whole = status.coverage == SignatureCoverageLevel.ENTIRE_FILE
     if not status.intact:
         problem = "the signed content was changed after signing"
+    elif not status.valid:
+        problem = "the signature does not match the signer's certificate"
     elif not whole:
         problem = "content was added to the file after it was signed"
     return Verification(
