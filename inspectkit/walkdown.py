@@ -18,9 +18,8 @@ from typing import Any
 from pydantic import ValidationError
 
 from inspectkit.engine import rules
+from inspectkit.engine.check import check_site
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
-from inspectkit.engine.results import Result
-from inspectkit.engine.schedule import schedule_site
 from inspectkit.model import (
     WALKING_ORDER,
     Component,
@@ -430,14 +429,9 @@ def site_context(store: Store, site_id: str) -> SiteContext:
     return SiteContext(site, profile, components)
 
 
-#: The engine's rules that speak about a single reading; the others judge the whole site.
-READING_RULES = (
-    rules.reading_limits,
-    rules.electrode_rises,
-    rules.lapsed_calibration,
-    rules.doubtful_readings,
-    rules.strike_counters,
-)
+#: The engine's rules (by their result's `rule`) that speak about one reading or its
+#: series; the others judge the whole site.
+READING_RULES = frozenset({"limit", "rise", "calibration", "unreliable", "strike-counter", "trend"})
 
 
 def judge_reading(
@@ -447,17 +441,13 @@ def judge_reading(
     profile = context.profile
     records = _records_for(store, context, reading)
     today = max(inspection.date, reading.taken_at.date())
-    schedule = schedule_site(records, profile, today)
-    facts = rules.facts_for(records, profile, today, schedule, [])
-    found = sorted(
-        (
-            r
-            for rule in READING_RULES
-            for r in rule(facts)
-            if r.component_id == reading.component_id and r.reading_id in (None, reading.id)
-        ),
-        key=Result.sort_key,
-    )
+    found = [
+        r
+        for r in check_site(records, profile, today).results
+        if r.rule in READING_RULES
+        and r.component_id == reading.component_id
+        and r.reading_id in (None, reading.id)
+    ]
     severity = found[0].severity if found else Severity.OK
     limit = (
         profile.limit_for(reading.quantity, electrode_count(records, today))
@@ -753,17 +743,17 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
     if inspection.kind in COMPLETE_KINDS:
         # The engine judges unfinished drafts; judge this one as such even if finished.
         judged = inspection.model_copy(update={"finished": False})
+        readings = store.select(Reading, "inspection_id = ?", [inspection_id])
         records = SiteRecords(
             site=context.site,
             components=[s.component for s in stops],
             inspections=[judged],
-            readings=store.select(Reading, "inspection_id = ?", [inspection_id]),
+            readings=readings,
         )
-        profile = context.profile
-        facts = rules.facts_for(
-            records, profile, judged.date, schedule_site(records, profile, judged.date), []
-        )
-        items.extend(Missing(None, gap.message) for gap in rules.missing_tests(facts))
+        # Judged as of the last reading, so that none is cut off as "later than the visit".
+        day = max([judged.date, *(r.taken_at.date() for r in readings)])
+        check = check_site(records, context.profile, day)
+        items.extend(Missing(None, r.message) for r in check.results if r.rule == "incomplete")
     graded = {f.component_id for f in store.select(Finding, "inspection_id = ?", [inspection_id])}
     items.extend(
         Missing(s.component, f"{s.component.tag}: not graded yet")

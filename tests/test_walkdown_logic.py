@@ -247,8 +247,8 @@ def test_missing_lists_the_engines_gaps_then_ungraded_parts(
         record_reading(store, visit.id, site.tag(f"ER-0{n}").id, "earth_isolated", "4")
         record_reading(store, visit.id, site.tag(f"DC-0{n}").id, "continuity", "0.1")
     missing = missing_for_completion(store, visit.id)
-    assert "isolated earth reading for ER-03" in missing[0].what
-    assert "continuity reading for DC-03" in missing[0].what
+    assert "isolated earth reading for ER-03;" in missing[0].what
+    assert "continuity reading for DC-03:" in missing[0].what
     assert [m.component.tag for m in missing[1:] if m.component][:2] == ["AT-01", "AT-02"]
     assert len(missing) == 1 + 15
 
