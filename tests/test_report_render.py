@@ -12,8 +12,9 @@ from pypdf import PdfReader
 from reportlab import rl_config
 from test_report_factory import _jpeg, build_site
 
+from inspectkit.cautions import CAUTIONS
 from inspectkit.report.branding import BrandingError, load_branding
-from inspectkit.report.content import CAUTIONS, Field, ReadingRow
+from inspectkit.report.content import Field, ReadingRow
 from inspectkit.report.model import build_report
 from inspectkit.report.photos import downscale
 from inspectkit.report.render import render_report

@@ -11,25 +11,13 @@ from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
 
-#: The safety cautions every report carries (DOMAIN.md §7; the 30/30 rule is
-#: published by occupational safety authorities, the rest is common practice).
-CAUTIONS: tuple[str, ...] = (
-    "Stop outdoor and rooftop work and testing when thunder is heard or lightning is seen: "
-    "if thunder follows the flash within 30 seconds, take shelter, and resume only "
-    "30 minutes after the last thunder (the 30/30 rule).",
-    "Work at height only with the site's roof-access arrangements and fall protection; "
-    "lightning protection conductors are not anchor points.",
-    "An electrode disconnected at its test joint leaves that part of the structure "
-    "unprotected and can carry fault current: test one electrode at a time, do not touch "
-    "electrodes, spikes or leads during a test, and reconnect every test joint before leaving.",
-)
+from inspectkit.cautions import CAUTIONS
 
-#: Said on every report: what the tool does not do, and who decides.
+#: Said on every report beside the cautions (whose last one says who decides).
 DEFERRAL = (
-    "This report records what was inspected and measured and applies the acceptance limits "
-    "of the rule set named above. It is not a design of the lightning protection system and "
-    "does not certify compliance. Local codes, the authority having jurisdiction and licensed "
-    "or accredited practice decide what is required."
+    "This report records what was inspected and measured, judged against the acceptance "
+    "limits of the rule set named in the site details; where local codes or the authority "
+    "having jurisdiction set other limits, theirs apply."
 )
 
 
