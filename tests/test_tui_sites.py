@@ -112,3 +112,41 @@ async def test_new_site_bad_input_is_explained_and_nothing_saved(tui_db: Path) -
         assert "I, II, III or IV" in str(dialog.query_one("#error-protection_level").render())
         assert dialog.query_one("#field-name", Input).value == "Quarry Works"
         assert app.store.select(Site, "name = ?", ["Quarry Works"]) == []
+
+
+def test_every_binding_has_an_id_and_a_tooltip() -> None:
+    from inspectkit.tui.app import InspectApp
+    from inspectkit.tui.dialogs.choice import ChoiceDialog
+    from inspectkit.tui.dialogs.confirm import ConfirmDialog
+    from inspectkit.tui.dialogs.record_form import RecordDialog
+    from inspectkit.tui.screens.findings import FindingsScreen
+    from inspectkit.tui.screens.settings import SettingsScreen
+
+    owners = [
+        InspectApp, SitesScreen, SiteScreen, FindingsScreen, SettingsScreen,
+        CautionsDialog, ConfirmDialog, ChoiceDialog, RecordDialog,
+    ]
+    ids = []
+    for owner in owners:
+        for binding in owner.BINDINGS:
+            assert binding.id and binding.tooltip, f"{owner.__name__}: {binding.key}"
+            ids.append(binding.id)
+    assert len(ids) == len(set(ids))
+
+
+async def test_command_palette_offers_the_screen_and_app_actions(tui_db: Path) -> None:
+    from inspectkit.tui.commands import ActionsProvider
+
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        provider = ActionsProvider(app.screen)
+        titles = {hit.text async for hit in provider.discover()}
+        assert {"Open", "Sort", "Reverse", "New site", "Cautions", "Findings", "Settings"} <= titles
+        hits = [hit async for hit in provider.search("findings")]
+        assert hits
+        hits[0].command()
+        await pilot.pause()
+        from inspectkit.tui.screens.findings import FindingsScreen
+
+        assert isinstance(app.screen, FindingsScreen)

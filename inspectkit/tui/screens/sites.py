@@ -75,6 +75,11 @@ class SiteRow:
         return (getattr(self, by).lower(), self.name.lower())
 
 
+def last_write(store: Store) -> int | None:
+    """A number that changes whenever anything is written: the newest audit row's."""
+    return store.db.execute("SELECT MAX(rowid) FROM audit").fetchone()[0]
+
+
 def list_rows(store: Store) -> list[SiteRow]:
     """The list's columns for every site, straight from SQL.
 
@@ -131,6 +136,8 @@ class SitesScreen(Screen[None]):
     def __init__(self) -> None:
         super().__init__()
         self.wide = False
+        #: The last audit row seen when the list was read (every write adds one).
+        self.seen_write: int | None = -1
         #: The width the columns were last laid out for.
         self.laid_out_for = 0
         self.rows: dict[str, SiteRow] = {}
@@ -173,7 +180,11 @@ class SitesScreen(Screen[None]):
             self.rebuild()
 
     def on_screen_resume(self) -> None:
-        self.reload()
+        """Back on the list: read and judge again only if something was written meanwhile."""
+        version = last_write(self.app.store)
+        if version != self.seen_write or not self.rows:
+            self.seen_write = version
+            self.reload()
 
     def reload(self) -> None:
         """Read the sites again (one query) and judge them in the background."""
