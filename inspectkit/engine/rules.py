@@ -20,7 +20,6 @@ from inspectkit.engine.history import (
     electrode_count,
     in_service,
     series,
-    usable,
 )
 from inspectkit.engine.results import Result
 from inspectkit.engine.schedule import (
@@ -125,6 +124,10 @@ def _shown(reading: Reading) -> str:
     return format_value(reading.value, reading.quantity, reading.over_range, digits=3)
 
 
+def _ohms(value: float) -> str:
+    return format_value(value, Quantity.EARTH_ISOLATED, digits=3)
+
+
 def _day(reading: Reading) -> str:
     return reading.taken_at.date().isoformat()
 
@@ -132,13 +135,14 @@ def _day(reading: Reading) -> str:
 def reading_limits(facts: SiteFacts) -> Iterator[Result]:
     """The latest reading of each component above the profile's limit for its quantity."""
     count = electrode_count(facts.records, facts.today)
-    for (_, quantity), reading in sorted(facts.latest.items(), key=lambda kv: kv[1].taken_at):
-        limit = facts.profile.limit_for(quantity, count)
-        if limit is None or quantity not in LIMIT_ACTIONS:
+    limits = {q: facts.profile.limit_for(q, count) for q in LIMIT_ACTIONS}
+    for (_, quantity), reading in facts.latest.items():
+        limit = limits.get(quantity)
+        bound = reading.value
+        if limit is None or (not reading.over_range and bound is not None and bound <= limit):
             continue
         about = {**facts.about(reading), "limit": limit}
         tag, shown = about["component_tag"], _shown(reading)
-        bound = reading.value
         limit_text = format_value(limit, quantity, digits=3)
         if reading.over_range and bound is not None and bound < limit:
             yield facts.result(
@@ -161,24 +165,27 @@ def reading_limits(facts: SiteFacts) -> Iterator[Result]:
 def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
     """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
     step = facts.profile.limits.rise_fraction
-    for (_, quantity), readings in facts.history.items():
-        if quantity is not Quantity.EARTH_ISOLATED:
-            continue
-        good = [r for r in readings if usable(facts.records, r)]
+    for trend in facts.trends:  # the trend has already sorted out the readings that count
+        good = trend.points
         if len(good) < 2:
             continue
         baseline, previous, last = good[0], good[-2], good[-1]
         for name, earlier in (("baseline", baseline), ("previous reading", previous)):
-            if earlier.value and last.value is not None and last.value > earlier.value * (1 + step):
+            if earlier.value and last.value > earlier.value * (1 + step):
                 rise = 100 * (last.value / earlier.value - 1)
                 yield facts.result(
                     Severity.WATCH,
                     "rise",
-                    f"{facts.tag(last.component_id)} electrode {_shown(last)} on {_day(last)} is "
-                    f"{rise:.0f} % above its {name} of {_shown(earlier)} ({_day(earlier)}), more "
-                    f"than the {100 * step:.0f} % allowed: investigate the electrode and its "
-                    "connection.",
-                    **{**facts.about(last), "limit": earlier.value * (1 + step)},
+                    f"{trend.component_tag} electrode {_ohms(last.value)} on {last.day} is "
+                    f"{rise:.0f} % above its {name} of {_ohms(earlier.value)} ({earlier.day}), "
+                    f"more than the {100 * step:.0f} % allowed: investigate the electrode and "
+                    "its connection.",
+                    component_id=trend.component_id,
+                    component_tag=trend.component_tag,
+                    reading_id=last.reading_id,
+                    value=last.value,
+                    limit=earlier.value * (1 + step),
+                    unit=Quantity.EARTH_ISOLATED.unit,
                 )
                 break
 
@@ -276,10 +283,9 @@ def missing_tests(facts: SiteFacts) -> Iterator[Result]:
 
 def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
     """The tags of components a complete inspection should have tested and did not."""
+    visit = inspection.id
     taken = {
-        (r.component_id, r.quantity)
-        for r in facts.records.readings
-        if r.inspection_id == inspection.id
+        (r.component_id, r.quantity) for r in facts.records.readings if r.inspection_id == visit
     }
     present = [c for c in facts.records.components if in_service(c, inspection.date)]
     children: dict[str, list[Component]] = {}

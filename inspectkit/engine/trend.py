@@ -15,11 +15,10 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
 from statistics import NormalDist, median
-from typing import Any
+from typing import Any, NamedTuple
 
 from inspectkit.engine.history import (
     History,
-    calibration_lapsed,
     electrode_count,
     in_service,
     series,
@@ -87,6 +86,14 @@ def theil_sen(
     return TheilSen(slope, intercept, slopes[lower], slopes[upper])
 
 
+class TrendPoint(NamedTuple):
+    """One reading in a trend: its day, its value in Ω, and its id."""
+
+    day: date
+    value: float
+    reading_id: str
+
+
 @dataclass(frozen=True)
 class ElectrodeTrend:
     """How one electrode's isolated resistance moves over time.
@@ -106,6 +113,9 @@ class ElectrodeTrend:
         next_complete: the next complete inspection's due date.
         before_next_complete: the crossing falls on or before `next_complete`.
         note: one sentence saying what the trend shows, or why there is no forecast.
+        points: the readings fitted (numbers, not doubtful, calibrated instrument),
+            oldest first; plain values rather than the readings, so that a check of a
+            whole database does not keep every reading alive.
     """
 
     component_id: str
@@ -125,6 +135,7 @@ class ElectrodeTrend:
     next_complete: date | None
     before_next_complete: bool
     note: str
+    points: tuple[TrendPoint, ...] = ()
 
     @property
     def forecast(self) -> bool:
@@ -152,18 +163,24 @@ def electrode_trends(
     limit = profile.limit_for(Quantity.EARTH_ISOLATED, electrode_count(records, today))
     trends = []
     grouped = series(records.readings) if history is None else history
+    # What history.calibration_lapsed asks, looked up once per site rather than per reading.
+    due: dict[str | None, date] = {
+        key: i.calibration_due
+        for key, i in records.instruments.items()
+        if i.calibration_due is not None
+    }
     for (component_id, quantity), readings in grouped.items():
         if quantity is not Quantity.EARTH_ISOLATED:
             continue
         component = tags.get(component_id)
         if component is None or not in_service(component, today):
             continue
-        trends.append(_trend(records, component, readings, limit, next_complete))
+        trends.append(_trend(due, component, readings, limit, next_complete))
     return sorted(trends, key=lambda t: t.component_tag)
 
 
 def _trend(
-    records: SiteRecords,
+    calibration_due: dict[str | None, date],
     component: Component,
     readings: list[Reading],
     limit: float | None,
@@ -174,7 +191,10 @@ def _trend(
     for reading in readings:
         if reading.over_range or reading.value is None:
             over_range += 1
-        elif reading.unreliable or calibration_lapsed(records, reading):
+        elif reading.unreliable or (
+            reading.instrument_id in calibration_due
+            and reading.taken_at.date() > calibration_due[reading.instrument_id]
+        ):
             doubtful += 1
         else:
             kept.append(reading)
@@ -184,6 +204,7 @@ def _trend(
         component_id=component.id,
         component_tag=component.tag,
         used=len(kept),
+        points=tuple(TrendPoint(d, r.value, r.id) for d, r in zip(days, kept, strict=True)),
         left_out_unreliable=doubtful,
         left_out_over_range=over_range,
         first_day=days[0] if days else None,
