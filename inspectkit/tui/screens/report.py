@@ -66,12 +66,12 @@ class ReportScreen(Screen[None]):
         with Horizontal(id="report-body"):
             yield VerticalScroll(id="preview")
             with Vertical(id="report-side"):
-                yield Label("Photos to include (space toggles)")
+                yield Label("Photos (space: in/out)")
                 yield SelectionList[str](id="photos")
                 yield Label("Save as")
                 yield Input(id="output")
-                yield Label("Key passphrase (signing only)")
-                yield Input(id="passphrase", password=True, placeholder=f"or set {PASSPHRASE_ENV}")
+                yield Label("Passphrase, to sign")
+                yield Input(id="passphrase", password=True, placeholder="or env variable")
                 yield Static("", id="report-status")
         yield Footer()
 
