@@ -467,7 +467,7 @@ def judge_reading(
 
 
 def _records_for(store: Store, context: SiteContext, reading: Reading) -> SiteRecords:
-    """What the rules need to judge one reading: the site, its parts and that one series."""
+    """What the rules need to judge one reading: the site, the visits and that one series."""
     site = context.site
     inspections = store.select(Inspection, "site_id = ?", [site.id], order_by="date, created_at")
     ids = [i.id for i in inspections]
@@ -483,7 +483,12 @@ def _records_for(store: Store, context: SiteContext, reading: Reading) -> SiteRe
     }
     return SiteRecords(
         site=site,
-        components=list(context.components),
+        # The component, and the electrodes: some profiles scale a limit by their number.
+        components=[
+            c
+            for c in context.components
+            if c.id == reading.component_id or c.kind is ComponentKind.EARTH_ELECTRODE
+        ],
         inspections=inspections,
         readings=readings,
         instruments=instruments,
