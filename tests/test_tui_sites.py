@@ -109,7 +109,8 @@ async def test_new_site_bad_input_is_explained_and_nothing_saved(tui_db: Path) -
         assert app.screen is dialog
         error = str(dialog.query_one("#error-height_m").render())
         assert "metres" in error
-        assert "I, II, III or IV" in str(dialog.query_one("#error-protection_level").render())
+        level_error = str(dialog.query_one("#error-protection_level").render())
+        assert "choose a protection level" in level_error
         assert dialog.query_one("#field-name", Input).value == "Quarry Works"
         assert app.store.select(Site, "name = ?", ["Quarry Works"]) == []
 

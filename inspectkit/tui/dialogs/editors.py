@@ -52,6 +52,7 @@ def component_dialog(
     site_id: str,
     component: Component | None = None,
     parents: list[Component] | None = None,
+    kind: ComponentKind | None = None,
 ) -> RecordDialog[Component]:
     """Edit a component (re-tag, move, re-parent) or add one to a site.
 
@@ -59,6 +60,7 @@ def component_dialog(
         site_id: The site the component belongs to.
         component: The component to edit; None to add a new one.
         parents: Components it may hang off (a test joint's down conductor...).
+        kind: The kind a new component starts as (the group the user was in).
     """
     fields = [
         Field(
@@ -78,7 +80,7 @@ def component_dialog(
             choices=[(t.value, t.value) for t in ElectrodeType],
         ),
     ]
-    base = component.model_dump() if component else {"site_id": site_id}
+    base = component.model_dump() if component else {"site_id": site_id, "kind": kind}
     title = f"Edit {component.tag}" if component else "New component"
     return RecordDialog(title, Component, fields, base)
 

@@ -92,8 +92,8 @@ class RecordDialog(ModalScreen[R | None], Generic[R]):
                 yield Static("", id=f"error-{field.name}", classes="error")
             yield Static("", id="form-error", classes="error")
             with Horizontal(id="buttons"):
-                yield Button("Cancel", id="cancel")
-                yield Button("Save", id="save", variant="primary")
+                yield Button("Cancel", id="cancel", compact=True)
+                yield Button("Save (ctrl+s)", id="save", variant="primary", compact=True)
 
     def _editor(self, field: Field) -> Input | Select[str] | Checkbox:
         current = self.base.get(field.name)
@@ -137,17 +137,26 @@ class RecordDialog(ModalScreen[R | None], Generic[R]):
         self.dismiss(record)
 
     def _show_errors(self, text: str) -> None:
-        """Each "field: message" line under its field; the rest under the form."""
+        """Each "field: message" line under its field; the rest under the form.
+
+        A pick list left blank gets "choose one" rather than the model's list of
+        internal values, since the list on screen already shows the choices.
+        """
         by_field: dict[str, list[str]] = {}
-        hints = {f.name: f.hint for f in self.fields}
+        fields = {f.name: f for f in self.fields}
+        typed = self.values()
         for line in text.splitlines():
             name, _, message = line.partition(": ")
             name = name.split(".")[0]
-            if name not in hints:
+            field = fields.get(name)
+            if field is None:
                 name, message = "", line.removeprefix("record: ")
-            elif hints[name] and hints[name] not in message:
-                message = f"{message} (expected {hints[name]})"
-            by_field.setdefault(name, []).append(message)
+            elif field.choices and typed.get(name) in ("", None):
+                message = f"choose a {field.label.lower()} from the list"
+            elif field.hint and field.hint not in message:
+                message = f"{message} (expected {field.hint})"
+            if message not in by_field.get(name, []):
+                by_field.setdefault(name, []).append(message)
         for field in [*self.fields, None]:
             key = field.name if field else ""
             label = self.query_one(f"#error-{key}" if key else "#form-error", Static)

@@ -344,7 +344,9 @@ class SiteScreen(Screen[None]):
             c for c in self.records.components
             if c.retired_on is None and (component is None or c.id != component.id)
         ]
-        self.app.push_screen(component_dialog(self.site_id, component, parents), saved)
+        near = self.highlighted_component()
+        dialog = component_dialog(self.site_id, component, parents, near.kind if near else None)
+        self.app.push_screen(dialog, saved)
 
     def action_add_component(self) -> None:
         if self.records is not None:
