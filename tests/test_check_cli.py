@@ -126,3 +126,25 @@ def test_bulk_loader_gives_what_the_per_site_loader_gives(db_path):
                 got = sorted(getattr(records, part), key=lambda r: r.id)
                 assert got == sorted(getattr(one, part), key=lambda r: r.id)
             assert records.instruments == one.instruments
+
+
+def test_bulk_loaded_records_behave_like_validated_ones(db_path):
+    site = SiteBuilder("II", name="Draft Yard")
+    _, electrode = site.joint_with_electrode(1, down=False)
+    site.reading(
+        site.visit(date(2026, 3, 1), signed=False), electrode, Quantity.EARTH_ISOLATED, 9.0
+    )
+    with Store.open(db_path) as store:
+        _save(store, site)
+        (records,) = list(iter_site_records(store))
+        reading = records.readings[0]
+        assert reading.taken_at.tzinfo is not None
+        assert (
+            reading.model_dump()
+            == load_site_records(store, records.site.id).readings[0].model_dump()
+        )
+        reading.note = "re-tested after remaking the joint"  # assignment is still validated
+        with pytest.raises(ValueError, match="value"):
+            reading.value = -1.0
+        store.save(reading.model_copy(update={"value": 4.0}))
+        assert load_site_records(store, records.site.id).readings[0].value == 4.0

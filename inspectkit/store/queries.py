@@ -174,7 +174,9 @@ def _trusted_builder(
     enums and booleans, and the record is assembled the way pydantic's
     `model_construct` does. The function is generated with one expression per
     column (as `dataclasses` generates `__init__`), since a loop over the columns
-    costs as much again. Should the table's columns not be exactly the model's
+    costs as much again. Every record of a table shares one set of set fields:
+    it already holds every field, and pydantic only ever adds a field's name to it.
+    Should the table's columns not be exactly the model's
     fields (a database from another version), each row is validated instead.
 
     Args:
@@ -189,7 +191,7 @@ def _trusted_builder(
         "new": object.__new__,
         "put": object.__setattr__,
         "model": model,
-        "every": frozenset(names),
+        "every": set(names),
         "parse_time": datetime.fromisoformat,
         "UTC": UTC,
         "stored_time": _stored_time,
@@ -212,7 +214,7 @@ def _trusted_builder(
         "def build(row):\n"
         "    record = new(model)\n"
         f"    put(record, '__dict__', {{{', '.join(items)}}})\n"
-        "    put(record, '__pydantic_fields_set__', set(every))\n"
+        "    put(record, '__pydantic_fields_set__', every)\n"
         "    put(record, '__pydantic_extra__', None)\n"
         "    put(record, '__pydantic_private__', None)\n"
         "    return record\n"
