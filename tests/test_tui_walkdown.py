@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 from textual.app import App
 from textual.pilot import Pilot
-from textual.widgets import RadioSet, Select, Static
+from textual.widgets import OptionList, RadioSet, Select, Static
 
 from inspectkit.cautions import ACKNOWLEDGED_SETTING
 from inspectkit.demo.generate import build_demo
@@ -20,6 +20,8 @@ from inspectkit.model import (
     Finding,
     Grade,
     Inspection,
+    InspectionKind,
+    Inspector,
     Instrument,
     Photo,
     Quantity,
@@ -31,6 +33,7 @@ from inspectkit.profiles import load_profile
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.tui.app import make_app
+from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.saving_field import SavingField
@@ -121,15 +124,28 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         )
         site = find_site(store, DEMO_SITE)
         assert site is not None
+        inspector_id = store.select(Inspector)[0].id
+        store.set_setting("inspector_id", inspector_id)
     photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", datetime.now(UTC))
 
     app = make_app(db_path, today=today)
     async with app.run_test(size=(80, 24)) as pilot:
-        # What the site screen does on its walkdown key.
-        visit = start_inspection(app.store, site.id, "complete", None, app.today)
-        await app.push_screen(WalkdownScreen(visit.id))
+        # Open the site, press its walkdown key and choose a complete inspection.
+        await app.workers.wait_for_complete()
+        await app.push_screen(SiteScreen(site.id))
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("w")
+        await pilot.pause()
+        kinds = app.screen.query_one(OptionList)
+        kinds.highlighted = next(
+            i for i, o in enumerate(kinds.options) if o.id == InspectionKind.COMPLETE.value
+        )
+        await pilot.press("enter")
         await pilot.pause()
         screen = screen_of(app)
+        visit = screen.inspection
+        assert visit.kind is InspectionKind.COMPLETE and visit.inspector_id == inspector_id
         screen.query_one("#instrument", Select).value = hired.id
         screen.query_one("#soil", Select).value = SoilCondition.NORMAL.value
         await pilot.pause()
