@@ -58,3 +58,15 @@ def test_killed_mid_walkdown_keeps_every_saved_field(tmp_path: Path) -> None:
             reading = saved[(component_id, quantity)]
             assert reading.value == pytest.approx(parse(text, Quantity(quantity)).value)
         assert store.verify_audit() == []
+
+
+def test_each_commit_reaches_the_disk(tmp_path: Path) -> None:
+    """A pulled battery is not a SIGKILL: the WAL must be synced at every commit.
+
+    SQLite documentation, PRAGMA synchronous: in WAL mode, FULL (2) syncs the WAL at
+    each transaction commit, so a committed transaction survives a power loss;
+    NORMAL (1) may lose the last ones.
+    """
+    with Store.open(tmp_path / "walk.sqlite") as store:
+        assert store.db.execute("PRAGMA journal_mode").fetchone() == ("wal",)
+        assert store.db.execute("PRAGMA synchronous").fetchone() == (2,)
