@@ -166,25 +166,26 @@ def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
     """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
     step = facts.profile.limits.rise_fraction
     for trend in facts.trends:  # the trend has already sorted out the readings that count
-        good = trend.points
-        if len(good) < 2:
+        values, days = trend.values, trend.days
+        if len(values) < 2:
             continue
-        baseline, previous, last = good[0], good[-2], good[-1]
-        for name, earlier in (("baseline", baseline), ("previous reading", previous)):
-            if earlier.value and last.value > earlier.value * (1 + step):
-                rise = 100 * (last.value / earlier.value - 1)
+        last = values[-1]
+        for name, at in (("baseline", 0), ("previous reading", -2)):
+            earlier = values[at]
+            if earlier and last > earlier * (1 + step):
+                rise = 100 * (last / earlier - 1)
                 yield facts.result(
                     Severity.WATCH,
                     "rise",
-                    f"{trend.component_tag} electrode {_ohms(last.value)} on {last.day} is "
-                    f"{rise:.0f} % above its {name} of {_ohms(earlier.value)} ({earlier.day}), "
+                    f"{trend.component_tag} electrode {_ohms(last)} on {days[-1]} is "
+                    f"{rise:.0f} % above its {name} of {_ohms(earlier)} ({days[at]}), "
                     f"more than the {100 * step:.0f} % allowed: investigate the electrode and "
                     "its connection.",
                     component_id=trend.component_id,
                     component_tag=trend.component_tag,
-                    reading_id=last.reading_id,
-                    value=last.value,
-                    limit=earlier.value * (1 + step),
+                    reading_id=trend.reading_ids[-1],
+                    value=last,
+                    limit=earlier * (1 + step),
                     unit=Quantity.EARTH_ISOLATED.unit,
                 )
                 break

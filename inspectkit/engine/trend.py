@@ -15,7 +15,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
 from statistics import NormalDist, median
-from typing import Any, NamedTuple
+from typing import Any
 
 from inspectkit.engine.history import (
     History,
@@ -86,14 +86,6 @@ def theil_sen(
     return TheilSen(slope, intercept, slopes[lower], slopes[upper])
 
 
-class TrendPoint(NamedTuple):
-    """One reading in a trend: its day, its value in Ω, and its id."""
-
-    day: date
-    value: float
-    reading_id: str
-
-
 @dataclass(frozen=True)
 class ElectrodeTrend:
     """How one electrode's isolated resistance moves over time.
@@ -113,9 +105,9 @@ class ElectrodeTrend:
         next_complete: the next complete inspection's due date.
         before_next_complete: the crossing falls on or before `next_complete`.
         note: one sentence saying what the trend shows, or why there is no forecast.
-        points: the readings fitted (numbers, not doubtful, calibrated instrument),
-            oldest first; plain values rather than the readings, so that a check of a
-            whole database does not keep every reading alive.
+        days, values, reading_ids: the readings fitted (numbers, not doubtful,
+            calibrated instrument), oldest first, as plain columns rather than the
+            readings, so that a check of a whole database does not keep every reading alive.
     """
 
     component_id: str
@@ -135,7 +127,9 @@ class ElectrodeTrend:
     next_complete: date | None
     before_next_complete: bool
     note: str
-    points: tuple[TrendPoint, ...] = ()
+    days: tuple[date, ...] = ()
+    values: tuple[float, ...] = ()
+    reading_ids: tuple[str, ...] = ()
 
     @property
     def forecast(self) -> bool:
@@ -200,11 +194,14 @@ def _trend(
             kept.append(reading)
     left_out = _left_out(doubtful, over_range)
     days = [r.taken_at.date() for r in kept]
+    values = [r.value for r in kept if r.value is not None]
     base: dict[str, Any] = dict(
         component_id=component.id,
         component_tag=component.tag,
         used=len(kept),
-        points=tuple(TrendPoint(d, r.value, r.id) for d, r in zip(days, kept, strict=True)),
+        days=tuple(days),
+        values=tuple(values),
+        reading_ids=tuple(r.id for r in kept),
         left_out_unreliable=doubtful,
         left_out_over_range=over_range,
         first_day=days[0] if days else None,
@@ -229,7 +226,7 @@ def _trend(
         note = f"no forecast: readings span {span:.1f} years, at least 1 year needed{left_out}"
         return ElectrodeTrend(**base, **none, note=note)
     xs = [(d - days[0]).days / YEAR_DAYS for d in days]
-    fit = theil_sen(xs, [r.value for r in kept if r.value is not None])
+    fit = theil_sen(xs, values)
     assert fit is not None  # the span is at least a year, so two x values differ
     fitted_first = fit.intercept
     pct = 100 * fit.slope / fitted_first if fitted_first > 0 else None
