@@ -85,7 +85,7 @@ class WalkdownScreen(Screen[None]):
         Binding(
             "pageup",
             "step(-1)",
-            "Previous",
+            "Prev",
             id="walkdown.previous",
             priority=True,
             tooltip="Save this component and go back to the one before",
@@ -93,7 +93,7 @@ class WalkdownScreen(Screen[None]):
         Binding(
             "ctrl+g",
             "go_to_tag",
-            "Go to tag",
+            "Tag",
             id="walkdown.tag",
             priority=True,
             tooltip="Jump to a component by the tag painted on it",
