@@ -58,6 +58,8 @@ async def test_tree_groups_by_kind_with_latest_reading_and_verdict(tui_db: Path)
         # Roof first, then down the building: the walking order.
         assert branches[:3] == ["air terminal (1)", "down conductor (1)", "test joint (3)"]
         labels = _leaf_labels(tree)
+        checks = str(screen.query_one("#checks").render())
+        assert checks.startswith("fail") and "TJ-02" in checks
         # 12.4 Ω against the 10 Ω limit of the iec-62305-3 profile.
         assert labels["TJ-02"] == "TJ-02  12.4 Ω fail"
         assert labels["TJ-01"] == "TJ-01  3.1 Ω pass"
@@ -168,3 +170,26 @@ async def test_walkdown_starts_a_draft_and_continues_it(tui_db: Path) -> None:
         await pilot.press("w")
         await pilot.pause()
         assert app.screen.inspection_id == drafts[0].id
+
+
+async def test_edit_site_keeps_typing_until_valid(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot, tui_db)
+        await pilot.press("e")
+        await pilot.pause()
+        dialog = app.screen
+        dialog.query_one("#field-client", Input).value = "Eastvale Borough Council"
+        dialog.query_one("#field-latitude", Input).value = "51.5"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        # The model's own rule: latitude and longitude go together.
+        assert "give both or neither" in str(dialog.query_one("#form-error").render())
+        assert app.store.get(Site, screen.site_id).client == "Eastvale Council"
+        dialog.query_one("#field-longitude", Input).value = "-1.25"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        site = app.store.get(Site, screen.site_id)
+        assert site.client == "Eastvale Borough Council"
+        assert (site.latitude, site.longitude) == (51.5, -1.25)
+        assert "Eastvale Borough Council" in str(screen.query_one("#site-title").render())

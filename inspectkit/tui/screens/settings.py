@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from datetime import date
+
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
@@ -11,6 +13,16 @@ from textual.widgets import Button, DataTable, Footer, Header, Label, Select, St
 from inspectkit.model import Inspector, Instrument, Record, Site
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
+
+
+def _instrument_label(instrument: Instrument, today: date) -> str:
+    """Description, serial and calibration date, flagged when calibration has lapsed."""
+    label = f"{instrument.description} #{instrument.serial}"
+    due = instrument.calibration_due
+    if due is None:
+        return label
+    lapsed = " LAPSED" if due < today else ""
+    return f"{label} · calibration due {due.isoformat()}{lapsed}"
 
 
 class SettingsScreen(Screen[None]):
@@ -75,9 +87,7 @@ class SettingsScreen(Screen[None]):
         )
         self._fill(
             "#instrument",
-            [(f"{i.description} #{i.serial}"
-              + (f" · cal. due {i.calibration_due.isoformat()}" if i.calibration_due else ""),
-              i.id)
+            [(_instrument_label(i, self.app.today), i.id)
              for i in store.select(Instrument, order_by="description")],
             prefs.instrument_id,
         )

@@ -7,7 +7,7 @@ from datetime import date
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal
+from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static, TabbedContent, TabPane, Tree
 
@@ -104,9 +104,12 @@ class SiteScreen(Screen[None]):
         with Horizontal(id="site-head"):
             yield StateBadge(id="state")
             yield Static("", id="site-title")
+        yield Static("", id="site-summary", classes="hint")
         with Horizontal(id="site-body"):
             yield Tree("System", id="system")
             with TabbedContent(id="tabs"):
+                with TabPane("Checks", id="tab-checks"), VerticalScroll():
+                    yield Static("", id="checks")
                 with TabPane("Trends", id="tab-trends"):
                     yield DataTable(id="trends", cursor_type="row")
                 with TabPane("Findings", id="tab-findings"):
@@ -148,8 +151,13 @@ class SiteScreen(Screen[None]):
             f"{site.town or '—'} · {site.profile}{' · ' + ', '.join(flags) if flags else ''}"
         )
         check = self.state.check
+        self.query_one("#site-summary", Static).update(
+            check.summary if check else f"profile {site.profile!r} cannot be read; pick another "
+            "in Settings (F4)"
+        )
         verdicts = reading_verdicts(check, records) if check else {}
         self._fill_tree(records, verdicts, today)
+        self._fill_checks()
         self._fill_trends(records)
         self._fill_findings(records)
         self._fill_visits(records)
@@ -184,6 +192,17 @@ class SiteScreen(Screen[None]):
                 node = branch.add_leaf(label, data=component.id)
                 if component.id == selected:
                     tree.move_cursor(node)
+
+    def _fill_checks(self) -> None:
+        """The engine's results as sentences, wrapped, worst first."""
+        check = self.state.check if self.state else None
+        text = Text()
+        for result in check.results if check else ():
+            text.append_text(state_text(result.severity.value))
+            text.append(f" {result.message}\n")
+        if check is not None and not check.results:
+            text.append("Nothing to act on.")
+        self.query_one("#checks", Static).update(text)
 
     def _fill_trends(self, records: SiteRecords) -> None:
         table = self.query_one("#trends", DataTable)

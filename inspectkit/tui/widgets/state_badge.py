@@ -14,7 +14,7 @@ STATE_STYLES: dict[str, str] = {
     "incomplete": "bold magenta",
     "fail": "bold red",
     "overdue": "bold white on red",
-    "never inspected": "bold white on red",
+    "no profile": "bold magenta",
 }
 
 #: What an unknown or not yet computed state shows.
