@@ -117,16 +117,16 @@ class ElectrodeTrend:
     left_out_over_range: int
     first_day: date | None
     last_day: date | None
-    slope_ohm_per_year: float | None
-    slope_pct_per_year: float | None
-    slope_low: float | None
-    slope_high: float | None
-    fitted_last: float | None
     limit: float | None
-    crossing: date | None
     next_complete: date | None
-    before_next_complete: bool
     note: str
+    slope_ohm_per_year: float | None = None
+    slope_pct_per_year: float | None = None
+    slope_low: float | None = None
+    slope_high: float | None = None
+    fitted_last: float | None = None
+    crossing: date | None = None
+    before_next_complete: bool = False
     days: tuple[date, ...] = ()
     values: tuple[float, ...] = ()
     reading_ids: tuple[str, ...] = ()
@@ -209,22 +209,13 @@ def _trend(
         limit=limit,
         next_complete=next_complete,
     )
-    none: dict[str, Any] = dict(
-        slope_ohm_per_year=None,
-        slope_pct_per_year=None,
-        slope_low=None,
-        slope_high=None,
-        fitted_last=None,
-        crossing=None,
-        before_next_complete=False,
-    )
     span = (days[-1] - days[0]).days / YEAR_DAYS if days else 0.0
     if len(kept) < MIN_READINGS:
         note = f"no forecast: {len(kept)} usable reading(s), {MIN_READINGS} needed{left_out}"
-        return ElectrodeTrend(**base, **none, note=note)
+        return ElectrodeTrend(**base, note=note)
     if span < MIN_SPAN_YEARS:
         note = f"no forecast: readings span {span:.1f} years, at least 1 year needed{left_out}"
-        return ElectrodeTrend(**base, **none, note=note)
+        return ElectrodeTrend(**base, note=note)
     xs = [(d - days[0]).days / YEAR_DAYS for d in days]
     fit = theil_sen(xs, values)
     assert fit is not None  # the span is at least a year, so two x values differ

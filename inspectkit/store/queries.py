@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from datetime import UTC, date, datetime
 from enum import Enum
 from itertools import groupby
-from operator import itemgetter
+from operator import attrgetter, itemgetter
 from typing import Any, get_args
 
 from inspectkit.model import (
@@ -135,7 +135,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
                 parts[name] = pending[name][1]
                 pending[name] = next(stream, None)
         readings = parts.get("readings", [])
-        used = {r.instrument_id for r in readings if r.instrument_id}  # type: ignore[attr-defined]
+        used = set(map(_instrument_of, readings))
         # Built without validation: each part was read back from the store just above.
         yield SiteRecords.model_construct(
             site=site,
@@ -147,6 +147,8 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             instruments={key: instruments[key] for key in used if key in instruments},
         )
 
+
+_instrument_of = attrgetter("instrument_id")
 
 #: Rows of a table hanging off inspections, with the inspection's site, in site order.
 _JOINED = (
