@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Awaitable, Callable
 from datetime import UTC, date, datetime
 from pathlib import Path
 
@@ -38,27 +39,22 @@ def walk_app(tmp_path: Path) -> WalkHarness:
     return WalkHarness(path, visit.id)
 
 
-async def _at_electrode(pilot: Pilot[None]) -> None:
-    screen = pilot.app.screen
-    await screen.show_stop(5)  # type: ignore[attr-defined]
-    for field in screen.query(Input):
-        field.cursor_blink = False
-    await pilot.pause()
+def _at_stop(index: int) -> Callable[[Pilot[None]], Awaitable[None]]:
+    """Show one stop of the walk, with the cursors still so that the picture is stable."""
 
+    async def run_before(pilot: Pilot[None]) -> None:
+        screen = pilot.app.screen
+        await screen.show_stop(index)  # type: ignore[attr-defined]
+        for field in screen.query(Input):
+            field.cursor_blink = False
+        await pilot.pause()
 
-async def _at_defect(pilot: Pilot[None]) -> None:
-    screen = pilot.app.screen
-    await screen.show_stop(4)  # type: ignore[attr-defined]
-    for field in screen.query(Input):
-        field.cursor_blink = False
-    await pilot.pause()
+    return run_before
 
 
 @pytest.mark.parametrize("size", [(80, 24), (160, 48)], ids=["80x24", "160x48"])
-def test_walkdown_at_a_failing_electrode(snap_compare, walk_app: WalkHarness, size) -> None:
-    assert snap_compare(walk_app, run_before=_at_electrode, terminal_size=size)
-
-
-@pytest.mark.parametrize("size", [(80, 24), (160, 48)], ids=["80x24", "160x48"])
-def test_walkdown_at_a_joint_needing_attention(snap_compare, walk_app: WalkHarness, size) -> None:
-    assert snap_compare(walk_app, run_before=_at_defect, terminal_size=size)
+@pytest.mark.parametrize(
+    "index", [5, 4], ids=["at-a-failing-electrode", "at-a-joint-needing-attention"]
+)
+def test_walkdown(snap_compare, walk_app: WalkHarness, index: int, size) -> None:
+    assert snap_compare(walk_app, run_before=_at_stop(index), terminal_size=size)
