@@ -299,3 +299,18 @@ def test_a_bad_due_date_names_the_format(store: Store, site: WalkSite, visit: In
     with pytest.raises(WalkdownError) as err:
         grade_component(store, visit.id, site.tag("AT-01").id, "defect", "  ")
     assert err.value.field == "text"
+
+
+def test_per_electrode_limit_scales_with_the_number_of_electrodes(store: Store) -> None:
+    site = build_walk_site(store, down_conductors=4)
+    store.save(site.site.model_copy(update={"profile": "bs-6651-practice"}))
+    visit = start_inspection(store, site.site.id, "complete", None, TODAY)
+    # BS 6651 (published in the old standard, DOMAIN.md §3): each electrode with its
+    # test joint open ≤ 10 Ω × the number of electrodes; four rods → 40 Ω.
+    outcome = record_reading(store, visit.id, site.tag("ER-01").id, "earth_isolated", "25")
+    assert outcome.limit == 40.0
+    # Within the limit (no FAIL), but far above the 4 Ω of the last visit: watch.
+    assert outcome.verdict == "WATCH 25 Ω ≤ 40 Ω"
+    # The whole system stays at ≤ 10 Ω (BS 6651, same clause).
+    combined = record_reading(store, visit.id, site.tag("TJ-01").id, "earth_combined", "12")
+    assert combined.verdict == "FAIL 12 Ω > 10 Ω"
