@@ -193,3 +193,14 @@ async def test_edit_site_keeps_typing_until_valid(tui_db: Path) -> None:
         assert site.client == "Eastvale Borough Council"
         assert (site.latitude, site.longitude) == (51.5, -1.25)
         assert "Eastvale Borough Council" in str(screen.query_one("#site-title").render())
+
+
+def test_sparkline_scales_from_zero_and_marks_readings_over_the_limit() -> None:
+    from inspectkit.tui.widgets.sparkline import sparkline
+
+    line = sparkline([2.0, 4.0, 8.0, 12.0], limit=10.0)
+    # Eight steps from zero to the top reading: 2, 4, 8 and 12 Ω of 12 Ω round to steps 1, 2, 5, 7.
+    assert line.plain == "▂▃▆█"
+    styles = [span.style for span in line.spans]
+    assert styles == ["green", "green", "green", "red"]
+    assert sparkline([]).plain == ""

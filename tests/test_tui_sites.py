@@ -151,3 +151,26 @@ async def test_command_palette_offers_the_screen_and_app_actions(tui_db: Path) -
         from inspectkit.tui.screens.findings import FindingsScreen
 
         assert isinstance(app.screen, FindingsScreen)
+
+
+async def test_states_arrive_from_the_worker_after_the_list(tui_db: Path) -> None:
+    seen: list[object] = []
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24), message_hook=seen.append) as pilot:
+        await settled(pilot)
+    # The hook sees a message at each node it bubbles through: count each once.
+    batches = list({id(m): m for m in seen if isinstance(m, SitesScreen.StatesComputed)}.values())
+    assert batches and batches[-1].done
+    assert sum(len(b.states) for b in batches) == 3
+
+
+async def test_clicking_a_heading_sorts_by_it(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        town_x = sum(c.get_render_width(table) for c in table.ordered_columns[:4]) + 1
+        await pilot.click("#sites", offset=(town_x, 0))
+        await pilot.pause()
+        assert app.screen.sort_by == "town"
+        assert column(table, "town") == ["Eastvale", "Porthaven", "Porthaven"]
