@@ -82,3 +82,17 @@ async def test_profile_per_site(tui_db: Path) -> None:
         await pilot.pause()
         first = str(table.get_row_at(0)[0])
         assert app.store.select(Site, "name = ?", [first])[0].profile == "nfpa-780"
+
+
+async def test_keymap_setting_moves_a_key(tui_db: Path) -> None:
+    from inspectkit.tui.preferences import KEYMAP_SETTING
+    from inspectkit.tui.screens.findings import FindingsScreen
+
+    with Store.open(tui_db) as store:
+        store.set_setting(KEYMAP_SETTING, '{"app.findings": "f9"}')
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        await pilot.press("f9")
+        await pilot.pause()
+        assert isinstance(app.screen, FindingsScreen)

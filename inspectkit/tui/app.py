@@ -24,7 +24,11 @@ class InspectApp(App[None]):
     Screens reachable from anywhere are modes, each keeping its own stack (a site
     opened from the list stays open while findings are looked at). To add one
     (the plan, say): add its class to MODES and a Binding below that switches to it;
-    the command palette picks the binding up by itself.
+    the command palette picks the binding up by itself. A screen about one site
+    (the report) gets a Binding on SiteScreen instead.
+
+    Every Binding has an id (`app.findings`, `sites.sort`, `site.walkdown`...): the
+    setting `keymap`, a JSON object of id → key, moves keys without touching code.
     """
 
     TITLE = "inspectkit"
@@ -69,6 +73,7 @@ class InspectApp(App[None]):
         self._today = today
         self.store = Store.open(self.db_path)
         self.settings = Preferences(self.store)
+        self.set_keymap(self.settings.keymap)
         self.sub_title = self.db_path.name
 
     @property

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 from inspectkit.cautions import ACKNOWLEDGED_SETTING
 from inspectkit.model import Inspector, Instrument
 from inspectkit.store import Store
@@ -9,6 +11,8 @@ from inspectkit.store import Store
 #: Setting keys, shared with the walkdown and the commands.
 INSPECTOR_SETTING = "inspector_id"
 INSTRUMENT_SETTING = "instrument_id"
+#: Keys the user moved: a JSON object of binding id → key, e.g. {"app.findings": "f9"}.
+KEYMAP_SETTING = "keymap"
 
 
 class Preferences:
@@ -46,6 +50,18 @@ class Preferences:
 
     def acknowledge_cautions(self) -> None:
         self.store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+
+    @property
+    def keymap(self) -> dict[str, str]:
+        """The user's own keys by binding id; a malformed setting is ignored, not fatal."""
+        text = self.store.get_setting(KEYMAP_SETTING)
+        try:
+            keymap = json.loads(text) if text else {}
+        except json.JSONDecodeError:
+            return {}
+        if not isinstance(keymap, dict):
+            return {}
+        return {str(k): str(v) for k, v in keymap.items() if isinstance(v, str)}
 
     @property
     def inspector(self) -> Inspector | None:

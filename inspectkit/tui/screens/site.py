@@ -60,7 +60,11 @@ WALKDOWN_KINDS = (
 
 
 class SiteScreen(Screen[None]):
-    """A site as the inspector needs it before and after a visit."""
+    """A site as the inspector needs it before and after a visit.
+
+    A screen about this one site (the report, say) gets a Binding below whose
+    action pushes it with `self.site_id`; the palette lists it by itself.
+    """
 
     CSS_PATH = "site.tcss"
 
