@@ -15,11 +15,11 @@ from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
 from inspectkit.store import Store
-from inspectkit.tui.site_state import SiteState, assess_all
+from inspectkit.tui.site_state import WORDS_WORST_FIRST, SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
 
-#: How the list can be ordered: name shown in the status line → key function.
-SORTS = ("state", "name", "due", "client", "town")
+#: How the list can be ordered, in the order the sort key cycles through them.
+SORTS = ("state", "name", "due", "client", "town", "level")
 #: Columns of the list: heading, key (the key doubles as the sort name).
 COLUMNS = (
     ("State", "state"), ("Site", "name"), ("Level", "level"),
@@ -28,12 +28,10 @@ COLUMNS = (
 #: Shown too when the terminal is at least WIDE columns across.
 WIDE_COLUMNS = (("Inspection due", "kind"), ("Last visit", "last"))
 WIDE = 110
-#: States are sent to the screen in batches this big, so the list repaints a few times.
-BATCH = 250
-
-
 #: Widths of the columns whose content has a known size.
 FIXED_WIDTHS = {"state": 10, "level": 5, "due": 10, "kind": 14, "last": 10}
+#: States are sent to the screen in batches this big, so the list repaints a few times.
+BATCH = 250
 
 
 def _column_widths(width: int, wide: bool) -> dict[str, int]:
@@ -68,7 +66,8 @@ class SiteRow:
     def sort_key(self, by: str) -> tuple[object, ...]:
         due = self.state.next_due if self.state and self.state.next_due else date.max
         if by == "state":
-            rank = self.state.rank if self.state else len(SORTS) + 9
+            # Not yet judged sorts after every judged site.
+            rank = self.state.rank if self.state else len(WORDS_WORST_FIRST)
             return (rank, due, self.name.lower())
         if by == "due":
             return (due, self.name.lower())
@@ -105,7 +104,7 @@ class SitesScreen(Screen[None]):
         Binding("enter", "open_site", "Open", id="sites.open", tooltip="Open the highlighted site"),
         Binding(
             "ctrl+o", "cycle_sort", "Sort", id="sites.sort",
-            tooltip="Order by state, name, due date, client or town in turn",
+            tooltip="Order by state, name, due date, client, town or level in turn",
         ),
         Binding(
             "ctrl+r", "reverse_sort", "Reverse", id="sites.reverse",
@@ -322,8 +321,9 @@ class SitesScreen(Screen[None]):
     def on_data_table_header_selected(self, event: DataTable.HeaderSelected) -> None:
         """Clicking a column header orders by it; clicking it again reverses."""
         by = str(event.column_key.value)
-        by = {"kind": "due", "last": "due"}.get(by, by) if by not in SORTS else by
-        by = by if by in SORTS else "name"
+        by = {"kind": "due", "last": "due"}.get(by, by)
+        if by not in SORTS:
+            return
         self.descending = not self.descending if by == self.sort_by else False
         self.sort_by = by
         self.rebuild()
