@@ -82,6 +82,7 @@ class FindingsScreen(Screen[None]):
         yield Header()
         yield Static("Open findings", classes="section-title")
         yield DataTable(id="findings", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="detail")
         yield Static("", id="status", classes="hint")
         yield Footer()
 
@@ -126,6 +127,22 @@ class FindingsScreen(Screen[None]):
             return None
         key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key
         return self.items.get(str(key.value))
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        """The whole text of the highlighted finding, wrapped, since the column cuts it."""
+        item = self.items.get(str(event.row_key.value))
+        detail = self.query_one("#detail", Static)
+        if item is None:
+            detail.update("")
+            return
+        finding = item.finding
+        text = Text.assemble(
+            (f"{item.site_name} {item.tag}".strip(), "bold"),
+            f" · found {item.found_on.isoformat()}\n{finding.text}",
+        )
+        if finding.remedial_action:
+            text.append(f"\nRemedy: {finding.remedial_action}", style="italic")
+        detail.update(text)
 
     def action_open_site(self) -> None:
         item = self.highlighted()
