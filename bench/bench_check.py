@@ -19,6 +19,7 @@ import argparse
 import multiprocessing
 import random
 import resource
+import shutil
 import sys
 import tempfile
 import time
@@ -253,7 +254,14 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     folder = args.keep or Path(tempfile.mkdtemp(prefix="bench-check-"))
     folder.mkdir(parents=True, exist_ok=True)
-    path = folder / "bench.sqlite"
+    try:
+        return _measure(folder / "bench.sqlite", args)
+    finally:
+        if args.keep is None:
+            shutil.rmtree(folder, ignore_errors=True)
+
+
+def _measure(path: Path, args: argparse.Namespace) -> int:
     if not path.exists():
         start = time.perf_counter()
         child = multiprocessing.get_context("spawn").Process(
