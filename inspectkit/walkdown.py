@@ -20,6 +20,7 @@ from pydantic import ValidationError
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
+from inspectkit.engine.results import Result
 from inspectkit.model import (
     WALKING_ORDER,
     Component,
@@ -441,13 +442,17 @@ def judge_reading(
     profile = context.profile
     records = _records_for(store, context, reading)
     today = max(inspection.date, reading.taken_at.date())
-    found = [
-        r
-        for r in check_site(records, profile, today).results
-        if r.rule in READING_RULES
-        and r.component_id == reading.component_id
-        and r.reading_id in (None, reading.id)
-    ]
+    found = _about(check_site(records, profile, today).results, reading)
+    if any(r.reading_id is None for r in found):
+        # A result on the series as a whole (a counter's rise, a trend) belongs to
+        # this reading only if it is not there without it.
+        before = records.model_copy(
+            update={"readings": [r for r in records.readings if r.id != reading.id]}
+        )
+        known = {
+            (r.rule, r.message) for r in _about(check_site(before, profile, today).results, reading)
+        }
+        found = [r for r in found if r.reading_id is not None or (r.rule, r.message) not in known]
     severity = found[0].severity if found else Severity.OK
     limit = (
         profile.limit_for(reading.quantity, electrode_count(records, today))
@@ -464,6 +469,17 @@ def judge_reading(
         previous=previous,
         comparison=_comparison(reading, previous, records),
     )
+
+
+def _about(results: Iterable[Result], reading: Reading) -> list[Result]:
+    """The results of the reading rules on this reading or on its series, worst first."""
+    return [
+        r
+        for r in results
+        if r.rule in READING_RULES
+        and r.component_id == reading.component_id
+        and r.reading_id in (None, reading.id)
+    ]
 
 
 def _records_for(store: Store, context: SiteContext, reading: Reading) -> SiteRecords:

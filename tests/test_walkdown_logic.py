@@ -314,3 +314,30 @@ def test_per_electrode_limit_scales_with_the_number_of_electrodes(store: Store) 
     # The whole system stays at ≤ 10 Ω (BS 6651, same clause).
     combined = record_reading(store, visit.id, site.tag("TJ-01").id, "earth_combined", "12")
     assert combined.verdict == "FAIL 12 Ω > 10 Ω"
+
+
+def test_a_counter_speaks_of_its_own_rise_not_of_an_older_one(store: Store) -> None:
+    site = build_walk_site(store)
+    counter = site.tag("SC-01")
+    between = Inspection(site_id=site.site.id, kind="visual", date=date(2025, 9, 1), finished=True)
+    store.save_all(
+        [
+            between,
+            Reading(
+                inspection_id=between.id,
+                component_id=counter.id,
+                quantity="strike_count",
+                value=9,
+                method="counter_read",
+                taken_at=datetime(2025, 9, 1, 9, tzinfo=UTC),
+            ),
+        ]
+    )  # 7 → 9 in September: a post-strike visit fell due then
+    visit = start_inspection(store, site.site.id, "post_strike", None, TODAY)
+    same = record_reading(store, visit.id, counter.id, "strike_count", "9")
+    assert same.severity is Severity.OK and same.messages == ()
+    assert same.comparison == "+0 on 2025-09-01"
+    risen = record_reading(store, visit.id, counter.id, "strike_count", "12")
+    assert risen.severity is Severity.WATCH
+    assert risen.verdict == "WATCH 12"
+    assert len(risen.messages) == 1 and "from 9 to 12" in risen.messages[0]
