@@ -4,7 +4,8 @@ Builds its own database of 2,000 invented sites (each with a few components and 
 visit), then in one process, alternately and several times, starts
 
 - the floor: a bare Textual app whose only widget is a DataTable filled from one
-  SQL query with the same columns for the same 2,000 sites, and
+  SQL query with the same columns (as many as the list shows at that width) for
+  the same 2,000 sites, and
 - the real thing: `make_app(db)` as `inspectkit` starts it (store opened, sites
   screen composed, list painted, site states left to the background worker),
 
@@ -46,6 +47,7 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.tui.app import make_app
+from inspectkit.tui.screens.sites import COLUMNS, WIDE, WIDE_COLUMNS
 
 TODAY = date(2026, 6, 1)
 SIZE = (160, 48)
@@ -87,7 +89,7 @@ def build(path: Path, sites: int) -> None:
 
 
 class BareApp(App[None]):
-    """The floor: one DataTable of the same sites from one query, nothing else."""
+    """The floor: one DataTable of the same sites and columns from one query, nothing else."""
 
     def __init__(self, path: Path) -> None:
         super().__init__()
@@ -104,8 +106,15 @@ class BareApp(App[None]):
         ).fetchall()
         conn.close()
         table = self.query_one(DataTable)
-        table.add_columns("State", "Site", "Level", "Client", "Town", "Next due")
-        table.add_rows([("…", *row) for row in rows])
+        # The same headings the sites list shows at this width, so both show as much.
+        wide = self.size.width >= WIDE
+        table.add_columns(*(label for label, _ in COLUMNS + (WIDE_COLUMNS if wide else ())))
+        table.add_rows(
+            [
+                ("…", name, level, client, town, "…", *(("…", last or "never") if wide else ()))
+                for name, level, client, town, last in rows
+            ]
+        )
 
 
 async def launch(
