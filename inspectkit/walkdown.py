@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import re
 from collections.abc import Iterable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
 from pathlib import Path
 from typing import Any
@@ -391,15 +391,47 @@ def _validated_enum(enum: type[Any], value: Any, name: str) -> Any:
 class SiteContext:
     """What judging a reading needs about its site, read once for a whole walk.
 
+    Earlier visits do not change while the site is walked, so their readings are read
+    once per component and quantity, when first needed; the visit being walked is
+    always read afresh. The screen reads a new context when it comes back into view.
+
     Attributes:
         site: The site.
         profile: The rule set it is held to.
         components: All its components, retired ones too (history refers to them).
+        visits: The site's inspections when the context was read.
     """
 
     site: Site
     profile: Profile
     components: tuple[Component, ...]
+    visits: tuple[Inspection, ...] = ()
+    _earlier: dict[tuple[str, Quantity, str], list[Reading]] = field(
+        default_factory=dict, repr=False, compare=False
+    )
+    _instruments: dict[str, Instrument | None] = field(
+        default_factory=dict, repr=False, compare=False
+    )
+
+    def earlier_readings(
+        self, store: Store, component_id: str, quantity: Quantity, inspection_id: str
+    ) -> list[Reading]:
+        """The component's readings of a quantity from the site's other visits."""
+        key = (component_id, quantity, inspection_id)
+        if key not in self._earlier:
+            self._earlier[key] = store.select(
+                Reading,
+                "component_id = ? AND quantity = ? AND inspection_id != ? AND inspection_id IN "
+                "(SELECT id FROM inspection WHERE site_id = ?)",
+                [component_id, quantity.value, inspection_id, self.site.id],
+                order_by="taken_at",
+            )
+        return self._earlier[key]
+
+    def instrument(self, store: Store, instrument_id: str) -> Instrument | None:
+        if instrument_id not in self._instruments:
+            self._instruments[instrument_id] = store.get(Instrument, instrument_id)
+        return self._instruments[instrument_id]
 
     def part(self, component_id: str) -> Component:
         """One of the site's components.
@@ -427,7 +459,8 @@ def site_context(store: Store, site_id: str) -> SiteContext:
     except ProfileError as exc:
         raise WalkdownError("profile", str(exc)) from None
     components = tuple(store.select(Component, "site_id = ?", [site_id]))
-    return SiteContext(site, profile, components)
+    visits = tuple(store.select(Inspection, "site_id = ?", [site_id], order_by="date, created_at"))
+    return SiteContext(site, profile, components, visits)
 
 
 #: The engine's rules (by their result's `rule`) that speak about one reading or its
@@ -440,7 +473,7 @@ def judge_reading(
 ) -> ReadingOutcome:
     """Pass or fail against the site's profile, through the engine's rules, and the last visit."""
     profile = context.profile
-    records = _records_for(store, context, reading)
+    records = _records_for(store, context, inspection, reading)
     today = max(inspection.date, reading.taken_at.date())
     found = _about(check_site(records, profile, today).results, reading)
     if any(r.reading_id is None for r in found):
@@ -482,23 +515,21 @@ def _about(results: Iterable[Result], reading: Reading) -> list[Result]:
     ]
 
 
-def _records_for(store: Store, context: SiteContext, reading: Reading) -> SiteRecords:
+def _records_for(
+    store: Store, context: SiteContext, inspection: Inspection, reading: Reading
+) -> SiteRecords:
     """What the rules need to judge one reading: the site, the visits and that one series."""
-    site = context.site
-    inspections = store.select(Inspection, "site_id = ?", [site.id], order_by="date, created_at")
-    ids = [i.id for i in inspections]
-    readings = store.select(
-        Reading,
-        f"component_id = ? AND quantity = ? AND inspection_id IN ({','.join('?' * len(ids))})",
-        [reading.component_id, reading.quantity.value, *ids],
-        order_by="taken_at",
-    )
-    instrument_ids = sorted({r.instrument_id for r in readings if r.instrument_id})
+    inspections = [v for v in context.visits if v.id != inspection.id] + [inspection]
+    inspections.sort(key=lambda v: (v.date, v.created_at))
+    earlier = context.earlier_readings(store, reading.component_id, reading.quantity, inspection.id)
+    readings = sorted([*earlier, reading], key=lambda r: r.taken_at)
     instruments = {
-        i.id: i for i in (store.get(Instrument, iid) for iid in instrument_ids) if i is not None
+        i.id: i
+        for i in (context.instrument(store, r.instrument_id) for r in readings if r.instrument_id)
+        if i is not None
     }
     return SiteRecords(
-        site=site,
+        site=context.site,
         # The component, and the electrodes: some profiles scale a limit by their number.
         components=[
             c
