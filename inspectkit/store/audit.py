@@ -21,6 +21,8 @@ from inspectkit.store.rows import canonical
 GENESIS = "0" * 64
 
 _HASHED = ("id", "at", "who", "table_name", "row_id", "action", "before", "after", "prev_hash")
+#: Made once: `json.dumps` with options builds a new encoder on every call.
+_ENCODER = json.JSONEncoder(ensure_ascii=False, separators=(",", ":"))
 
 
 @dataclass(frozen=True)
@@ -34,7 +36,7 @@ class AuditProblem:
 
 def entry_hash(entry: dict[str, Any]) -> str:
     """The hash an audit row must carry: over its content, including the previous hash."""
-    content = json.dumps([entry[k] for k in _HASHED], ensure_ascii=False, separators=(",", ":"))
+    content = _ENCODER.encode([entry[k] for k in _HASHED])
     return hashlib.sha256(content.encode("utf-8")).hexdigest()
 
 

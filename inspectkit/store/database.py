@@ -6,6 +6,7 @@ import getpass
 import sqlite3
 from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
+from itertools import groupby
 from pathlib import Path
 from typing import Any, TypeVar
 
@@ -240,6 +241,7 @@ class Store:
         }
         self._refuse_frozen(records, existing)
         changes = []
+        inserts: list[tuple[str, dict[str, Any]]] = []
         for record in records:
             before = existing[record.table].get(record.id)
             after = to_row(record)
@@ -247,24 +249,28 @@ class Store:
                 after = {**after, "created_at": before["created_at"]}
                 if after == before:
                     continue
+                self._insert_all(inserts)  # first the new rows this one may name
                 self.db[record.table].update(record.id, after)
                 changes.append((record.table, record.id, "update", before, after))
             else:
-                self._insert(record.table, after)
+                inserts.append((record.table, after))
                 changes.append((record.table, record.id, "insert", None, after))
             existing[record.table][record.id] = after
+        self._insert_all(inserts)
         self._log(changes, at)
 
-    def _insert(self, table: str, row: dict[str, Any]) -> None:
-        """One new row by plain SQL, inside the caller's transaction.
+    def _insert_all(self, rows: list[tuple[str, dict[str, Any]]]) -> None:
+        """Insert (table, row) pairs in order, inside the caller's transaction; empty `rows`.
 
-        sqlite-utils' `insert` looks the table up again on every call; a bundle
-        import adds thousands of rows at once.
+        One statement per run of rows of a table: sqlite-utils' `insert` looks the
+        table up again on every call, and a bundle import adds thousands of rows at once.
         """
-        names = ",".join(f"[{name}]" for name in row)
-        marks = ",".join("?" * len(row))
-        sql = f"INSERT INTO [{table}] ({names}) VALUES ({marks})"
-        self.db.conn.execute(sql, list(row.values()))
+        for (table, names), run in groupby(rows, key=lambda item: (item[0], tuple(item[1]))):
+            columns = ",".join(f"[{name}]" for name in names)
+            marks = ",".join("?" * len(names))
+            sql = f"INSERT INTO [{table}] ({columns}) VALUES ({marks})"
+            self.db.conn.executemany(sql, [tuple(row.values()) for _, row in run])
+        rows.clear()
 
     def _log(self, changes: list[Any], at: str) -> None:
         if changes:

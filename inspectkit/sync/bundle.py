@@ -163,9 +163,12 @@ def export_bundle(
         raise BundleError(f"no site with id {site_id}")
     history: dict[str, dict[str, list[str]]] = {}
     for table, table_rows in rows.items():
+        # Most records were only ever inserted: they have no earlier versions to hash.
         known = known_versions(store, table, [r["id"] for r in table_rows])
         earlier = {
-            r["id"]: sorted(known.get(r["id"], set()) - {version_hash(r)}) for r in table_rows
+            r["id"]: sorted(known[r["id"]] - {version_hash(r)})
+            for r in table_rows
+            if r["id"] in known
         }
         history[table] = {row_id: hashes for row_id, hashes in earlier.items() if hashes}
     shas = sorted({r["sha256"] for r in rows["photo"]})
@@ -200,7 +203,8 @@ def export_bundle(
             archive.writestr(
                 MANIFEST, json.dumps(manifest, indent=2, ensure_ascii=False), zipfile.ZIP_DEFLATED
             )
-            archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED)
+            # The fastest level: it packs record JSON nearly as small as the default does.
+            archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED, compresslevel=1)
             for sha in shas:
                 _add_file(archive, photo_path(store, sha), f"{PHOTO_PREFIX}{sha}")
         os.replace(temp, target)
@@ -270,7 +274,11 @@ def _photo(
     name = info.filename
     sha = name.removeprefix(PHOTO_PREFIX)
     digest = hashlib.sha256()
-    target = staging / sha if staging is not None else None
+    target = None
+    if staging is not None:
+        # Staged in the photo folder's own layout, so that whole folders move into place.
+        target = staging / sha[:2] / sha
+        target.parent.mkdir(parents=True, exist_ok=True)
     with archive.open(info) as source, open(target or os.devnull, "wb") as out:
         for block in read_capped(source, name, limit_for(name, limits)):
             digest.update(block)
@@ -400,13 +408,42 @@ def _check_row(model: type[Record], number: int, row: Any) -> Record:
 
 
 def place_photos(store: Store, photos: dict[str, Path | None]) -> int:
-    """Move checked, staged photos into the photo folder; return how many were new."""
+    """Move checked, staged photos into the photo folder; return how many were new.
+
+    Creating files and folders is the slow part of an import, so a staged folder
+    the photo folder lacks is moved in whole (the whole staging tree when there is
+    no photo folder yet) rather than made again and filled file by file.
+    """
+    staged = {sha: path for sha, path in photos.items() if path is not None}
+    if not staged:
+        return 0
+    roots = {path.parent.parent for path in staged.values()}
+    if len(roots) == 1 and _move_folder(roots.pop(), store.photos_dir):
+        return len(staged)
+    by_folder: dict[Path, list[str]] = {}
+    for sha, path in staged.items():
+        by_folder.setdefault(path.parent, []).append(sha)
     added = 0
-    for sha, staged in photos.items():
-        target = photo_path(store, sha)
-        if staged is None or target.exists():
+    for folder, shas in by_folder.items():
+        if _move_folder(folder, photo_path(store, shas[0]).parent):
+            added += len(shas)
             continue
-        target.parent.mkdir(parents=True, exist_ok=True)
-        shutil.move(staged, target)
-        added += 1
+        for sha in shas:
+            target = photo_path(store, sha)
+            if not target.exists():
+                target.parent.mkdir(parents=True, exist_ok=True)
+                shutil.move(staged[sha], target)
+                added += 1
     return added
+
+
+def _move_folder(source: Path, target: Path) -> bool:
+    """Rename a staged folder to `target` if nothing is there yet; False if something is."""
+    if target.exists():
+        return False
+    target.parent.mkdir(parents=True, exist_ok=True)
+    try:
+        os.rename(source, target)
+    except OSError:  # made meanwhile by another process, or not on the same disk
+        return False
+    return True

@@ -137,7 +137,9 @@ def import_bundle(
     """
     staging_root = store.path.parent if store.path is not None else None
     with tempfile.TemporaryDirectory(dir=staging_root, prefix=".bundle-") as staging:
-        bundle = read_bundle(path, limits, None if dry_run else Path(staging))
+        # A folder of its own: the staging folder itself is private (mode 0700), and
+        # its photo tree may become the photo folder.
+        bundle = read_bundle(path, limits, None if dry_run else Path(staging) / "photos")
         plan = _plan(store, bundle, prefer)
         report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
         report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
