@@ -64,3 +64,18 @@ async def test_resolve_with_the_repair_visit(tui_db: Path) -> None:
         finding = app.store.select(Finding)[0]
         assert finding.resolved_by == repair.id
         assert app.screen.query_one("#findings", DataTable).row_count == 0
+
+
+async def test_enter_opens_the_findings_site(tui_db: Path) -> None:
+    from inspectkit.tui.screens.site import SiteScreen
+
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        await pilot.press("f3")
+        await pilot.pause()
+        assert "clamp corroded" in str(app.screen.query_one("#detail").render())
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, SiteScreen)
+        assert app.store.get(Site, app.screen.site_id).name == "Mill Lane School"

@@ -174,3 +174,19 @@ async def test_clicking_a_heading_sorts_by_it(tui_db: Path) -> None:
         await pilot.pause()
         assert app.screen.sort_by == "town"
         assert column(table, "town") == ["Eastvale", "Porthaven", "Porthaven"]
+
+
+async def test_wide_terminal_shows_more_columns(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        keys = [str(c.key.value) for c in app.screen.query_one("#sites", DataTable).ordered_columns]
+        assert keys == ["state", "name", "level", "client", "town", "due"]
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(160, 48)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        assert [str(c.key.value) for c in table.ordered_columns][-2:] == ["kind", "last"]
+        assert column(table, "last")[0] == "2019-03-04"
+        # The whole row fits across, so nothing scrolls sideways.
+        assert sum(c.get_render_width(table) for c in table.ordered_columns) <= 160
