@@ -11,6 +11,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.message import Message
 from textual.screen import Screen
+from textual.timer import Timer
 from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
@@ -30,6 +31,10 @@ WIDE_COLUMNS = (("Inspection due", "kind"), ("Last visit", "last"))
 WIDE = 110
 #: Widths of the columns whose content has a known size.
 FIXED_WIDTHS = {"state": 10, "level": 5, "due": 10, "kind": 14, "last": 10}
+#: A list longer than this is filtered once typing pauses for TYPING_PAUSE seconds,
+#: since refilling it takes longer than the gap between two keys.
+LONG_LIST = 300
+TYPING_PAUSE = 0.15
 #: States are sent to the screen in batches this big, so the list repaints a few times.
 BATCH = 250
 
@@ -143,6 +148,7 @@ class SitesScreen(Screen[None]):
         self.sort_by = "state"
         self.descending = False
         self.states_ready = False
+        self._filter_timer: Timer | None = None
 
     @property
     def table(self) -> DataTable[object]:
@@ -293,11 +299,25 @@ class SitesScreen(Screen[None]):
     # ------------------------------------------------------------------ input
 
     def on_input_changed(self, event: Input.Changed) -> None:
-        if event.input.id == "filter":
-            self.rebuild()
+        """Filter at once on a short list; on a long one, once typing pauses."""
+        if event.input.id != "filter":
+            return
+        if self._filter_timer is not None:
+            self._filter_timer.stop()
+        if len(self.rows) <= LONG_LIST:
+            self._apply_filter()
+        else:
+            self._filter_timer = self.set_timer(TYPING_PAUSE, self._apply_filter)
+
+    def _apply_filter(self) -> None:
+        self._filter_timer = None
+        self.rebuild()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if event.input.id == "filter":
+            if self._filter_timer is not None:
+                self._filter_timer.stop()
+                self._apply_filter()
             self.action_open_site()
 
     def on_key(self, event: events.Key) -> None:
