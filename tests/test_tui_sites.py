@@ -6,6 +6,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
 from textual.widgets import DataTable, Input
 from tui_factories import ANCHOR, build_tui_db, column, settled, tui_db  # noqa: F401
 
@@ -190,3 +191,19 @@ async def test_wide_terminal_shows_more_columns(tui_db: Path) -> None:
         assert column(table, "last")[0] == "2019-03-04"
         # The whole row fits across, so nothing scrolls sideways.
         assert sum(c.get_render_width(table) for c in table.ordered_columns) <= 160
+
+
+async def test_long_list_filters_once_typing_pauses(
+    tui_db: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from inspectkit.tui.screens import sites
+
+    monkeypatch.setattr(sites, "LONG_LIST", 1)
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        await pilot.press(*"porth")
+        assert table.row_count == 3
+        await pilot.pause(sites.TYPING_PAUSE * 3)
+        assert sorted(column(table, "name")) == ["Harbour Depot", "Orchard Tower"]
