@@ -33,7 +33,8 @@ async def test_pick_inspector_and_instrument(tui_db: Path) -> None:
         screen.query_one("#inspector", Select).value = inspector.id
         screen.query_one("#instrument", Select).value = instrument.id
         await pilot.pause()
-        assert str(tui_db) in str(screen.query_one("#data-folder", Static).render())
+        folder = str(screen.query_one("#data-folder", Static).render())
+        assert str(tui_db.parent) in folder and tui_db.name in folder
     with Store.open(tui_db) as store:
         assert store.get_setting(INSPECTOR_SETTING) == inspector.id
         assert store.get_setting(INSTRUMENT_SETTING) == instrument.id

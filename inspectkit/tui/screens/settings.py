@@ -72,7 +72,9 @@ class SettingsScreen(Screen[None]):
         self.profiles_table.add_column("Profile", key="profile")
         app = self.app
         photos = app.store.photos_dir
-        self.query_one("#data-folder", Static).update(f"{app.db_path}\nphotos: {photos}")
+        self.query_one("#data-folder", Static).update(
+            f"{app.db_path.parent}\ndatabase {app.db_path.name} · photos {photos.name}/"
+        )
 
     def on_screen_resume(self) -> None:
         self.reload()
