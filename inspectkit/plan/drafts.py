@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
-from inspectkit.model import Inspection, InspectionKind, InspectionState
+from inspectkit.model import Inspection, InspectionKind
 from inspectkit.plan.planner import RoundPlan
 from inspectkit.store import Store
+from inspectkit.store.queries import draft_keys
 
 #: The inspection a visit that only re-checks defects is recorded as: the
 #: inspector looks at the repaired parts, which is a visual inspection (our default).
@@ -22,13 +23,7 @@ def create_drafts(store: Store, plan: RoundPlan) -> list[Inspection]:
     Returns:
         the drafts made now.
     """
-    existing = {
-        (site_id, kind, day)
-        for site_id, kind, day in store.db.execute(
-            "SELECT site_id, kind, date FROM inspection WHERE state = ?",
-            [InspectionState.DRAFT.value],
-        )
-    }
+    existing = draft_keys(store)
     drafts = []
     for day, visit in plan.visits:
         c = visit.candidate

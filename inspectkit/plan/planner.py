@@ -23,7 +23,7 @@ from inspectkit.plan.settings import PlanSettings
 from inspectkit.plan.timing import component_counts, onsite_minutes, travel_minutes
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import Store
-from inspectkit.store.queries import load_site_records
+from inspectkit.store.queries import load_site_records, site_ids
 
 #: Store setting holding the depot the rounds start from, as "LAT,LON".
 DEPOT_SETTING = "plan.depot"
@@ -252,7 +252,7 @@ def load_candidates(
     profiles: dict[str, Profile | str] = {}
     judged = []
     skipped = []
-    for (site_id,) in store.db.execute("SELECT id FROM site ORDER BY name COLLATE NOCASE"):
+    for site_id in site_ids(store):
         records = load_site_records(store, site_id)
         name = records.site.profile
         if name not in profiles:

@@ -247,3 +247,18 @@ def _stored_time(text: str) -> datetime:
     if value.tzinfo is UTC:
         return value
     return value.replace(tzinfo=UTC) if value.tzinfo is None else value.astimezone(UTC)
+
+
+def draft_keys(store: Store) -> set[tuple[str, str, str]]:
+    """(site id, kind, ISO date) of every draft inspection, to avoid making one twice."""
+    return {
+        (site_id, kind, day)
+        for site_id, kind, day in store.db.execute(
+            "SELECT site_id, kind, date FROM inspection WHERE state = 'draft'"
+        )
+    }
+
+
+def site_ids(store: Store) -> list[str]:
+    """Every site's id, in name order."""
+    return [row[0] for row in store.db.execute("SELECT id FROM site ORDER BY name COLLATE NOCASE")]
