@@ -4,7 +4,7 @@ Compared in the same process against the floor: copying the same photo files wit
 shutil and inserting the same rows into a fresh database with bare sqlite3. Prints
 both times, the ratio (target ≤ 2) and peak memory.
 
-Run: /work/venv/bin/python bench/bench_sync.py [--photos 200] [--years 20]
+Run: /work/venv/bin/python bench/bench_sync.py [--photos 200] [--years 20] [--runs 7] [--profile]
 """
 
 from __future__ import annotations
@@ -139,18 +139,44 @@ def floor(source: Store, work: Path) -> None:
     conn.close()
 
 
-def best_of(runs: int, fn, root: Path) -> tuple[float, dict[str, float]]:  # noqa: ANN001
-    """The fastest total of `runs` runs of fn(folder), and the fastest of each phase it reports."""
-    totals, phases = [], {}
-    for n in range(runs):
-        work = Path(tempfile.mkdtemp(dir=root, prefix=f"run-{n}-"))
-        started = time.perf_counter()
-        parts = fn(work) or {}
-        totals.append(time.perf_counter() - started)
-        for name, seconds in parts.items():
-            phases[name] = min(seconds, phases.get(name, seconds))
-        shutil.rmtree(work)
-    return min(totals), phases
+def timed(fn, root: Path) -> tuple[float, float, dict[str, float]]:  # noqa: ANN001
+    """Wall and CPU seconds of one run of fn(fresh folder), and the phases it reports."""
+    work = Path(tempfile.mkdtemp(dir=root, prefix="run-"))
+    wall, cpu = time.perf_counter(), time.process_time()
+    parts = fn(work) or {}
+    wall, cpu = time.perf_counter() - wall, time.process_time() - cpu
+    shutil.rmtree(work)
+    return wall, cpu, parts
+
+
+def traced_peak(fn, root: Path) -> int:  # noqa: ANN001
+    """Peak bytes of Python memory one run of fn(fresh folder) holds at once."""
+    work = Path(tempfile.mkdtemp(dir=root, prefix="mem-"))
+    tracemalloc.start()
+    fn(work)
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    shutil.rmtree(work)
+    return peak
+
+
+def check_copy(source: Store, site_id: str, root: Path) -> tuple[bool, bool]:
+    """Whether an export+import gave the same rows and intact photo files."""
+    work = Path(tempfile.mkdtemp(dir=root, prefix="check-"))
+    ours(source, site_id, work)
+    with Store.open(work / "target.sqlite") as target:
+        same = all(
+            sorted(target.db.execute(f"SELECT * FROM [{t}]").fetchall())
+            == sorted(source.db.execute(f"SELECT * FROM [{t}]").fetchall())
+            for t in TABLES
+        )
+        files_ok = all(file_sha256(p) == p.name for p in target.photos_dir.rglob("*")
+                       if p.is_file())  # fmt: skip
+        same_files = {p.name for p in target.photos_dir.rglob("*") if p.is_file()} == {
+            p.name for p in source.photos_dir.rglob("*") if p.is_file()
+        }
+    shutil.rmtree(work)
+    return same, files_ok and same_files
 
 
 def main() -> None:
@@ -158,7 +184,8 @@ def main() -> None:
     parser.add_argument("--years", type=int, default=20)
     parser.add_argument("--photos", type=int, default=200)
     parser.add_argument("--joints", type=int, default=30)
-    parser.add_argument("--runs", type=int, default=5)
+    parser.add_argument("--runs", type=int, default=7)
+    parser.add_argument("--profile", action="store_true", help="print the real path's profile")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory(prefix="bench-sync-") as tmp:
         root = Path(tmp)
@@ -169,38 +196,43 @@ def main() -> None:
         kb = f"{min(sizes) // 1024}-{max(sizes) // 1024} KB, {sum(sizes) / 1e6:.1f} MB"
         print(f"data: {counts['reading']} readings, {counts['inspection']} inspections, "
               f"{counts['finding']} findings, {len(sizes)} photos ({kb})")  # fmt: skip
-        # Interleaved, so that a busy machine slows both alike.
-        floor_s, ours_s, phases = float("inf"), float("inf"), {}
+        run_floor = lambda w: floor(source, w)  # noqa: E731
+        run_ours = lambda w: ours(source, site_id, w)  # noqa: E731
+        # One run of each first, untimed, so both start with warm caches; then
+        # interleaved, so that a busy machine slows both alike; the best run of each.
+        same, files_ok = check_copy(source, site_id, root)
+        timed(run_floor, root)
+        best = {"floor": (float("inf"),) * 2, "ours": (float("inf"),) * 2}
+        phases: dict[str, float] = {}
         for _ in range(args.runs):
-            floor_s = min(floor_s, best_of(1, lambda w: floor(source, w), root)[0])
-            total, parts = best_of(1, lambda w: ours(source, site_id, w), root)
-            ours_s = min(ours_s, total)
-            phases = {k: min(v, phases.get(k, v)) for k, v in parts.items()}
-        tracemalloc.start()
-        work = Path(tempfile.mkdtemp(dir=root, prefix="mem-"))
-        ours(source, site_id, work)
-        _, peak = tracemalloc.get_traced_memory()
-        tracemalloc.stop()
-        with Store.open(work / "target.sqlite") as target:
-            same = all(
-                sorted(target.db.execute(f"SELECT * FROM [{t}]").fetchall())
-                == sorted(source.db.execute(f"SELECT * FROM [{t}]").fetchall())
-                for t in TABLES
-            )
-            files_ok = all(file_sha256(p) == p.name for p in target.photos_dir.rglob("*")
-                           if p.is_file())  # fmt: skip
+            for name, fn in (("floor", run_floor), ("ours", run_ours)):
+                wall, cpu, parts = timed(fn, root)
+                best[name] = (min(best[name][0], wall), min(best[name][1], cpu))
+                phases = {k: min(v, phases.get(k, v)) for k, v in parts.items()}
+        peaks = {"floor": traced_peak(run_floor, root), "ours": traced_peak(run_ours, root)}
+        if args.profile:
+            import cProfile
+            import pstats
+
+            profiler = cProfile.Profile()
+            profiler.runcall(timed, run_ours, root)
+            pstats.Stats(profiler).sort_stats("cumulative").print_stats(30)
         source.close()
-    print(f"floor (shutil.copy + bare INSERT): {floor_s * 1000:8.1f} ms")
+    (floor_s, floor_cpu), (ours_s, ours_cpu) = best["floor"], best["ours"]
+    print(f"floor (shutil.copy + bare INSERT): {floor_s * 1000:8.1f} ms "
+          f"(CPU {floor_cpu * 1000:.1f} ms)")  # fmt: skip
     print(
         f"export + import (checked, merged, audited): {ours_s * 1000:8.1f} ms "
-        f"(export {phases['export'] * 1000:.1f} ms, import {phases['import'] * 1000:.1f} ms)"
+        f"(CPU {ours_cpu * 1000:.1f} ms; export {phases['export'] * 1000:.1f} ms, "
+        f"import {phases['import'] * 1000:.1f} ms)"
     )
-    print(f"ratio: {ours_s / floor_s:.2f} (target <= 2)")
+    print(f"ratio: {ours_s / floor_s:.2f} (target <= 2); CPU ratio {ours_cpu / floor_cpu:.2f}")
     print(
-        f"peak traced Python memory in export+import: {peak / 1e6:.1f} MB; "
+        f"peak traced Python memory: export+import {peaks['ours'] / 1e6:.1f} MB, "
+        f"floor {peaks['floor'] / 1e6:.1f} MB; "
         f"process peak RSS: {resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024:.0f} MB"
     )
-    print(f"target identical to source: rows {same}, photo hashes {files_ok}")
+    print(f"target identical to source: rows {same}, photo files {files_ok}")
 
 
 if __name__ == "__main__":

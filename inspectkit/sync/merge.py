@@ -295,10 +295,12 @@ def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
     """Write the plan; records the store refuses as frozen are kept ours, one by one."""
     writes = _ordered(plan.writes)
     records = [plan.records[table][row["id"]] for table, row, _ in writes]
+    # Each row was checked to be its record's stored form: the store need not make it again.
+    rows = [row for _, row, _ in writes]
     refused: set[str] = set()
     try:
         with store.transaction():
-            store.save_all(records, touch=False)
+            store.save_all(records, touch=False, rows=rows)
     except FrozenRecordError:
         # One by one, in an order that checks each record against the signatures the
         # database held before the import, as the batch did: new records first, then
@@ -308,7 +310,7 @@ def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
             record = plan.records[table][row["id"]]
             try:
                 with store.transaction():
-                    store.save_all([record], touch=False)
+                    store.save_all([record], touch=False, rows=[row])
             except FrozenRecordError as exc:
                 refused.add(record.id)
                 report.kept_signed.append(str(exc))
