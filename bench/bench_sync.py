@@ -208,7 +208,8 @@ def main() -> None:
             for name, fn in (("floor", run_floor), ("ours", run_ours)):
                 wall, cpu, parts = timed(fn, root)
                 best[name] = (min(best[name][0], wall), min(best[name][1], cpu))
-                phases = {k: min(v, phases.get(k, v)) for k, v in parts.items()}
+                for phase, seconds in parts.items():
+                    phases[phase] = min(seconds, phases.get(phase, seconds))
         peaks = {"floor": traced_peak(run_floor, root), "ours": traced_peak(run_ours, root)}
         if args.profile:
             import cProfile
