@@ -262,3 +262,62 @@ def draft_keys(store: Store) -> set[tuple[str, str, str]]:
 def site_ids(store: Store) -> list[str]:
     """Every site's id, in name order."""
     return [row[0] for row in store.db.execute("SELECT id FROM site ORDER BY name COLLATE NOCASE")]
+
+
+def last_write(store: Store) -> int | None:
+    """A number that changes whenever anything is written: the newest audit row's."""
+    return store.db.execute("SELECT MAX(rowid) FROM audit").fetchone()[0]
+
+
+def site_listing(store: Store) -> list[tuple[str, str, str, str, str, date | None]]:
+    """(id, name, level, client, town, last visit) of every site, in one lean query.
+
+    A list of thousands of sites is the first thing on screen, so this skips
+    building full records.
+    """
+    cursor = store.db.execute(
+        "SELECT s.id, s.name, s.protection_level, s.client, s.town, MAX(i.date) FROM site s"
+        " LEFT JOIN inspection i ON i.site_id = s.id GROUP BY s.id"
+    )
+    return [
+        (site_id, name, level, client, town, date.fromisoformat(last) if last else None)
+        for site_id, name, level, client, town, last in cursor
+    ]
+
+
+@dataclass(frozen=True)
+class OpenFinding:
+    """A finding not yet resolved, with where and when it was found."""
+
+    finding: Finding
+    site_id: str
+    site_name: str
+    found_on: date
+    tag: str
+
+
+def open_findings(store: Store) -> list[OpenFinding]:
+    """Every unresolved finding that is not graded sound, soonest due first."""
+    rows = store.db.execute(
+        "SELECT f.id, s.id, s.name, i.date, COALESCE(c.tag, '') FROM finding f"
+        " JOIN inspection i ON i.id = f.inspection_id JOIN site s ON s.id = i.site_id"
+        " LEFT JOIN component c ON c.id = f.component_id"
+        " WHERE f.resolved_by IS NULL AND f.grade != 'sound'"
+    ).fetchall()
+    found = {f.id: f for f in store.select(Finding, "resolved_by IS NULL AND grade != 'sound'")}
+    items = [
+        OpenFinding(found[fid], site_id, name, date.fromisoformat(day), tag)
+        for fid, site_id, name, day, tag in rows
+        if fid in found
+    ]
+    return sorted(items, key=lambda o: (o.finding.due_by or date.max, o.found_on, o.site_name))
+
+
+def later_inspections(store: Store, item: OpenFinding) -> list[Inspection]:
+    """The site's visits since the finding, any of which may have put it right."""
+    return store.select(
+        Inspection,
+        "site_id = ? AND date >= ? AND id != ?",
+        [item.site_id, item.found_on.isoformat(), item.finding.inspection_id],
+        order_by="date DESC",
+    )

@@ -2,56 +2,14 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from datetime import date
-
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
-from inspectkit.model import Finding, Inspection
-from inspectkit.store import Store
+from inspectkit.store.queries import OpenFinding, later_inspections, open_findings
 from inspectkit.tui.dialogs.choice import ChoiceDialog
-
-
-@dataclass(frozen=True)
-class OpenFinding:
-    """A finding not yet resolved, with where and when it was found."""
-
-    finding: Finding
-    site_id: str
-    site_name: str
-    found_on: date
-    tag: str
-
-
-def open_findings(store: Store) -> list[OpenFinding]:
-    """Every unresolved finding that is not graded sound, soonest due first."""
-    rows = store.db.execute(
-        "SELECT f.id, s.id, s.name, i.date, COALESCE(c.tag, '') FROM finding f"
-        " JOIN inspection i ON i.id = f.inspection_id JOIN site s ON s.id = i.site_id"
-        " LEFT JOIN component c ON c.id = f.component_id"
-        " WHERE f.resolved_by IS NULL AND f.grade != 'sound'"
-    ).fetchall()
-    found = {f.id: f for f in store.select(Finding, "resolved_by IS NULL AND grade != 'sound'")}
-    items = [
-        OpenFinding(found[fid], site_id, name, date.fromisoformat(day), tag)
-        for fid, site_id, name, day, tag in rows
-        if fid in found
-    ]
-    return sorted(items, key=lambda o: (o.finding.due_by or date.max, o.found_on, o.site_name))
-
-
-def later_inspections(store: Store, item: OpenFinding) -> list[Inspection]:
-    """The site's visits since the finding, any of which may have put it right."""
-    return store.select(
-        Inspection,
-        "site_id = ? AND date >= ? AND id != ?",
-        [item.site_id, item.found_on.isoformat(), item.finding.inspection_id],
-        order_by="date DESC",
-    )
 
 
 class FindingsScreen(Screen[None]):

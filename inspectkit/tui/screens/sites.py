@@ -16,6 +16,7 @@ from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
 from inspectkit.store import Store
+from inspectkit.store.queries import last_write, site_listing
 from inspectkit.tui.site_state import WORDS_WORST_FIRST, SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
 
@@ -79,25 +80,9 @@ class SiteRow:
         return (getattr(self, by).lower(), self.name.lower())
 
 
-def last_write(store: Store) -> int | None:
-    """A number that changes whenever anything is written: the newest audit row's."""
-    return store.db.execute("SELECT MAX(rowid) FROM audit").fetchone()[0]
-
-
 def list_rows(store: Store) -> list[SiteRow]:
-    """The list's columns for every site, straight from SQL.
-
-    The list is the first thing on screen, so it skips building full records:
-    only the six values it shows, read in one query.
-    """
-    cursor = store.db.execute(
-        "SELECT s.id, s.name, s.protection_level, s.client, s.town, MAX(i.date) FROM site s"
-        " LEFT JOIN inspection i ON i.site_id = s.id GROUP BY s.id"
-    )
-    return [
-        SiteRow(site_id, name, level, client, town, date.fromisoformat(last) if last else None)
-        for site_id, name, level, client, town, last in cursor
-    ]
+    """The list's columns for every site, without building full records (it paints first)."""
+    return [SiteRow(*values) for values in site_listing(store)]
 
 
 class SitesScreen(Screen[None]):
