@@ -418,7 +418,7 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
             _grid(
                 ["Result", "Component", "What was found"],
                 [[n.result, n.tag, n.message] for n in content.notices],
-                [width * 0.14, width * 0.14, width * 0.72],
+                [width * 0.17, width * 0.13, width * 0.70],
                 styles,
                 branding,
                 0,
