@@ -106,7 +106,9 @@ class Bundle:
         records: The same rows as checked records, by table and id.
         history: Earlier version hashes by table and record id.
         photos: Photo hashes in the bundle → the checked file staged on disk, or
-            None when reading without staging (dry run).
+            None when not staged (a dry run, or a file the database holds already).
+        same: Ids of rows equal to the importing database's own, by table; they are
+            not in `records`, since they are rows that database already holds.
     """
 
     manifest: dict[str, Any]
@@ -114,6 +116,7 @@ class Bundle:
     records: dict[str, dict[str, Record]]
     history: dict[str, dict[str, set[str]]]
     photos: dict[str, Path | None] = field(default_factory=dict)
+    same: dict[str, set[str]] = field(default_factory=dict)
 
 
 def database_id(store: Store) -> str:
@@ -225,8 +228,17 @@ def _add_file(archive: zipfile.ZipFile, source: Path, name: str) -> None:
             dest.write(block)
 
 
-def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | None = None) -> Bundle:
+def read_bundle(
+    path: Path,
+    limits: Limits = DEFAULT_LIMITS,
+    staging: Path | None = None,
+    ours: Store | None = None,
+) -> Bundle:
     """Open a bundle and check all of it; photos are copied to `staging` as they are checked.
+
+    With `ours`, the database the bundle is for, a row equal to that database's own
+    is not validated again and a photo file it holds is checked but not staged: on
+    a second exchange most of a bundle is what the database holds already.
 
     Raises:
         BundleError: the file is not a bundle, is damaged, hostile or of an unknown
@@ -241,21 +253,20 @@ def read_bundle(path: Path, limits: Limits = DEFAULT_LIMITS, staging: Path | Non
             manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
             records = _read(archive, RECORDS, limits)
             _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
-            rows, checked, history = _records(records, manifest)
-            photos = {
-                info.filename.removeprefix(PHOTO_PREFIX): _photo(
-                    archive, info, manifest, limits, staging
-                )
-                for info in infos
-                if info.filename.startswith(PHOTO_PREFIX)
-            }
+            rows, checked, history, same = _records(records, manifest, ours)
+            photos = {}
+            for info in infos:
+                if info.filename.startswith(PHOTO_PREFIX):
+                    sha = info.filename.removeprefix(PHOTO_PREFIX)
+                    held = ours is not None and photo_path(ours, sha).is_file()
+                    photos[sha] = _photo(archive, info, manifest, limits, None if held else staging)
     except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
         raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
     except OSError as exc:
         raise BundleError(
             f"{path}: cannot be read or unpacked ({exc}); nothing was written"
         ) from exc
-    return Bundle(manifest, rows, checked, history, photos)
+    return Bundle(manifest, rows, checked, history, photos, same)
 
 
 def _read(archive: zipfile.ZipFile, name: str, limits: Limits) -> bytes:
@@ -339,11 +350,14 @@ def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
 
 
 def _records(
-    data: bytes, manifest: dict[str, Any]
+    data: bytes, manifest: dict[str, Any], ours: Store | None
 ) -> tuple[
-    dict[str, list[dict[str, Any]]], dict[str, dict[str, Record]], dict[str, dict[str, set[str]]]
+    dict[str, list[dict[str, Any]]],
+    dict[str, dict[str, Record]],
+    dict[str, dict[str, set[str]]],
+    dict[str, set[str]],
 ]:
-    """Every row checked through its model and found in the stored form."""
+    """Every row checked through its model and found in the stored form, or equal to ours."""
     content = _json(data, RECORDS)
     tables = content.get("tables") if isinstance(content, dict) else None
     raw_history = content.get("history", {}) if isinstance(content, dict) else None
@@ -354,16 +368,23 @@ def _records(
         raise BundleError(f"{RECORDS}: unknown table {unknown[0]!r}; the bundle is not for this")
     rows: dict[str, list[dict[str, Any]]] = {}
     checked: dict[str, dict[str, Record]] = {}
+    same: dict[str, set[str]] = {}
     for model in RECORD_TYPES:
         table_rows = tables.get(model.table, [])
         if not isinstance(table_rows, list):
             raise BundleError(f"{RECORDS}: table {model.table!r} must be a list of records")
+        held = _held_rows(ours, model.table, table_rows)
         seen: dict[str, Record] = {}
+        equal: set[str] = set()
         for number, row in enumerate(table_rows, start=1):
-            record = _check_row(model, number, row)
-            if record.id in seen:
-                raise BundleError(f"{model.table} {record.id} appears twice in the bundle")
-            seen[record.id] = record
+            record = None if _same_row(held, row) else _check_row(model, number, row)
+            row_id = row["id"] if record is None else record.id
+            if row_id in seen or row_id in equal:
+                raise BundleError(f"{model.table} {row_id} appears twice in the bundle")
+            if record is None:
+                equal.add(row_id)
+            else:
+                seen[row_id] = record
         counted = manifest.get("counts", {}).get(model.table, len(table_rows))
         if counted != len(table_rows):
             raise BundleError(
@@ -372,6 +393,7 @@ def _records(
             )
         rows[model.table] = table_rows
         checked[model.table] = seen
+        same[model.table] = equal
     history: dict[str, dict[str, set[str]]] = {}
     for table, by_id in raw_history.items():
         if table not in MODEL_FOR_TABLE or not isinstance(by_id, dict):
@@ -382,7 +404,31 @@ def _records(
             ):
                 raise BundleError(f"{RECORDS}: history of {table} {row_id} must list sha256s")
         history[table] = {row_id: set(hashes) for row_id, hashes in by_id.items()}
-    return rows, checked, history
+    return rows, checked, history, same
+
+
+def _held_rows(ours: Store | None, table: str, rows: list[Any]) -> dict[str, dict[str, Any]]:
+    """The rows `ours` holds of those ids, as stored."""
+    if ours is None:
+        return {}
+    ids = [r["id"] for r in rows if isinstance(r, dict) and isinstance(r.get("id"), str)]
+    return ours.rows_by_id(table, ids)
+
+
+def _same_row(held: dict[str, dict[str, Any]], row: Any) -> bool:
+    """Whether a bundle row is exactly a stored row: equal, and each value of the same type.
+
+    Equal values of one type are the same value (1 and 1.0, or 1 and true, are
+    not), so the merge takes such a row as unchanged, with nothing to check or write.
+    """
+    if not isinstance(row, dict) or not isinstance(row.get("id"), str):
+        return False
+    ours = held.get(row["id"])
+    return (
+        ours is not None
+        and ours == row
+        and all(type(value) is type(ours[key]) for key, value in row.items())
+    )
 
 
 def _check_row(model: type[Record], number: int, row: Any) -> Record:

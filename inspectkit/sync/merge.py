@@ -139,7 +139,7 @@ def import_bundle(
     with tempfile.TemporaryDirectory(dir=staging_root, prefix=".bundle-") as staging:
         # A folder of its own: the staging folder itself is private (mode 0700), and
         # its photo tree may become the photo folder.
-        bundle = read_bundle(path, limits, None if dry_run else Path(staging) / "photos")
+        bundle = read_bundle(path, limits, None if dry_run else Path(staging) / "photos", store)
         plan = _plan(store, bundle, prefer)
         report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
         report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
@@ -165,7 +165,10 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
     _check_photo_files(store, bundle)
     plan = _Plan(records=bundle.records)
     signed_there = {r["id"] for r in bundle.rows["inspection"] if r["state"] == "signed"}
-    for table, rows in bundle.rows.items():
+    for table, table_rows in bundle.rows.items():
+        same = bundle.same.get(table, set())
+        plan.unchanged += len(same)
+        rows = [r for r in table_rows if r["id"] not in same]
         ours_by_id = store.rows_by_id(table, [r["id"] for r in rows])
         differing = []
         for theirs in rows:
