@@ -75,7 +75,7 @@ def test_rising_electrode_is_forecast_to_cross_before_next_complete():
     site = _electrode(zip(days, [5.0, 5.8, 6.6, 7.4, 8.2, 9.0], strict=True))
     trend = _only(site)
     assert trend.slope_ohm_per_year == pytest.approx(0.8, rel=1e-3)
-    assert trend.slope_pct_per_year == pytest.approx(16.0, rel=1e-3)  # 0.8 of 5.0 Ω at the start
+    assert trend.slope_pct_per_year == pytest.approx(100 * 0.8 / 7.0, rel=1e-3)  # of the median 7 Ω
     # 5 Ω + 0.8 Ω/year reaches 10 Ω after 6.25 years.
     assert abs((trend.crossing - date(2026, 9, 1)).days) <= 2
     assert trend.before_next_complete

@@ -97,7 +97,8 @@ class ElectrodeTrend:
         left_out_over_range: over-range readings (no number to fit).
         first_day, last_day: dates of the first and last reading used.
         slope_ohm_per_year: Theil–Sen slope, Ω per year (None without a forecast).
-        slope_pct_per_year: the slope as a percentage of the fitted value at `first_day`.
+        slope_pct_per_year: the slope as a percentage of the median reading; the median,
+            unlike the fitted start, is not dragged towards zero by one high reading.
         slope_low, slope_high: the slope's 95 % confidence interval, Ω per year.
         fitted_last: the line's value at `last_day`, Ω.
         limit: the acceptance limit, Ω.
@@ -219,8 +220,8 @@ def _trend(
     xs = [(d - days[0]).days / YEAR_DAYS for d in days]
     fit = theil_sen(xs, values)
     assert fit is not None  # the span is at least a year, so two x values differ
-    fitted_first = fit.intercept
-    pct = 100 * fit.slope / fitted_first if fitted_first > 0 else None
+    typical = median(values)
+    pct = 100 * fit.slope / typical if typical > 0 else None
     crossing = _crossing(fit, days[0], limit)
     soon = crossing is not None and next_complete is not None and crossing <= next_complete
     return ElectrodeTrend(
