@@ -11,7 +11,8 @@ Layout (format `inspectkit-bundle`, version 1):
 - `photos/<sha256>`: photo files, named by their content hash.
 
 Reading a bundle checks all of it (members, hashes, every record through its
-model) before anything is written anywhere.
+model, bar those equal to the importing database's own rows) before anything is
+written anywhere.
 """
 
 from __future__ import annotations
