@@ -109,6 +109,21 @@ class ElectrodeType(StrEnum):
     FOUNDATION = "foundation"
 
 
+class EarthingArrangement(StrEnum):
+    """How the earth electrodes are laid out (IEC 62305-3, 5.4.2).
+
+    Type A: a separate rod or plate at each down conductor; type B: a ring conductor
+    round the structure, or its foundation electrode.
+    """
+
+    A = "A"
+    B = "B"
+
+
+#: Oldest year a structure or an LPS on it may be given as built or installed.
+EARLIEST_YEAR = 1800
+
+
 class InspectionKind(StrEnum):
     """Why a visit was made (IEC 62305-3 Annex E; NFPA 780 Annex D)."""
 
@@ -325,6 +340,20 @@ class Site(Record):
     notes: str = ""
     #: Date of the last alteration to the structure; it calls for an inspection.
     altered_on: date | None = None
+    #: Who installed the LPS (firm or person), for the report's general part.
+    installer: str = Field(default="", max_length=200)
+    installed_year: int | None = None
+    built_year: int | None = None
+    #: What the structure is used for, e.g. "offices", "fuel depot".
+    use: str = Field(default="", max_length=200)
+    #: Type of construction, e.g. "steel frame, brick cladding".
+    construction: str = Field(default="", max_length=200)
+    roofing: str = Field(default="", max_length=200)
+    #: The standard and edition the LPS was designed to, e.g. "IEC 62305-3:2010".
+    design_standard: str = Field(default="", max_length=100)
+    #: e.g. "mesh on flat roof with rods on plant".
+    air_termination: str = Field(default="", max_length=300)
+    earthing_arrangement: EarthingArrangement | None = None
 
     @field_validator("name")
     @classmethod
@@ -342,6 +371,35 @@ class Site(Record):
             return ("I", "II", "III", "IV")[value - 1]
         if isinstance(value, str | int) and not isinstance(value, ProtectionLevel):
             raise ValueError(f"{value!r} is not a protection level; use I, II, III or IV")
+        return value
+
+    @field_validator("installed_year", "built_year")
+    @classmethod
+    def _plausible_year(cls, value: int | None, info: ValidationInfo) -> int | None:
+        now = _now_from(info)
+        if value is None or now is None:
+            return value
+        latest = now.year + 1
+        if not EARLIEST_YEAR <= value <= latest:
+            raise ValueError(
+                f"{value} is not a plausible year; give the four-digit year, "
+                f"{EARLIEST_YEAR} to {latest}, or leave it empty"
+            )
+        return value
+
+    @field_validator("earthing_arrangement", mode="before")
+    @classmethod
+    def _arrangement(cls, value: Any) -> Any:
+        if isinstance(value, str) and not isinstance(value, EarthingArrangement):
+            key = value.strip().upper().removeprefix("TYPE").strip()
+            if not key:
+                return None
+            if key not in EarthingArrangement.__members__:
+                raise ValueError(
+                    f"{value!r} is not an earthing arrangement; use A (a rod or plate at "
+                    "each down conductor) or B (ring or foundation electrode)"
+                )
+            return key
         return value
 
     @field_validator("latitude")
@@ -454,6 +512,10 @@ class Inspection(Record):
     amends_id: str | None = None
     #: What could not be inspected and why (no roof access, buried, locked).
     not_inspected: str = ""
+    #: Who went round with the inspector (site manager, client's engineer).
+    accompanied_by: str = Field(default="", max_length=200)
+    #: Changes to the structure since the last visit that need more protection.
+    changes_since_last: str = Field(default="", max_length=2000)
     notes: str = ""
 
     @field_validator("kind", mode="before")

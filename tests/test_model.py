@@ -10,6 +10,7 @@ from pydantic import ValidationError
 from inspectkit.model import (
     Component,
     ComponentKind,
+    EarthingArrangement,
     Finding,
     Inspection,
     InspectionKind,
@@ -125,6 +126,45 @@ def test_latitude_without_longitude() -> None:
     assert "go together" in message(
         Site, {"name": "Mill", "protection_level": "I", "latitude": 1.0}
     )
+
+
+@pytest.mark.parametrize(
+    ("field", "value"), [("built_year", 1799), ("installed_year", 2028), ("built_year", 26)]
+)
+def test_implausible_years_name_the_field(field: str, value: int) -> None:
+    text = message(Site, {"name": "Mill", "protection_level": "I", field: value})
+    assert text.startswith(f"{field}: {value} is not a plausible year")
+    assert "1800 to 2027" in text, "the range runs to next year of the clock given"
+
+
+def test_plausible_years_and_old_records_without_them() -> None:
+    data = {"name": "Mill", "protection_level": "I"}
+    site = Site.model_validate(
+        {**data, "built_year": 1800, "installed_year": 2027}, context={"now": NOW}
+    )
+    assert (site.built_year, site.installed_year) == (1800, 2027)
+    bare = Site.model_validate(data)
+    assert (bare.installer, bare.built_year, bare.earthing_arrangement) == ("", None, None)
+
+
+@pytest.mark.parametrize(
+    ("given", "arrangement"),
+    [
+        ("A", EarthingArrangement.A),
+        ("b", EarthingArrangement.B),
+        ("type B", EarthingArrangement.B),
+        ("", None),
+    ],
+)
+def test_earthing_arrangement_spellings(given: str, arrangement: EarthingArrangement) -> None:
+    site = Site(name="Mill", protection_level="I", earthing_arrangement=given)
+    assert site.earthing_arrangement is arrangement
+
+
+def test_unknown_earthing_arrangement_says_what_a_and_b_are() -> None:
+    text = message(Site, {"name": "Mill", "protection_level": "I", "earthing_arrangement": "C"})
+    assert text.startswith("earthing_arrangement: 'C' is not an earthing arrangement")
+    assert "A (a rod or plate at each down conductor) or B" in text
 
 
 def test_inspection_in_the_future_is_refused() -> None:

@@ -19,9 +19,10 @@ from inspectkit.model import (
     Reading,
     Site,
 )
-from inspectkit.store import FrozenRecordError, NewerSchemaError, Store, StoreError
+from inspectkit.store import FrozenRecordError, NewerSchemaError, Store, StoreError, audit
 from inspectkit.store.database import apply_migrations
 from inspectkit.store.photos import attach_photo, photo_path
+from inspectkit.store.rows import to_row
 from inspectkit.store.schema import SCHEMA_VERSION
 
 TAKEN = datetime(2026, 5, 4, 10, 30, tzinfo=timezone.utc)
@@ -50,6 +51,17 @@ def file_bytes(path: Path) -> bytes:
     return path.read_bytes()
 
 
+def save_in_old_schema(db: sqlite_utils.Database, record: Site | Inspection) -> None:
+    """Write a record as an older inspectkit did: only the columns its schema had, audited."""
+    table = db[record.table]
+    columns = {c.name for c in table.columns}
+    table.insert({k: v for k, v in to_row(record).items() if k in columns})
+    stored = dict(table.get(record.id))
+    change = (record.table, record.id, "insert", None, stored)
+    at = record.updated_at.isoformat()
+    db["audit"].insert_all(audit.make_entries(audit.last_hash(db), [change], at=at, who="old"))
+
+
 def test_new_database_has_current_schema_wal_and_foreign_keys(db_path: Path) -> None:
     with Store.open(db_path) as store:
         assert store.schema_version() == SCHEMA_VERSION
@@ -63,8 +75,8 @@ def test_new_database_has_current_schema_wal_and_foreign_keys(db_path: Path) -> 
 def test_database_of_schema_1_migrates_and_keeps_its_records(db_path: Path) -> None:
     db = sqlite_utils.Database(db_path)
     apply_migrations(db, upto=1)
-    old = Store(db, db_path, "old")
-    site = old.save(Site(name="Old Chapel", protection_level="III"))
+    site = Site(name="Old Chapel", protection_level="III")
+    save_in_old_schema(db, site)
     db.close()
 
     with Store.open(db_path) as store:
@@ -74,6 +86,34 @@ def test_database_of_schema_1_migrates_and_keeps_its_records(db_path: Path) -> N
         assert store.verify_audit() == []
     backup = db_path.with_name(f"{db_path.name}.before-schema-2.bak")
     assert backup.exists(), "a backup is taken before every migration"
+
+
+def test_database_of_schema_2_gains_the_report_fields_and_keeps_its_records(
+    db_path: Path,
+) -> None:
+    db = sqlite_utils.Database(db_path)
+    apply_migrations(db, upto=2)
+    site = Site(name="Old Chapel", protection_level="III")
+    visit = Inspection(site_id=site.id, kind="visual", date=date(2026, 5, 4))
+    save_in_old_schema(db, site)
+    save_in_old_schema(db, visit)
+    db.close()
+
+    with Store.open(db_path) as store:
+        assert store.schema_version() == SCHEMA_VERSION
+        kept = store.get(Site, site.id)
+        assert kept.name == "Old Chapel"
+        assert (kept.installer, kept.built_year, kept.earthing_arrangement) == ("", None, None)
+        assert store.get(Inspection, visit.id).accompanied_by == ""
+        assert store.verify_audit() == [], "the new columns are logged, not taken for an edit"
+        store.save(
+            Site.model_validate({**kept.model_dump(), "use": "chapel", "earthing_arrangement": "a"})
+        )
+        assert store.get(Site, site.id).earthing_arrangement == "A"
+        assert store.verify_audit() == []
+    backup = db_path.with_name(f"{db_path.name}.before-schema-3.bak")
+    assert backup.exists(), "a backup is taken before every migration"
+    assert "installer" not in {c.name for c in sqlite_utils.Database(backup)["site"].columns}
 
 
 def test_database_of_a_newer_version_is_refused(db_path: Path) -> None:

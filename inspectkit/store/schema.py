@@ -10,6 +10,9 @@ from collections.abc import Callable
 
 import sqlite_utils
 
+from inspectkit.model import utcnow
+from inspectkit.store import audit
+
 _STAMPS = """
     created_at TEXT NOT NULL,
     updated_at TEXT NOT NULL,
@@ -156,6 +159,25 @@ CREATE INDEX audit_row ON audit(table_name, row_id, seq);
 CREATE INDEX photo_sha ON photo(sha256);
 """
 
+#: Columns for what an inspection report records (IEC 62305-3 Annex E), by table.
+_V3_COLUMNS = {
+    "site": (
+        "installer TEXT NOT NULL DEFAULT ''",
+        "installed_year INTEGER",
+        "built_year INTEGER",
+        "use TEXT NOT NULL DEFAULT ''",
+        "construction TEXT NOT NULL DEFAULT ''",
+        "roofing TEXT NOT NULL DEFAULT ''",
+        "design_standard TEXT NOT NULL DEFAULT ''",
+        "air_termination TEXT NOT NULL DEFAULT ''",
+        "earthing_arrangement TEXT",
+    ),
+    "inspection": (
+        "accompanied_by TEXT NOT NULL DEFAULT ''",
+        "changes_since_last TEXT NOT NULL DEFAULT ''",
+    ),
+}
+
 
 def _v1(db: sqlite_utils.Database) -> None:
     """The first schema: every record table, the audit chain, meta."""
@@ -167,6 +189,37 @@ def _v2(db: sqlite_utils.Database) -> None:
     db.executescript(_V2)
 
 
+def _v3(db: sqlite_utils.Database) -> None:
+    """The report's general and structure details on sites; who came along and what changed.
+
+    Every existing row gains the new columns with their defaults, so each gets an
+    audit row saying so; otherwise the audit check would take the new columns for
+    an edit made behind the tool's back.
+    """
+    at = utcnow().isoformat()
+    for table, columns in _V3_COLUMNS.items():
+        before = _rows(db, table)
+        for column in columns:
+            db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
+        after = _rows(db, table)
+        changes = [(table, row_id, "migrate", row, after[row_id]) for row_id, row in before.items()]
+        entries = audit.make_entries(audit.last_hash(db), changes, at=at, who="migration")
+        if entries:
+            names = list(entries[0])
+            db.conn.executemany(
+                f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})",
+                ([e[n] for n in names] for e in entries),
+            )
+
+
+def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
+    """A table's rows by id, as SQLite returns them (the form the audit log hashes)."""
+    cursor = db.execute(f"SELECT * FROM [{table}]")
+    names = [d[0] for d in cursor.description]
+    rows = (dict(zip(names, values, strict=True)) for values in cursor)
+    return {row["id"]: row for row in rows}
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
 SCHEMA_VERSION = len(MIGRATIONS)
