@@ -108,6 +108,13 @@ class ElectrodeType(StrEnum):
     RING = "ring"
     FOUNDATION = "foundation"
 
+    @property
+    def arrangement(self) -> EarthingArrangement:
+        """The earthing arrangement electrodes of this form make up."""
+        if self in (ElectrodeType.ROD, ElectrodeType.PLATE):
+            return EarthingArrangement.A
+        return EarthingArrangement.B
+
 
 class EarthingArrangement(StrEnum):
     """How the earth electrodes are laid out (IEC 62305-3, 5.4.2).

@@ -159,6 +159,32 @@ def test_sites_sit_in_one_region_but_one_has_no_coordinates(demo: Store) -> None
     assert {s.profile for s in sites} == {"iec-62305-3", "nfpa-780", "bs-6651-practice"}
 
 
+def test_every_site_has_the_report_details(demo: Store) -> None:
+    for s in demo.select(Site):
+        details = (s.installer, s.use, s.construction, s.roofing, s.design_standard)
+        assert all(details) and s.air_termination, s.name
+        assert s.built_year is not None and s.installed_year is not None
+        assert s.built_year < s.installed_year <= ANCHOR.year, s.name
+    electrodes = {
+        (c.site_id, c.electrode_type.arrangement)
+        for c in demo.select(Component)
+        if c.electrode_type
+    }
+    # Type A: a rod or plate at each down conductor (IEC 62305-3, 5.4.2.1).
+    assert electrodes == {(s.id, s.earthing_arrangement) for s in demo.select(Site)}
+
+
+def test_a_change_since_the_last_visit_comes_with_its_finding(demo: Store) -> None:
+    records = site(demo, "Brackenholt Community Hospital")
+    latest = finished(records, InspectionKind.COMPLETE)[-1]
+    assert "chiller" in latest.changes_since_last and latest.accompanied_by
+    found = [f for f in records.findings if f.inspection_id == latest.id]
+    assert any("chiller" in f.text and f.grade is Grade.DEFECT for f in found)
+    visits = demo.select(Inspection)
+    assert 2 <= sum(1 for i in visits if i.changes_since_last) < len(visits) / 10
+    assert 3 <= sum(1 for i in visits if i.accompanied_by)
+
+
 def test_earth_readings_carry_soil_and_scatter_with_it(demo: Store) -> None:
     earth = [r for r in demo.select(Reading) if r.quantity is Quantity.EARTH_ISOLATED]
     assert all(r.soil is not None for r in earth)

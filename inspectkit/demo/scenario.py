@@ -101,6 +101,13 @@ class SiteSpec(_Data):
     explosive_risk: bool = False
     height_m: float | None = None
     notes: str = ""
+    installer: str = ""
+    built_year: int | None = None
+    use: str = ""
+    construction: str = ""
+    roofing: str = ""
+    design_standard: str = ""
+    air_termination: str = ""
     years: int = Field(ge=2, le=15)
     air_terminals: int = Field(ge=1)
     mesh_conductors: int = Field(ge=0)
@@ -123,6 +130,10 @@ class SiteSpec(_Data):
     lapsed_instrument: str | None = None
     missing_readings: list[str] = Field(default_factory=list)
     not_inspected: str = ""
+    #: Who went round with the inspector at the latest complete inspection.
+    accompanied_by: str = ""
+    #: Changes to the structure found at the latest complete inspection.
+    changes_since_last: str = ""
     draft_today: Literal["visual", "complete"] | None = None
     finding: list[FindingSpec] = Field(default_factory=list)
 

@@ -85,7 +85,16 @@ _SITE_FIELDS = {
     "explosive_risk",
     "height_m",
     "notes",
+    "installer",
+    "built_year",
+    "use",
+    "construction",
+    "roofing",
+    "design_standard",
+    "air_termination",
 }
+#: Scenario keys that are set on the latest complete inspection.
+_LATEST_FIELDS = {"not_inspected", "accompanied_by", "changes_since_last"}
 
 
 def stamps(at: datetime, by: str = DEMO_USER) -> dict[str, Any]:
@@ -183,11 +192,17 @@ class SiteHistory:
         self.start = self.anchor - relativedelta(years=spec.years)
         self.start -= timedelta(days=self.rng.randint(0, 40))
         created = stamps(datetime.combine(self.start, time(8, 0), UTC))
-        self.site = Site(
-            id=demo.new_id(),
-            protection_level=spec.level,
-            **spec.model_dump(include=_SITE_FIELDS),
-            **created,
+        self.site = Site.model_validate(
+            {
+                "id": demo.new_id(),
+                "protection_level": spec.level,
+                # The LPS went in when it had its initial inspection.
+                "installed_year": self.start.year,
+                "earthing_arrangement": spec.electrode.arrangement,
+                **spec.model_dump(include=_SITE_FIELDS),
+                **created,
+            },
+            context=demo.validation,
         )
         self.system: System = lay_out(
             spec, self.site.id, self.start, created, demo.new_id, self.rng
@@ -443,10 +458,9 @@ class SiteHistory:
             elif kind is InspectionKind.POST_STRIKE:
                 self._post_strike_tests(visit, special)
             self._counter_readings(visit, count)
-        if spec.not_inspected:
-            latest.inspection = latest.inspection.model_copy(
-                update={"not_inspected": spec.not_inspected}
-            )
+        latest_fields = spec.model_dump(include=_LATEST_FIELDS)
+        if any(latest_fields.values()):
+            latest.inspection = latest.inspection.model_copy(update=latest_fields)
         self._minor_findings()
         self._scenario_findings(refs)
         if spec.draft_today:
