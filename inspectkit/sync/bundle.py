@@ -255,7 +255,7 @@ def read_bundle(
             records = _read(archive, RECORDS, limits)
             _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
             rows, checked, history, same = _records(records, manifest, ours)
-            photos = {}
+            photos: dict[str, Path | None] = {}
             for info in infos:
                 if info.filename.startswith(PHOTO_PREFIX):
                     sha = info.filename.removeprefix(PHOTO_PREFIX)
