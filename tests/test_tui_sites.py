@@ -207,3 +207,53 @@ async def test_long_list_filters_once_typing_pauses(
         assert table.row_count == 3
         await pilot.pause(sites.TYPING_PAUSE * 3)
         assert sorted(column(table, "name")) == ["Harbour Depot", "Orchard Tower"]
+
+
+async def test_a_site_the_engine_fails_on_shows_error_and_the_rest_are_judged(
+    tui_db: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from inspectkit.tui import site_state
+
+    real = site_state.assess
+
+    def failing_for_the_school(records, profile, today):  # type: ignore[no-untyped-def]
+        if records.site.name == "Mill Lane School":
+            raise ZeroDivisionError("division by zero in a trend")
+        return real(records, profile, today)
+
+    monkeypatch.setattr(site_state, "assess", failing_for_the_school)
+    app = make_app(tui_db, today=ANCHOR)
+    told: list[str] = []
+    notify = app.notify
+    monkeypatch.setattr(
+        app, "notify", lambda message, **kw: (told.append(message), notify(message, **kw))[1]
+    )
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        assert isinstance(app.screen, SitesScreen) and app.is_running
+        table = app.screen.query_one("#sites", DataTable)
+        states = dict(zip(column(table, "name"), column(table, "state"), strict=True))
+        assert states["Mill Lane School"] == "error"
+        assert states["Orchard Tower"] == "overdue"  # judged as without the failure
+        assert states["Harbour Depot"] not in ("error", "…")
+        assert column(table, "name")[0] == "Mill Lane School"  # not judged sorts first
+        assert any("Mill Lane School could not be judged" in m and "division by zero" in m
+                   for m in told)
+        status = app.screen.query_one("#status")
+        assert "ZeroDivisionError: division by zero in a trend" in str(status.render())
+        await pilot.press("down")
+        assert "sorted by state" in str(status.render())
+
+
+async def test_an_unknown_profile_shows_why_on_the_highlighted_row(tui_db: Path) -> None:
+    with Store.open(tui_db) as store:
+        tower = store.select(Site, "name = ?", ["Orchard Tower"])[0]
+        store.save(tower.model_copy(update={"profile": "no-such-rules"}))
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        assert column(table, "state")[0] == "no profile"
+        status = str(app.screen.query_one("#status").render())
+        assert "Orchard Tower: no profile" in status
+        assert "no profile named 'no-such-rules'" in status

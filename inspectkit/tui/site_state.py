@@ -23,6 +23,8 @@ from inspectkit.store.queries import load_site_records
 WORDS_WORST_FIRST = ("overdue", "fail", "incomplete", "due soon", "watch", "ok")
 #: Shown when a site's profile cannot be read: it cannot be judged at all.
 NO_PROFILE = "no profile"
+#: Shown when judging a site failed for another reason (bad data, a bug): see `reason`.
+ERROR = "error"
 
 
 @dataclass(frozen=True)
@@ -30,16 +32,18 @@ class SiteState:
     """What the lists show about a site.
 
     Attributes:
-        word: one of WORDS_WORST_FIRST, or NO_PROFILE.
+        word: one of WORDS_WORST_FIRST, NO_PROFILE or ERROR.
         next_due: the date of the most urgent inspection the site owes.
         next_kind: which inspection that is (visual, complete, post_strike...).
         check: the engine's whole verdict, when the site's profile could be read.
+        reason: why the site could not be judged (NO_PROFILE, ERROR), in words.
     """
 
     word: str
     next_due: date | None = None
     next_kind: str = ""
     check: SiteCheck | None = field(default=None, compare=False)
+    reason: str = ""
 
     @property
     def rank(self) -> int:
@@ -70,14 +74,20 @@ class ProfileCache:
 
     def __init__(self) -> None:
         self._profiles: dict[str, Profile | None] = {}
+        self._problems: dict[str, str] = {}
 
     def get(self, name: str) -> Profile | None:
         if name not in self._profiles:
             try:
                 self._profiles[name] = load_profile(name)
-            except ProfileError:
+            except ProfileError as exc:
                 self._profiles[name] = None
+                self._problems[name] = str(exc)
         return self._profiles[name]
+
+    def problem(self, name: str) -> str:
+        """Why the profile of that name could not be read ("" if it could, or was not tried)."""
+        return self._problems.get(name, "")
 
 
 def assess_site(store: Store, site_id: str, today: date, profiles: ProfileCache) -> SiteState:
@@ -85,7 +95,7 @@ def assess_site(store: Store, site_id: str, today: date, profiles: ProfileCache)
     records = load_site_records(store, site_id)
     profile = profiles.get(records.site.profile)
     if profile is None:
-        return SiteState(NO_PROFILE)
+        return SiteState(NO_PROFILE, reason=profiles.problem(records.site.profile))
     return assess(records, profile, today)
 
 
@@ -96,6 +106,10 @@ def assess_all(
     stop: Callable[[], bool] = lambda: False,
 ) -> Iterator[tuple[str, SiteState]]:
     """Judge many sites on a connection of its own, so it can run on a worker thread.
+
+    A site that cannot be judged (its records do not load, or the engine fails on
+    them) gets the state ERROR with the reason, and the other sites are still judged:
+    one bad site must not leave the whole list without states, nor stop the app.
 
     Args:
         db_path: the database file; a fresh connection is opened on the calling thread.
@@ -108,7 +122,11 @@ def assess_all(
         for site_id in site_ids:
             if stop():
                 return
-            yield site_id, assess_site(store, site_id, today, profiles)
+            try:
+                state = assess_site(store, site_id, today, profiles)
+            except Exception as exc:  # noqa: BLE001 - any failure is shown on that site alone
+                state = SiteState(ERROR, reason=f"{type(exc).__name__}: {exc}")
+            yield site_id, state
 
 
 def reading_verdicts(check: SiteCheck, records: SiteRecords) -> dict[str, str]:

@@ -17,7 +17,7 @@ from textual.worker import get_current_worker
 
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
-from inspectkit.tui.site_state import WORDS_WORST_FIRST, SiteState, assess_all
+from inspectkit.tui.site_state import ERROR, WORDS_WORST_FIRST, SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
 
 #: How the list can be ordered, in the order the sort key cycles through them.
@@ -208,11 +208,30 @@ class SitesScreen(Screen[None]):
         for site_id, state in message.states.items():
             if site_id in self.rows:
                 self.rows[site_id] = replace(self.rows[site_id], state=state)
+        self._tell_unjudged(message.states)
         self.states_ready = message.done
         if message.done or self.sort_by not in ("state", "due"):
             self.rebuild()
         else:
             self.refresh_states(message.states)
+
+    def _tell_unjudged(self, states: dict[str, SiteState]) -> None:
+        """Say which sites could not be judged and why; the rest of the list carries on."""
+        failed = [
+            self.rows[site_id] for site_id, state in states.items()
+            if state.word == ERROR and site_id in self.rows
+        ]
+        if not failed:
+            return
+        first = failed[0]
+        more = f" (and {len(failed) - 1} more site(s))" if len(failed) > 1 else ""
+        self.notify(
+            f"{first.name} could not be judged{more}: {first.state.reason}. "  # type: ignore[union-attr]
+            "Highlight it for the reason; the other sites are judged.",
+            title="Site not judged",
+            severity="error",
+            timeout=10,
+        )
 
     def refresh_states(self, states: dict[str, SiteState]) -> None:
         """Fill in states without reordering, so the cursor does not jump while they arrive."""
@@ -267,12 +286,21 @@ class SitesScreen(Screen[None]):
             cells += (Text(kind), Text(last))
         return cells
 
-    def show_status(self, shown: int) -> None:
+    def show_status(self, shown: int | None = None) -> None:
+        """Counts and order; for a highlighted site that could not be judged, the reason."""
+        shown = self.table.row_count if shown is None else shown
         order = f"{self.sort_by}{' reversed' if self.descending else ''}"
         judging = "" if self.states_ready else " · judging sites…"
-        self.query_one("#status", Static).update(
-            f"{shown} of {len(self.rows)} sites · sorted by {order}{judging}"
-        )
+        row = self.rows.get(self.highlighted_site_id() or "")
+        status = Text(f"{shown} of {len(self.rows)} sites · sorted by {order}{judging}")
+        if row is not None and row.state is not None and row.state.reason:
+            status = Text.assemble(
+                (f"{row.name}: {row.state.word}", "bold"), f" · {row.state.reason}"
+            )
+        self.query_one("#status", Static).update(status)
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self.show_status()
 
     def highlighted_site_id(self) -> str | None:
         table = self.table

@@ -15,6 +15,7 @@ STATE_STYLES: dict[str, str] = {
     "fail": "bold red",
     "overdue": "bold white on red",
     "no profile": "bold magenta",
+    "error": "bold white on magenta",
 }
 
 #: What an unknown or not yet computed state shows.
