@@ -1,4 +1,4 @@
-"""Rendering: every reading's value, limit and result in the text; pages, photos, charts."""
+"""Rendering: every value, limit and result in the text; pages, photos, charts; site details."""
 
 from __future__ import annotations
 
@@ -10,11 +10,12 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 from reportlab import rl_config
-from test_report_factory import _jpeg, build_site
+from test_report_factory import Built, _jpeg, build_site
 
 from inspectkit.cautions import CAUTIONS
+from inspectkit.model import Inspection, Site
 from inspectkit.report.branding import BrandingError, load_branding
-from inspectkit.report.content import Field, ReadingRow
+from inspectkit.report.content import CHANGES_TITLE, Field, ReadingRow, text_sections
 from inspectkit.report.model import build_report
 from inspectkit.report.photos import downscale
 from inspectkit.report.render import render_report
@@ -163,3 +164,68 @@ def test_a_hand_built_report_renders_without_a_store(built) -> None:
     )
     _, pages = _text(render_report(content, load_branding()).data)
     assert "Ærø Ølstue" in " ".join(pages) and "SPD-01" in " ".join(pages)
+
+
+# ------------------------------------------------ the site's and the visit's details
+
+SITE_DETAILS = {
+    "installer": "Wexcombe Earthing Works",
+    "installed_year": 2019,
+    "built_year": 1957,
+    "use": "grain store",
+    "construction": "steel portal frame, sheet cladding",
+    "roofing": "pitched fibre-cement sheet",
+    "design_standard": "IEC 62305-3:2010",
+    "air_termination": "ridge conductor with air rods at both gables",
+    "earthing_arrangement": "A",
+}
+VISIT_DETAILS = {
+    "accompanied_by": "Ulrike Sæbø, farm manager",
+    "changes_since_last": "New grain dryer on the north gable since the last visit, not yet bonded",
+}
+
+
+def _joined_text(data: bytes) -> str:
+    return " ".join(_text(data)[1])
+
+
+def _fill(store: Store, made: Built) -> None:
+    store.save(Site.model_validate({**made.site.model_dump(), **SITE_DETAILS}))
+    visit = store.get(Inspection, made.current.id)
+    store.save(Inspection.model_validate({**visit.model_dump(), **VISIT_DETAILS}))
+
+
+def test_site_details_and_visit_details_are_in_the_pdf(built) -> None:
+    store, made = built
+    _fill(store, made)
+    text = _joined_text(render_report(build_report(store, made.current.id), load_branding()).data)
+    for value in SITE_DETAILS.values():
+        if value != "A":
+            assert str(value) in text, value
+    # Type A: a rod or plate at each down conductor (IEC 62305-3, 5.4.2.1).
+    assert "type A: a rod or plate electrode at each down conductor" in text
+    assert "Down conductors 2" in text
+    assert "Accompanied by Ulrike Sæbø, farm manager" in text
+    assert f"{CHANGES_TITLE} {VISIT_DETAILS['changes_since_last']}" in text
+    # The site and its protection system: the general part first, then the system.
+    assert text.index("The site and its protection system") < text.index("LPS installed by")
+    assert text.index("Designed to IEC 62305-3:2010") < text.index("Earthing arrangement")
+
+
+def test_changes_paragraph_only_when_there_are_changes(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    assert content.changes_since_last == ""
+    assert CHANGES_TITLE not in _joined_text(render_report(content, load_branding()).data)
+    assert CHANGES_TITLE not in [s.title for s in text_sections(content)]
+
+
+def test_plain_text_sections_carry_the_details(built) -> None:
+    store, made = built
+    _fill(store, made)
+    sections = {s.title: s.lines for s in text_sections(build_report(store, made.current.id))}
+    assert "Use: grain store" in sections["Site"]
+    arrangement = "Earthing arrangement: type A: a rod or plate electrode at each down conductor"
+    assert arrangement in sections["Site"]
+    assert "Accompanied by: Ulrike Sæbø, farm manager" in sections["Inspection"]
+    assert sections[CHANGES_TITLE] == (VISIT_DETAILS["changes_since_last"],)

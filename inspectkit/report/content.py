@@ -21,6 +21,10 @@ DEFERRAL = (
 )
 
 
+#: Heading of the paragraph on changes to the structure since the last visit.
+CHANGES_TITLE = "Changes since the last visit"
+
+
 @dataclass(frozen=True)
 class Field:
     """One labelled line of a details table."""
@@ -114,6 +118,8 @@ class ReportContent:
         trends: electrode trend charts.
         schedule: next inspections in words.
         not_inspected: what could not be inspected and why.
+        changes_since_last: changes to the structure since the last visit that need
+            more protection; empty when none were seen.
         amendment: lines saying what this amendment changed against the original.
         amends: words naming the original inspection, for an amendment.
         signer_name, signer_qualification: for the visible signature block.
@@ -141,6 +147,7 @@ class ReportContent:
     signer_name: str
     signer_qualification: str
     signer_organisation: str = ""
+    changes_since_last: str = ""
     amends: str = ""
     amendment: tuple[str, ...] = ()
     general_photos: tuple[PhotoItem, ...] = ()
@@ -218,6 +225,11 @@ def text_sections(content: ReportContent) -> list[Section]:
             or ("No electrode has enough readings for a trend.",),
         ),
         Section("Next inspections", fields(content.schedule)),
+        *(
+            [Section(CHANGES_TITLE, (content.changes_since_last,))]
+            if content.changes_since_last
+            else []
+        ),
         Section("Not inspected", (content.not_inspected or "Every part listed was inspected.",)),
         Section("Safety", (*content.cautions, content.deferral)),
     ]

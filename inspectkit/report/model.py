@@ -18,6 +18,7 @@ from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
     Component,
+    EarthingArrangement,
     Finding,
     Grade,
     Inspection,
@@ -28,6 +29,7 @@ from inspectkit.model import (
     Photo,
     Reading,
     Severity,
+    Site,
     SiteRecords,
 )
 from inspectkit.profiles import Profile, load_profile
@@ -304,6 +306,35 @@ def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | No
     )
 
 
+#: Each earthing arrangement in the words of IEC 62305-3, 5.4.2.
+ARRANGEMENT_WORDS = {
+    EarthingArrangement.A: "type A: a rod or plate electrode at each down conductor",
+    EarthingArrangement.B: "type B: a ring conductor or foundation electrode",
+}
+
+
+def _general(site: Site) -> tuple[Field, ...]:
+    """Owner, address and the structure itself: the general part of the report."""
+    return (
+        Field("Client", site.client),
+        Field("Address", site.address),
+        Field("Town", site.town),
+        Field(
+            "Coordinates",
+            f"{site.latitude:.5f}, {site.longitude:.5f}"
+            if site.latitude is not None and site.longitude is not None
+            else "",
+        ),
+        Field("Use", site.use),
+        Field("Construction", site.construction),
+        Field("Roofing", site.roofing),
+        Field("Year built", str(site.built_year) if site.built_year else ""),
+        Field("LPS installed by", site.installer),
+        Field("LPS installed in", str(site.installed_year) if site.installed_year else ""),
+        Field("Notes", site.notes),
+    )
+
+
 def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field, ...]:
     site = records.site
     counts = Counter(
@@ -316,11 +347,13 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
             f"{profile.title or profile.name}"
             + (f" ({profile.standard})" if profile.standard else ""),
         ),
+        Field("Designed to", site.design_standard),
         Field("Critical structure", "yes" if site.critical else "no"),
         Field("Explosion risk", "yes" if site.explosive_risk else "no"),
     ]
     if site.height_m:
         fields.append(Field("Height", f"{site.height_m:g} m"))
+    fields.append(Field("Air termination", site.air_termination))
     for kind in WALKING_ORDER:
         if counts[kind]:
             fields.append(Field(kind.label.capitalize() + "s", str(counts[kind])))
@@ -329,6 +362,10 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
         fields.append(
             Field("Electrode types", ", ".join(f"{n} {t}" for t, n in sorted(types.items())))
         )
+    arrangement = site.earthing_arrangement
+    fields.append(
+        Field("Earthing arrangement", ARRANGEMENT_WORDS[arrangement] if arrangement else "")
+    )
     return tuple(fields)
 
 
@@ -445,6 +482,7 @@ def build_report(
         Field("Inspector", inspector.name if inspector else "not recorded"),
         Field("Qualification", inspector.qualification if inspector else ""),
         Field("Organisation", inspector.organisation if inspector else ""),
+        Field("Accompanied by", inspection.accompanied_by),
         Field("Weather", inspection.weather),
         Field("Soil", inspection.soil.value if inspection.soil else "not recorded"),
         Field("Report", revision_label),
@@ -459,18 +497,7 @@ def build_report(
         verdict=verdict,
         verdict_word=verdict_word,
         headline=tuple(headline),
-        site=(
-            Field("Client", site.client),
-            Field("Address", site.address),
-            Field("Town", site.town),
-            Field(
-                "Coordinates",
-                f"{site.latitude:.5f}, {site.longitude:.5f}"
-                if site.latitude is not None and site.longitude is not None
-                else "",
-            ),
-            Field("Notes", site.notes),
-        ),
+        site=_general(site),
         structure=_structure(records, profile, inspection.date),
         inspection=tuple(inspection_fields),
         instruments=_instruments(inspection, records),
@@ -491,6 +518,7 @@ def build_report(
             Field("Next complete inspection", check.schedule.next_complete.isoformat()),
         ),
         not_inspected=inspection.not_inspected,
+        changes_since_last=inspection.changes_since_last,
         signer_name=inspector.name if inspector else "",
         signer_qualification=inspector.qualification if inspector else "",
         signer_organisation=inspector.organisation if inspector else "",

@@ -41,7 +41,7 @@ from reportlab.platypus import (
 
 from inspectkit.report.branding import Branding
 from inspectkit.report.charts import trend_drawing
-from inspectkit.report.content import Field, PhotoItem, ReportContent
+from inspectkit.report.content import CHANGES_TITLE, Field, PhotoItem, ReportContent
 from inspectkit.report.photos import downscale
 from inspectkit.report.sign import SignatureSlot
 
@@ -426,6 +426,9 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         )
     add(Paragraph("Next inspections", styles["h2"]))
     add(_fields_table(content.schedule, styles, width))
+    if content.changes_since_last:
+        add(Paragraph(CHANGES_TITLE, styles["h2"]))
+        add(Paragraph(_text(content.changes_since_last), styles["body"]))
     add(Paragraph("Not inspected", styles["h2"]))
     add(
         Paragraph(
