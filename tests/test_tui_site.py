@@ -195,6 +195,37 @@ async def test_edit_site_keeps_typing_until_valid(tui_db: Path) -> None:
         assert "Eastvale Borough Council" in str(screen.query_one("#site-title").render())
 
 
+async def test_edit_site_report_details_scroll_into_view_at_80x24(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot, tui_db)
+        await pilot.press("e")
+        await pilot.pause()
+        dialog = app.screen
+        dialog.query_one("#field-use", Input).value = "secondary school"
+        dialog.query_one("#field-built_year", Input).value = "1066"
+        dialog.query_one("#field-design_standard", Input).value = "IEC 62305-3:2010"
+        dialog.query_one("#field-earthing_arrangement", Select).value = "B"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        error = str(dialog.query_one("#error-built_year").render())
+        assert "1066 is not a plausible year" in error and "1800 to" in error
+        assert app.store.get(Site, screen.site_id).use == ""
+        # The refused field is focused and scrolled into the 24 rows.
+        field = dialog.query_one("#field-built_year", Input)
+        assert app.focused is field and 0 <= field.region.y < 24
+        field.value = "1962"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        site = app.store.get(Site, screen.site_id)
+        assert (site.use, site.built_year, site.design_standard) == (
+            "secondary school",
+            1962,
+            "IEC 62305-3:2010",
+        )
+        assert site.earthing_arrangement == "B" and site.installed_year is None
+
+
 def test_sparkline_scales_from_zero_and_marks_readings_over_the_limit() -> None:
     from inspectkit.tui.widgets.sparkline import sparkline
 

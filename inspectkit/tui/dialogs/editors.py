@@ -7,6 +7,7 @@ from datetime import date
 from inspectkit.model import (
     Component,
     ComponentKind,
+    EarthingArrangement,
     ElectrodeType,
     Inspector,
     Instrument,
@@ -17,6 +18,12 @@ from inspectkit.profiles import load_all_profiles
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
 
 DATE_HINT = "a date as YYYY-MM-DD"
+YEAR_HINT = "a four-digit year, e.g. 1998"
+#: The earthing arrangements as a pick list, each with what it means (IEC 62305-3, 5.4.2).
+ARRANGEMENT_CHOICES = [
+    ("A: rod or plate at each down conductor", EarthingArrangement.A.value),
+    ("B: ring or foundation electrode", EarthingArrangement.B.value),
+]
 
 
 def profile_choices() -> list[tuple[str, str]]:
@@ -42,6 +49,18 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("latitude", "Latitude", "degrees, e.g. 51.48", optional=True),
         Field("longitude", "Longitude", "degrees, e.g. -0.61", optional=True),
         Field("altered_on", "Altered on", DATE_HINT, optional=True),
+        Field("use", "Use", "what it is used for, e.g. offices, fuel depot"),
+        Field("construction", "Construction", "e.g. steel frame, brick cladding"),
+        Field("roofing", "Roofing", "e.g. flat felt roof on concrete deck"),
+        Field("built_year", "Year built", YEAR_HINT, optional=True),
+        Field("installer", "LPS installed by", "firm or person"),
+        Field("installed_year", "LPS installed in", YEAR_HINT, optional=True),
+        Field("design_standard", "Designed to", "standard and edition, e.g. IEC 62305-3:2010"),
+        Field("air_termination", "Air termination", "e.g. mesh on flat roof, rods on plant"),
+        Field(
+            "earthing_arrangement", "Earthing", "A or B", optional=True,
+            choices=ARRANGEMENT_CHOICES,
+        ),
         Field("notes", "Notes"),
     ]
     base = site.model_dump() if site else {"profile": "iec-62305-3"}
