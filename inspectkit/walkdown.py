@@ -316,6 +316,7 @@ def record_reading(
     soil: SoilCondition | str | None = None,
     note: str = "",
     *,
+    unreliable: bool = False,
     taken_at: datetime | None = None,
     context: SiteContext | None = None,
 ) -> ReadingOutcome:
@@ -329,6 +330,8 @@ def record_reading(
         text: What the instrument showed, as typed (`3.9`, `180 mΩ`, `OL`).
         method: How it was measured; the usual method for the quantity when None.
         joint_state: Open or closed; taken from the quantity for earth readings.
+        unreliable: The inspector doubts the reading (leads, probes, weather): it is
+            kept but does not count as a pass.
         taken_at: When it was read (default: now).
         context: The site's profile and parts, if the caller holds them already
             (the screen does, for the whole walk).
@@ -371,6 +374,7 @@ def record_reading(
         "taken_at": taken_at or now,
         "soil": soil or None,
         "note": note,
+        "unreliable": unreliable,
     }
     if existing:
         data["id"] = existing[0].id
@@ -556,7 +560,15 @@ def _previous(records: SiteRecords, inspection: Inspection, reading: Reading) ->
 
 
 def _verdict(reading: Reading, limit: float | None, severity: Severity) -> str:
-    """`PASS 3.9 Ω ≤ 10 Ω`: the verdict word first, so it reads without its colour."""
+    """`PASS 3.9 Ω ≤ 10 Ω`: the verdict word first, so it reads without its colour.
+
+    A reading marked doubtful says so after the comparison (`WATCH 3.9 Ω ≤ 10 Ω, doubtful`).
+    """
+    doubt = ", doubtful" if reading.unreliable else ""
+    return _compared(reading, limit, severity) + doubt
+
+
+def _compared(reading: Reading, limit: float | None, severity: Severity) -> str:
     shown = format_value(reading.value, reading.quantity, reading.over_range)
     if limit is None:
         return shown if severity is Severity.OK else f"{_WORD[severity]} {shown}"

@@ -17,7 +17,8 @@ from inspectkit import __version__
 from inspectkit.cli.common import DbOption, resolve_db
 
 #: Modules under inspectkit.cli that add commands.
-COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify", "upkeep")
+COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
+                   "upkeep", "inspection", "entries", "findings")
 
 app = typer.Typer(
     name="inspectkit",

@@ -1,0 +1,208 @@
+"""`inspectkit reading add`, `grade`, `photo add`: one walkdown entry each, saved at once."""
+
+from __future__ import annotations
+
+from datetime import UTC, datetime
+from pathlib import Path
+from typing import Annotated, Any
+
+import typer
+
+from inspectkit.cli import lookups
+from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
+from inspectkit.model import Component, Grade, Method, Quantity, Severity, SoilCondition
+from inspectkit.tui.preferences import Preferences
+from inspectkit.units import format_value
+from inspectkit.walkdown import (
+    JOINT_FOR,
+    ReadingOutcome,
+    WalkdownError,
+    attach_photos,
+    grade_component,
+    record_reading,
+)
+
+reading_app = typer.Typer(help="Readings: enter one as the screen would.", no_args_is_help=True)
+photo_app = typer.Typer(
+    help="Photos: attach one, or a folder matched by time.", no_args_is_help=True
+)
+
+InspectionOption = Annotated[
+    str, typer.Option("--inspection", help="Id of the draft inspection (or its start).")
+]
+TagOption = Annotated[str, typer.Option("--tag", help="Tag painted on the component, e.g. TJ-03.")]
+
+
+def failed(outcome: ReadingOutcome) -> bool:
+    """A reading that fails its limit, or is as bad (a lapsed instrument, an overdue test)."""
+    return outcome.severity.rank >= Severity.FAIL.rank
+
+
+def outcome_line(tag: str, outcome: ReadingOutcome) -> str:
+    """`TJ-03 earth resistance (combined): PASS 3.9 Ω ≤ 10 Ω · +12 % on 2026-03-03`."""
+    label = outcome.reading.quantity.label
+    line = f"{tag} {label}: {outcome.verdict}" if tag else f"{label}: {outcome.verdict}"
+    return f"{line} · {outcome.comparison}" if outcome.comparison else line
+
+
+def outcome_json(outcome: ReadingOutcome) -> dict[str, Any]:
+    """What a script needs about one judged reading."""
+    reading = outcome.reading
+    return {
+        "reading_id": reading.id,
+        "quantity": reading.quantity.value,
+        "value": reading.value,
+        "over_range": reading.over_range,
+        "shown": format_value(reading.value, reading.quantity, reading.over_range),
+        "method": reading.method.value,
+        "unreliable": reading.unreliable,
+        "severity": outcome.severity.value,
+        "passed": outcome.passed,
+        "verdict": outcome.verdict,
+        "limit": outcome.limit,
+        "comparison": outcome.comparison,
+        "messages": list(outcome.messages),
+    }
+
+
+@reading_app.command("add")
+def add_reading(
+    ctx: typer.Context,
+    value: Annotated[str, typer.Argument(help="What the instrument showed: 3.9, 180 mΩ, OL.")],
+    inspection: InspectionOption,
+    tag: TagOption,
+    quantity: Annotated[Quantity, typer.Option("--quantity", help="What was measured.")],
+    method: Annotated[
+        Method | None,
+        typer.Option("--method", help="How it was measured (default: the usual one for it)."),
+    ] = None,
+    instrument: Annotated[
+        str | None,
+        typer.Option("--instrument", help="Serial or id (default: the one the walkdown uses)."),
+    ] = None,
+    soil: Annotated[
+        SoilCondition | None,
+        typer.Option("--soil", help="Ground state for an earth reading (default: the visit's)."),
+    ] = None,
+    doubtful: Annotated[
+        bool, typer.Option("--doubtful", help="Mark the reading doubtful: kept, not a pass.")
+    ] = False,
+    note: Annotated[str, typer.Option("--note", help="A note kept with the reading.")] = "",
+    taken_at: Annotated[
+        datetime | None,
+        typer.Option(
+            "--taken-at",
+            formats=["%Y-%m-%dT%H:%M", "%Y-%m-%dT%H:%M:%S", "%Y-%m-%d %H:%M"],
+            help="When it was read, UTC, e.g. 2026-06-01T10:30 (default: now), for a paper sheet.",
+            show_default=False,
+        ),
+    ] = None,
+    db: DbOption = None,
+    json_out: JsonOption = False,
+) -> None:
+    """Save one reading and print its verdict; typing it again corrects it; exit 1 on FAIL."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        component = lookups.component_by_tag(store, visit.id, tag)
+        instrument_id = (
+            lookups.instrument(store, instrument).id
+            if instrument is not None
+            else Preferences(store).instrument_id
+        )
+        if soil is None and quantity in JOINT_FOR:
+            soil = visit.soil
+        try:
+            outcome = record_reading(
+                store,
+                visit.id,
+                component.id,
+                quantity,
+                value,
+                method=method,
+                instrument_id=instrument_id,
+                soil=soil,
+                note=note,
+                unreliable=doubtful,
+                taken_at=taken_at.replace(tzinfo=UTC) if taken_at is not None else None,
+            )
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    if json_out:
+        emit_json({"tag": component.tag, **outcome_json(outcome)})
+    else:
+        typer.echo(outcome_line(component.tag, outcome))
+        if outcome.severity is not Severity.OK:
+            for message in outcome.messages:
+                typer.echo(f"  {message}")
+    raise typer.Exit(int(Exit.ACT if failed(outcome) else Exit.OK))
+
+
+def grade_command(
+    ctx: typer.Context,
+    inspection: InspectionOption,
+    tag: TagOption,
+    grade: Annotated[Grade, typer.Option("--grade", help="How the component was found.")],
+    text: Annotated[
+        str, typer.Option("--text", help="What was found; needed unless it is sound.")
+    ] = "",
+    remedy: Annotated[str, typer.Option("--remedy", help="The remedial action.")] = "",
+    due: Annotated[
+        str, typer.Option("--due", help="Remedy due by, YYYY-MM-DD.", show_default=False)
+    ] = "",
+    category: Annotated[str, typer.Option("--category", help="e.g. corrosion, fixings.")] = "",
+    db: DbOption = None,
+) -> None:
+    """Grade a component for this visit; grading it again corrects the grade."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        component = lookups.component_by_tag(store, visit.id, tag)
+        try:
+            finding = grade_component(
+                store, visit.id, component.id, grade, text, remedy, due or None, category
+            )
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    line = f"{component.tag}: {finding.grade.value.replace('_', ' ')}"
+    if finding.text:
+        line += f", {finding.text}"
+    if finding.remedial_action:
+        line += f"; remedy: {finding.remedial_action}"
+    if finding.due_by:
+        line += f", due by {finding.due_by.isoformat()}"
+    typer.echo(line)
+
+
+@photo_app.command("add")
+def add_photo(
+    ctx: typer.Context,
+    path: Annotated[
+        Path, typer.Argument(help="A photo file, or a folder whose new photos are matched by time.")
+    ],
+    inspection: InspectionOption,
+    tag: Annotated[
+        str | None, typer.Option("--tag", help="Component the photo shows (a single file).")
+    ] = None,
+    caption: Annotated[str, typer.Option("--caption", help="Caption for a single file.")] = "",
+    db: DbOption = None,
+) -> None:
+    """Attach a photo to the visit, or a folder's new photos to the readings nearest in time."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        component = lookups.component_by_tag(store, visit.id, tag) if tag else None
+        try:
+            matches = attach_photos(
+                store, visit.id, path, component.id if component else None, caption
+            )
+        except WalkdownError as exc:
+            lookups.refused(exc)
+        tags = {c.id: c.tag for c in store.select(Component, "site_id = ?", [visit.site_id])}
+    for match in matches:
+        where = tags.get(match.component_id or "", "the inspection only")
+        typer.echo(f"{match.photo.original_name} → {where}")
+    typer.echo(f"{len(matches)} photo(s) attached.")
+
+
+def register(app: typer.Typer) -> None:
+    app.add_typer(reading_app, name="reading")
+    app.command("grade")(grade_command)
+    app.add_typer(photo_app, name="photo")

@@ -1,0 +1,254 @@
+"""`inspectkit inspection start|show|missing|finish`: a walkdown from the command line."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+from datetime import date, datetime
+from enum import StrEnum
+from typing import Annotated, Any
+
+import typer
+
+from inspectkit.cli import lookups
+from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
+from inspectkit.cli.entries import outcome_json, outcome_line
+from inspectkit.model import Inspection, Site
+from inspectkit.tui.preferences import Preferences
+from inspectkit.walkdown import (
+    Missing,
+    SavedEntries,
+    Stop,
+    WalkdownError,
+    finish_inspection,
+    missing_for_completion,
+    saved_entries,
+    start_inspection,
+    walk_for,
+)
+
+inspection_app = typer.Typer(
+    help="Inspections: start or continue a walkdown, see it, finish it.", no_args_is_help=True
+)
+
+IdArgument = Annotated[str, typer.Argument(help="Inspection id (or its start).")]
+
+
+class StartKind(StrEnum):
+    """The kinds a walkdown starts as; an amendment starts from a signed report instead."""
+
+    VISUAL = "visual"
+    COMPLETE = "complete"
+    POST_STRIKE = "post_strike"
+    INITIAL = "initial"
+
+
+@inspection_app.command("start")
+def start(
+    ctx: typer.Context,
+    site: Annotated[str, typer.Option("--site", help="Site name, start of name, or id.")],
+    kind: Annotated[StartKind, typer.Option("--kind", help="Why the visit is made.")],
+    inspector: Annotated[
+        str | None,
+        typer.Option("--inspector", help="Name or id (default: the one chosen in Settings)."),
+    ] = None,
+    day: Annotated[
+        datetime | None,
+        typer.Option(
+            "--date",
+            formats=["%Y-%m-%d"],
+            help="Day of the visit (default: today).",
+            show_default=False,
+        ),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """Start a walkdown and print its id; a site's open draft is continued, never doubled."""
+    with open_store(ctx, db) as store:
+        found = lookups.site(store, site)
+        inspector_id = (
+            lookups.inspector(store, inspector).id
+            if inspector is not None
+            else Preferences(store).inspector_id
+        )
+        try:
+            visit = start_inspection(
+                store,
+                found.id,
+                kind.value,
+                inspector_id,
+                day.date() if day is not None else date.today(),
+            )
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    if visit.kind.value != kind.value or (day is not None and visit.date != day.date()):
+        typer.echo(
+            f"Continuing the open {visit.kind.value} draft of {visit.date.isoformat()}; "
+            "finish it before starting another.",
+            err=True,
+        )
+    typer.echo(visit.id)
+
+
+@inspection_app.command("show")
+def show(
+    ctx: typer.Context, inspection: IdArgument, db: DbOption = None, json_out: JsonOption = False
+) -> None:
+    """The walk in order, with what is entered and saved and each reading's verdict."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        site = store.get(Site, visit.site_id)
+        try:
+            stops = walk_for(store, visit.id)
+            saved = saved_entries(store, visit.id)
+            missing = missing_for_completion(store, visit.id)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    name = site.name if site else visit.site_id
+    if json_out:
+        emit_json(
+            {
+                "inspection": _visit_json(visit, name),
+                "stops": [_stop_json(stop, saved) for stop in stops],
+                "missing": [_missing_json(m) for m in missing],
+            }
+        )
+        return
+    for line in _render(visit, name, stops, saved, missing):
+        typer.echo(line)
+
+
+@inspection_app.command("missing")
+def missing(
+    ctx: typer.Context, inspection: IdArgument, db: DbOption = None, json_out: JsonOption = False
+) -> None:
+    """What the visit still lacks before it is complete; exit 1 while anything is missing."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        try:
+            items = missing_for_completion(store, visit.id)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    if json_out:
+        emit_json([_missing_json(m) for m in items])
+    else:
+        for line in _missing_lines(items):
+            typer.echo(line)
+    raise typer.Exit(int(Exit.ACT if items else Exit.OK))
+
+
+@inspection_app.command("finish")
+def finish(
+    ctx: typer.Context,
+    inspection: IdArgument,
+    anyway: Annotated[
+        bool, typer.Option("--anyway", help="Mark it complete even though something is missing.")
+    ] = False,
+    db: DbOption = None,
+) -> None:
+    """List what is missing, then mark the visit complete; exit 1 (unchanged) if something is."""
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        try:
+            items = missing_for_completion(store, visit.id)
+            for line in _missing_lines(items):
+                typer.echo(line)
+            if items and not anyway:
+                typer.echo("Not marked complete: enter what is missing, or give --anyway.")
+                raise typer.Exit(int(Exit.ACT))
+            finish_inspection(store, visit.id)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    typer.echo(f"Inspection {visit.id} marked complete.")
+
+
+# ------------------------------------------------------------------ output
+
+
+def _missing_lines(items: list[Missing]) -> Iterator[str]:
+    if not items:
+        yield "Nothing missing: every component is graded and every test taken."
+        return
+    yield f"Still missing ({len(items)}):"
+    for item in items:
+        yield f"  • {item.what}"
+
+
+def _missing_json(item: Missing) -> dict[str, Any]:
+    return {"tag": item.component.tag if item.component else None, "what": item.what}
+
+
+def _visit_json(visit: Inspection, site_name: str) -> dict[str, Any]:
+    return {
+        "id": visit.id,
+        "site_id": visit.site_id,
+        "site": site_name,
+        "kind": visit.kind.value,
+        "date": visit.date.isoformat(),
+        "state": visit.state.value,
+        "finished": visit.finished,
+        "soil": visit.soil.value if visit.soil else None,
+        "inspector_id": visit.inspector_id,
+    }
+
+
+def _stop_json(stop: Stop, saved: SavedEntries) -> dict[str, Any]:
+    component = stop.component
+    finding = saved.findings.get(component.id)
+    return {
+        "tag": component.tag,
+        "component_id": component.id,
+        "kind": component.kind.value,
+        "depth": stop.depth,
+        "readings": [
+            {"quantity": q.value, **outcome_json(outcome)}
+            if (outcome := saved.readings.get((component.id, q)))
+            else {"quantity": q.value, "reading_id": None}
+            for q in stop.quantities
+        ],
+        "finding": None
+        if finding is None
+        else {
+            "id": finding.id,
+            "grade": finding.grade.value,
+            "text": finding.text,
+            "remedial_action": finding.remedial_action,
+            "due_by": finding.due_by.isoformat() if finding.due_by else None,
+        },
+        "photos": saved.photos.get(component.id, 0),
+    }
+
+
+def _render(
+    visit: Inspection,
+    site_name: str,
+    stops: list[Stop],
+    saved: SavedEntries,
+    missing: list[Missing],
+) -> Iterator[str]:
+    state = "finished" if visit.finished else visit.state.value
+    yield (
+        f"{site_name} · {visit.kind.value.replace('_', '-')} inspection {visit.date.isoformat()}"
+        f" · {state} · {visit.id}"
+    )
+    for stop in stops:
+        component = stop.component
+        indent = "  " * stop.depth
+        finding = saved.findings.get(component.id)
+        graded = finding.grade.value.replace("_", " ") if finding else "not graded"
+        if finding and finding.text:
+            graded += f": {finding.text}"
+        photos = saved.photos.get(component.id, 0)
+        extra = f" · {photos} photo(s)" if photos else ""
+        tag = component.tag.ljust(12 - 2 * stop.depth)
+        yield f"{indent}{tag} {component.kind.label:<26} {graded}{extra}"
+        for quantity in stop.quantities:
+            outcome = saved.readings.get((component.id, quantity))
+            if outcome is None:
+                yield f"{indent}  · {quantity.label}: not entered"
+            else:
+                yield f"{indent}  · {outcome_line('', outcome)}"
+    yield f"{len(missing)} thing(s) missing." if missing else "Nothing missing."
+
+
+def register(app: typer.Typer) -> None:
+    app.add_typer(inspection_app, name="inspection")
