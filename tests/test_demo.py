@@ -446,6 +446,7 @@ def test_cli_writes_the_demo_and_lists_its_sites(tmp_path: Path) -> None:
     assert len(sites) == len(load_scenario().site)
     assert all({"id", "name", "protection_level"} <= set(s) for s in sites)
     assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV"}
+    assert "fuel depot" in " ".join(s["use"] for s in sites) and all(s["installer"] for s in sites)
     again = runner.invoke(app, ["demo", "--out", str(out)])
     assert again.exit_code == 2
 

@@ -20,6 +20,8 @@ def sites(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = False)
                     "name": s.site.name,
                     "client": s.site.client,
                     "town": s.site.town,
+                    "use": s.site.use,
+                    "installer": s.site.installer,
                     "protection_level": s.site.protection_level.value,
                     "profile": s.site.profile,
                     "critical": s.site.critical,
