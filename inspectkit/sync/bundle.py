@@ -35,6 +35,7 @@ from pydantic import ValidationError
 
 from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
 from inspectkit.store import Store
+from inspectkit.store.exchange import site_rows
 from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import STORED, to_row
 from inspectkit.sync.guard import (
@@ -74,18 +75,6 @@ REFERENCES: dict[str, dict[str, str]] = {
     "photo": {"inspection_id": "inspection", "component_id": "component"},
 }
 
-_IN_SITE = "inspection_id IN (SELECT id FROM inspection WHERE site_id = :site)"
-#: How each table's rows of one site are chosen.
-_SITE_WHERE = {
-    "site": "id = :site",
-    "component": "site_id = :site",
-    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE})",
-    "inspector": "id IN (SELECT inspector_id FROM inspection WHERE site_id = :site)",
-    "inspection": "site_id = :site",
-    "reading": _IN_SITE,
-    "finding": _IN_SITE,
-    "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
-}
 
 
 @dataclass(frozen=True)
@@ -127,28 +116,6 @@ def database_id(store: Store) -> str:
         value = new_id()
         store.set_setting(DATABASE_ID_SETTING, value)
     return value
-
-
-def site_rows(
-    store: Store, site_id: str, since: date | None = None
-) -> dict[str, list[dict[str, Any]]]:
-    """A site's rows by table, as stored; with `since`, only those changed from that day on.
-
-    The site's own row is always included, so a bundle always names its site.
-    """
-    rows: dict[str, list[dict[str, Any]]] = {}
-    for model in RECORD_TYPES:
-        where = f"({_SITE_WHERE[model.table]})"
-        params: dict[str, Any] = {"site": site_id}
-        if since is not None and model.table != "site":
-            where += " AND updated_at >= :since"
-            params["since"] = since.isoformat()
-        cursor = store.db.execute(
-            f"SELECT * FROM [{model.table}] WHERE {where} ORDER BY created_at, id", params
-        )
-        names = [d[0] for d in cursor.description]
-        rows[model.table] = [dict(zip(names, values, strict=True)) for values in cursor]
-    return rows
 
 
 def export_bundle(

@@ -12,6 +12,7 @@ from typing import Any, TextIO
 
 from inspectkit.model import Quantity
 from inspectkit.store import Store
+from inspectkit.store.exchange import export_rows, site_positions
 
 READING_FIELDS = (
     "site", "inspection_date", "inspection_kind", "component_tag", "component_kind",
@@ -26,48 +27,16 @@ FINDING_FIELDS = (
 )  # fmt: skip
 _BOOLEANS = {"over_range", "unreliable"}
 
-_READINGS_SQL = """
-SELECT s.name AS site, i.date AS inspection_date, i.kind AS inspection_kind,
-       c.tag AS component_tag, c.kind AS component_kind, r.quantity, r.value,
-       r.over_range, r.method, r.joint_state, r.taken_at, r.soil, r.unreliable,
-       m.serial AS instrument_serial, r.note, s.id AS site_id, i.id AS inspection_id,
-       c.id AS component_id, r.id AS reading_id
-FROM reading r
-JOIN inspection i ON i.id = r.inspection_id
-JOIN site s ON s.id = i.site_id
-JOIN component c ON c.id = r.component_id
-LEFT JOIN instrument m ON m.id = r.instrument_id
-WHERE :site IS NULL OR s.id = :site
-ORDER BY s.name, r.taken_at, c.tag
-"""
-
-_FINDINGS_SQL = """
-SELECT s.name AS site, i.date AS inspection_date, i.kind AS inspection_kind,
-       c.tag AS component_tag, f.grade, f.category, f.text, f.remedial_action, f.due_by,
-       f.resolved_by, s.id AS site_id, i.id AS inspection_id, c.id AS component_id,
-       f.id AS finding_id
-FROM finding f
-JOIN inspection i ON i.id = f.inspection_id
-JOIN site s ON s.id = i.site_id
-LEFT JOIN component c ON c.id = f.component_id
-WHERE :site IS NULL OR s.id = :site
-ORDER BY s.name, i.date, c.tag
-"""
-
-
-def _query(store: Store, sql: str, site_id: str | None) -> list[dict[str, Any]]:
-    cursor = store.db.execute(sql, {"site": site_id})
-    names = [d[0] for d in cursor.description]
-    rows = []
-    for values in cursor:
-        row = dict(zip(names, values, strict=True))
-        rows.append({k: bool(v) if k in _BOOLEANS else v for k, v in row.items()})
-    return rows
+def _query_rows(store: Store, which: str, site_id: str | None) -> list[dict[str, Any]]:
+    return [
+        {k: bool(v) if k in _BOOLEANS else v for k, v in row.items()}
+        for row in export_rows(store, which, site_id)
+    ]
 
 
 def reading_rows(store: Store, site_id: str | None = None) -> list[dict[str, Any]]:
     """Every reading of a site (or of all sites), with its site, visit, component and unit."""
-    rows = _query(store, _READINGS_SQL, site_id)
+    rows = _query_rows(store, "readings", site_id)
     for row in rows:
         row["unit"] = Quantity(row["quantity"]).unit
     return [{name: row[name] for name in READING_FIELDS} for row in rows]
@@ -75,7 +44,7 @@ def reading_rows(store: Store, site_id: str | None = None) -> list[dict[str, Any
 
 def finding_rows(store: Store, site_id: str | None = None) -> list[dict[str, Any]]:
     """Every finding of a site (or of all sites), with its site, visit and component tag."""
-    return _query(store, _FINDINGS_SQL, site_id)
+    return _query_rows(store, "findings", site_id)
 
 
 def write_csv(rows: list[dict[str, Any]], fields: tuple[str, ...], out: TextIO) -> None:
@@ -102,10 +71,7 @@ def sites_geojson(store: Store) -> tuple[dict[str, Any], list[str]]:
     """
     features = []
     unlocated = []
-    cursor = store.db.execute(
-        "SELECT id, name, client, address, town, latitude, longitude, protection_level, "
-        "profile, critical, explosive_risk FROM site ORDER BY name COLLATE NOCASE"
-    )
+    cursor = site_positions(store)
     for (site_id, name, client, address, town, lat, lon, level, profile, critical,
          explosive) in cursor:  # fmt: skip
         geometry = None

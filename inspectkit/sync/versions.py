@@ -14,9 +14,8 @@ from collections.abc import Sequence
 from typing import Any
 
 from inspectkit.store import Store
+from inspectkit.store.exchange import audit_versions
 from inspectkit.store.rows import canonical
-
-_CHUNK = 500
 
 
 def version_hash(row: dict[str, Any]) -> str:
@@ -36,17 +35,9 @@ def known_versions(store: Store, table: str, ids: Sequence[str]) -> dict[str, se
     first included, and a conflict row holds both sides.
     """
     known: dict[str, set[str]] = {}
-    ids = list(ids)
-    for start in range(0, len(ids), _CHUNK):
-        chunk = ids[start : start + _CHUNK]
-        marks = ",".join("?" * len(chunk))
-        for row_id, before, after in store.db.execute(
-            "SELECT row_id, before, after FROM audit WHERE table_name = ? "
-            f"AND before IS NOT NULL AND row_id IN ({marks})",
-            [table, *chunk],
-        ):
-            versions = known.setdefault(row_id, set())
-            for text in (before, after):
-                if text is not None:
-                    versions.add(_text_hash(text))
+    for row_id, before, after in audit_versions(store, table, ids):
+        versions = known.setdefault(row_id, set())
+        for text in (before, after):
+            if text is not None:
+                versions.add(_text_hash(text))
     return known
