@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import sqlite3
 from datetime import datetime
 from pathlib import Path
 from typing import Annotated
@@ -10,6 +9,7 @@ from typing import Annotated
 import typer
 
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.store import StoreError
 
 
 def default_backup_path(db_path: Path, now: datetime) -> Path:
@@ -34,13 +34,11 @@ def backup(
             fail(f"{target} exists already; give another -o FILE")
         if target.resolve() == store.path.resolve():
             fail("-o names the database itself; give another file")
-        store.backup(target)
+        try:
+            store.backup(target)
+        except StoreError as exc:
+            fail(str(exc), Exit.ACT)
         photos = store.photos_dir
-    with sqlite3.connect(target) as check:
-        status = check.execute("PRAGMA quick_check").fetchone()[0]
-    check.close()
-    if status != "ok":
-        fail(f"the backup {target} failed its check ({status}); run `inspectkit doctor`", Exit.ACT)
     typer.echo(f"Backed up to {target} (checked: ok).")
     if photos.is_dir():
         typer.echo(f"Photos are not in the backup: copy the folder {photos} as well.")

@@ -133,11 +133,24 @@ class Store:
         apply_migrations(self.db, upto=SCHEMA_VERSION)
 
     def backup(self, target: Path) -> Path:
-        """A consistent copy through SQLite's online backup API, safe while others write."""
+        """A consistent copy through SQLite's online backup API, safe while others write.
+
+        The copy is checked (`quick_check`) before it is called a backup.
+
+        Raises:
+            StoreError: the copy failed its check.
+        """
         target.parent.mkdir(parents=True, exist_ok=True)
-        with sqlite3.connect(str(target)) as out:
+        out = sqlite3.connect(str(target))
+        try:
             self.db.conn.backup(out)
-        out.close()
+            status = out.execute("PRAGMA quick_check").fetchone()[0]
+        finally:
+            out.close()
+        if status != "ok":
+            raise StoreError(
+                f"the backup {target} failed its check ({status}); run `inspectkit doctor`"
+            )
         return target
 
     # ------------------------------------------------------------ transactions
