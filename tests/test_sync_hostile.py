@@ -117,6 +117,12 @@ def _unknown_version(tmp, members):
     return _write(tmp / "b.zip", members, manifest=manifest)
 
 
+def _other_schema(tmp, members):
+    manifest = json.loads(members["manifest.json"])
+    manifest["schema"] = manifest["schema"] - 1
+    return _write(tmp / "b.zip", members, manifest=manifest)
+
+
 def _missing_site(tmp, members):
     content = _records(members)
     content["tables"]["site"] = []
@@ -190,6 +196,7 @@ CASES = {
     "zip bomb": (_zip_bomb, "possible zip bomb"),
     "malformed JSON": (_malformed_json, r"records.json is not valid JSON \(line 1"),
     "unknown version": (_unknown_version, "format version 99 is unknown"),
+    "other schema": (_other_schema, "records are in schema .* this database is in schema"),
     "missing site": (_missing_site, "refers to site .* neither in the bundle nor in this"),
     "invalid record": (_invalid_record, "(?s)reading record 1 .* value -3 Ω is negative"),
     "reworded record": (_reworded_record, "not in the stored form"),

@@ -157,6 +157,7 @@ def export_bundle(
     manifest = {
         "format": FORMAT,
         "version": VERSION,
+        "schema": store.schema_version(),
         "origin": database_id(store),
         "site_id": site_id,
         "site_name": rows["site"][0]["name"],
@@ -219,6 +220,8 @@ def read_bundle(
         with zipfile.ZipFile(path) as archive:
             infos = check_members(archive, limits)
             manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
+            if ours is not None:
+                _same_schema(manifest, ours.schema_version())
             records = _read(archive, RECORDS, limits)
             _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
             rows, checked, history, same = _records(records, manifest, ours)
@@ -235,6 +238,17 @@ def read_bundle(
             f"{path}: cannot be read or unpacked ({exc}); nothing was written"
         ) from exc
     return Bundle(manifest, rows, checked, history, photos, same)
+
+
+def _same_schema(manifest: dict[str, Any], ours: int) -> None:
+    """Rows travel in the exporter's schema: both databases must be of the same one."""
+    theirs = manifest.get("schema")
+    if theirs != ours:
+        raise BundleError(
+            f"the bundle's records are in schema {theirs}, this database is in schema {ours}: "
+            "update inspectkit on both machines to the same version, open both databases "
+            "once (which migrates them), and export again"
+        )
 
 
 def _read(archive: zipfile.ZipFile, name: str, limits: Limits) -> bytes:
