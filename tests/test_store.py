@@ -304,3 +304,12 @@ def test_settings_are_kept_and_audited(store: Store) -> None:
     store.set_setting("cautions_acknowledged", "2026-06-02")
     assert store.get_setting("cautions_acknowledged") == "2026-06-02"
     assert store.db["audit"].count == 2
+
+
+def test_rows_given_with_records_must_match_them_one_to_one(store: Store) -> None:
+    site = Site(name="Harrowgate Mill", protection_level="II")
+    with pytest.raises(ValueError, match="one per record"):
+        store.save_all([site], rows=[])
+    with pytest.raises(ValueError, match="touch=False"):
+        store.save_all([site], rows=[{}])
+    assert store.select(Site) == []
