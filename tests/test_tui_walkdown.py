@@ -23,6 +23,7 @@ from inspectkit.model import (
     InspectionKind,
     Inspector,
     Instrument,
+    Method,
     Photo,
     Quantity,
     Reading,
@@ -359,3 +360,121 @@ async def test_a_bad_due_date_is_marked_on_its_own_field(walk_db: tuple[Path, st
         assert "✓ saved" in status_of(text) and "✓ saved" in status_of(due)
         [finding] = app.store.select(Finding, "inspection_id = ?", [visit_id])
         assert (finding.text, finding.due_by) == ("fixing loose", date(2026, 7, 31))
+
+
+# ------------------------------------------------------- method and doubt
+
+
+async def entry_at(screen: WalkdownScreen, tag: str, quantity: Quantity) -> ReadingEntry:
+    """Go to the component with that tag and give its entry for the quantity."""
+    await screen.show_stop(next(i for i, s in enumerate(screen.stops) if s.component.tag == tag))
+    return screen.query_one(f"#q-{quantity.value}", ReadingEntry)
+
+
+def saved_reading(app: WalkHarness, visit_id: str, quantity: Quantity) -> Reading:
+    [reading] = app.store.select(
+        Reading, "inspection_id = ? AND quantity = ?", [visit_id, quantity.value]
+    )
+    return reading
+
+
+async def test_choosing_the_method_saves_it_at_once(walk_db: tuple[Path, str]) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+        await type_into(pilot, entry, "4.2")
+        reading = saved_reading(app, visit_id, Quantity.EARTH_ISOLATED)
+        assert reading.method is Method.FALL_OF_POTENTIAL_3P  # the usual one unless chosen
+        select = entry.method_select
+        assert select is not None
+        # An isolated electrode is measured 3- or 4-pole; a clamp-on meter needs a parallel
+        # network, so it is not offered here (common practice; IEEE Std 81 fall-of-potential).
+        assert entry.methods == [Method.FALL_OF_POTENTIAL_3P, Method.FOUR_POLE]
+        select.focus()
+        await pilot.press("enter", "down", "enter")
+        await pilot.pause()
+        reading = saved_reading(app, visit_id, Quantity.EARTH_ISOLATED)
+        assert reading.method is Method.FOUR_POLE and reading.value == pytest.approx(4.2)
+        assert "PASS 4.2 Ω ≤ 10 Ω" in status_of(entry) and "✓ saved" in status_of(entry)
+
+
+async def test_a_method_chosen_before_the_value_is_saved_with_it(
+    walk_db: tuple[Path, str],
+) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "TJ-01", Quantity.EARTH_COMBINED)
+        select = entry.method_select
+        assert select is not None
+        select.value = Method.CLAMP_ON.value  # the combined system allows a clamp-on meter
+        await pilot.pause()
+        assert "saved with the value" in status_of(entry)
+        assert app.store.select(Reading, "inspection_id = ?", [visit_id]) == []
+        await type_into(pilot, entry, "3.9")
+        assert saved_reading(app, visit_id, Quantity.EARTH_COMBINED).method is Method.CLAMP_ON
+
+
+async def test_continuity_offers_two_and_four_wire(walk_db: tuple[Path, str]) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "DC-01", Quantity.CONTINUITY)
+        select = entry.method_select
+        assert select is not None
+        assert entry.methods == [Method.LOW_OHM_2W, Method.LOW_OHM_4W]
+        assert select.value == Method.LOW_OHM_4W.value  # 4-wire unless chosen (common practice)
+        await type_into(pilot, entry, "0.12")
+        select.value = Method.LOW_OHM_2W.value
+        await pilot.pause()
+        assert saved_reading(app, visit_id, Quantity.CONTINUITY).method is Method.LOW_OHM_2W
+        counter = screen.stops[-1]
+        await screen.show_stop(len(screen.stops) - 1)
+        assert counter.component.tag == "SC-01"
+        assert screen.query_one(ReadingEntry).method_select is None  # a counter is just read
+
+
+async def test_marking_a_reading_doubtful_saves_it_and_the_verdict_says_so(
+    walk_db: tuple[Path, str],
+) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+        await type_into(pilot, entry, "4.2")
+        assert "PASS 4.2 Ω ≤ 10 Ω" in status_of(entry)
+        entry.doubt_box.focus()
+        await pilot.press("space")
+        await pilot.pause()
+        assert saved_reading(app, visit_id, Quantity.EARTH_ISOLATED).unreliable
+        assert "WATCH 4.2 Ω ≤ 10 Ω, doubtful" in status_of(entry)
+        assert "marked doubtful" in status_of(entry)
+        assert "WATCH" in str(screen.stop_list.get_option_at_index(screen.index).prompt)
+        await pilot.press("space")
+        await pilot.pause()
+        assert not saved_reading(app, visit_id, Quantity.EARTH_ISOLATED).unreliable
+        assert "PASS 4.2 Ω ≤ 10 Ω" in status_of(entry) and "doubtful" not in status_of(entry)
+
+
+async def test_enter_on_a_value_goes_on_past_its_method_and_doubt(
+    walk_db: tuple[Path, str],
+) -> None:
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+        await type_into(pilot, entry, "4.2", keys=True)
+        await pilot.pause()
+        assert app.focused is screen.query_one("#q-soil_resistivity", ReadingEntry).input
+
+
+async def test_a_continued_draft_shows_the_method_and_doubt_saved(
+    walk_db: tuple[Path, str],
+) -> None:
+    path, visit_id = walk_db
+    with Store.open(path) as store:
+        er = next(s.component for s in walk_for(store, visit_id) if s.component.tag == "ER-01")
+        record_reading(
+            store, visit_id, er.id, "earth_isolated", "4.4", Method.FOUR_POLE, unreliable=True
+        )
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+        assert entry.method_select is not None
+        assert entry.method_select.value == Method.FOUR_POLE.value
+        assert entry.doubt_box.value is True
+        assert "doubtful" in status_of(entry)

@@ -17,6 +17,7 @@ from inspectkit.model import (
     Grade,
     Inspection,
     Instrument,
+    Method,
     Quantity,
     Severity,
     SoilCondition,
@@ -302,7 +303,9 @@ class WalkdownScreen(Screen[None]):
         entries = [
             ReadingEntry(
                 quantity,
-                lambda text, q=quantity: self._save_reading(q, text),
+                lambda text, method, doubtful, q=quantity: self._save_reading(
+                    q, text, method, doubtful
+                ),
                 outcome=self.saved.readings.get((component.id, quantity)),
                 id=f"q-{quantity.value}",
             )
@@ -361,7 +364,9 @@ class WalkdownScreen(Screen[None]):
 
     # -------------------------------------------------------------- saving
 
-    def _save_reading(self, quantity: Quantity, text: str) -> ReadingOutcome:
+    def _save_reading(
+        self, quantity: Quantity, text: str, method: Method, doubtful: bool
+    ) -> ReadingOutcome:
         soil = self.query_one("#soil", Select).value
         instrument = self.query_one("#instrument", Select).value
         outcome = record_reading(
@@ -370,8 +375,10 @@ class WalkdownScreen(Screen[None]):
             self.stop.component.id,
             quantity,
             text,
+            method=method,
             instrument_id=None if instrument is Select.NULL else str(instrument),
             soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
+            unreliable=doubtful,
             context=self.context,
         )
         self.saved.readings[(self.stop.component.id, quantity)] = outcome
