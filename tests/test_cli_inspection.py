@@ -263,7 +263,29 @@ def test_start_continues_the_open_draft(demo: Path) -> None:
     again = run(demo, "inspection", "start", "--site", SITE, "--kind", "visual")
     assert again.exit_code == 0
     assert again.stdout.strip() == first
-    assert "Continuing the open complete draft of 2026-06-01" in again.stderr
+    assert "Continuing the open complete draft of 2026-06-01; finish it" in again.stderr
+    same = run(demo, "inspection", "start", "--site", SITE, "--kind", "complete")
+    assert same.stdout.strip() == first and "Continuing" in same.stderr
+    fresh = run(demo, "inspection", "start", "--site", "Aldermere", "--kind", "visual")
+    assert fresh.exit_code == 0 and "Continuing" not in fresh.stderr  # a new draft
+
+
+def test_readings_add_is_the_same_command(demo: Path) -> None:
+    visit = start(demo)
+    result = run(
+        demo,
+        "readings",
+        "add",
+        "--inspection",
+        visit,
+        "--tag",
+        "E-01",
+        "--quantity",
+        "earth_isolated",
+        "4.2",
+    )
+    assert result.exit_code == 0, result.output
+    assert "PASS 4.2 Ω ≤ 10 Ω" in result.stdout
 
 
 def test_a_start_of_the_id_is_enough(demo: Path) -> None:

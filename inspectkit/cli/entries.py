@@ -10,6 +10,7 @@ import typer
 
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
+from inspectkit.cli.readings import readings_app
 from inspectkit.model import Component, Grade, Method, Quantity, Severity, SoilCondition
 from inspectkit.tui.preferences import Preferences
 from inspectkit.units import format_value
@@ -22,7 +23,6 @@ from inspectkit.walkdown import (
     record_reading,
 )
 
-reading_app = typer.Typer(help="Readings: enter one as the screen would.", no_args_is_help=True)
 photo_app = typer.Typer(
     help="Photos: attach one, or a folder matched by time.", no_args_is_help=True
 )
@@ -65,7 +65,6 @@ def outcome_json(outcome: ReadingOutcome) -> dict[str, Any]:
     }
 
 
-@reading_app.command("add")
 def add_reading(
     ctx: typer.Context,
     value: Annotated[str, typer.Argument(help="What the instrument showed: 3.9, 180 mΩ, OL.")],
@@ -203,6 +202,8 @@ def add_photo(
 
 
 def register(app: typer.Typer) -> None:
-    app.add_typer(reading_app, name="reading")
+    # `readings add` beside `readings import`; `reading add` is taken too, as people type it.
+    readings_app.command("add")(add_reading)
+    app.add_typer(readings_app, name="reading", hidden=True)
     app.command("grade")(grade_command)
     app.add_typer(photo_app, name="photo")

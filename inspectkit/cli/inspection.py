@@ -70,6 +70,7 @@ def start(
             if inspector is not None
             else Preferences(store).inspector_id
         )
+        known = {v.id for v in store.select(Inspection, "site_id = ?", [found.id])}
         try:
             visit = start_inspection(
                 store,
@@ -80,10 +81,11 @@ def start(
             )
         except WalkdownError as exc:
             lookups.refused(exc)
-    if visit.kind.value != kind.value or (day is not None and visit.date != day.date()):
+    if visit.id in known:
+        other = visit.kind.value != kind.value or (day is not None and visit.date != day.date())
         typer.echo(
-            f"Continuing the open {visit.kind.value} draft of {visit.date.isoformat()}; "
-            "finish it before starting another.",
+            f"Continuing the open {visit.kind.value} draft of {visit.date.isoformat()}"
+            + ("; finish it before starting another." if other else "."),
             err=True,
         )
     typer.echo(visit.id)

@@ -12,7 +12,8 @@ from inspectkit.cli.common import DbOption, JsonOption, emit_json, fail, open_st
 from inspectkit.model import Instrument, Method, Quantity
 
 readings_app = typer.Typer(
-    help="Readings: import them from an instrument's CSV file.", no_args_is_help=True
+    help="Readings: add one as the walkdown does, or import an instrument's CSV file.",
+    no_args_is_help=True,
 )
 
 
