@@ -218,7 +218,7 @@ async def test_a_site_the_engine_fails_on_shows_error_and_the_rest_are_judged(
 
     def failing_for_the_school(records, profile, today):  # type: ignore[no-untyped-def]
         if records.site.name == "Mill Lane School":
-            raise ZeroDivisionError("division by zero in a trend")
+            raise ZeroDivisionError("division by zero in a trend [bug]")
         return real(records, profile, today)
 
     monkeypatch.setattr(site_state, "assess", failing_for_the_school)
@@ -240,7 +240,14 @@ async def test_a_site_the_engine_fails_on_shows_error_and_the_rest_are_judged(
         assert any("Mill Lane School could not be judged" in m and "division by zero" in m
                    for m in told)
         status = app.screen.query_one("#status")
-        assert "ZeroDivisionError: division by zero in a trend" in str(status.render())
+        assert "ZeroDivisionError: division by zero in a trend [bug]" in str(status.render())
+        await pilot.press("enter")  # the site screen says why too, and does not fail
+        await pilot.pause()
+        assert isinstance(app.screen, SiteScreen)
+        summary = str(app.screen.query_one("#site-summary").render())
+        assert "error: ZeroDivisionError" in summary
+        await pilot.press("escape")
+        await settled(pilot)
         await pilot.press("down")
         assert "sorted by state" in str(status.render())
 

@@ -90,13 +90,28 @@ class ProfileCache:
         return self._problems.get(name, "")
 
 
-def assess_site(store: Store, site_id: str, today: date, profiles: ProfileCache) -> SiteState:
-    """Load one site's records and judge them."""
-    records = load_site_records(store, site_id)
+def judge(records: SiteRecords, today: date, profiles: ProfileCache) -> SiteState:
+    """The site's state; NO_PROFILE or ERROR, with the reason, when it cannot be judged.
+
+    Never raises: a failure in the engine on one site's data (or a bug) is that
+    site's state, so a list or a screen showing it carries on.
+    """
     profile = profiles.get(records.site.profile)
     if profile is None:
         return SiteState(NO_PROFILE, reason=profiles.problem(records.site.profile))
-    return assess(records, profile, today)
+    try:
+        return assess(records, profile, today)
+    except Exception as exc:  # noqa: BLE001 - shown on that site alone, see above
+        return _failed(exc)
+
+
+def _failed(exc: Exception) -> SiteState:
+    return SiteState(ERROR, reason=f"{type(exc).__name__}: {exc}")
+
+
+def assess_site(store: Store, site_id: str, today: date, profiles: ProfileCache) -> SiteState:
+    """Load one site's records and judge them."""
+    return judge(load_site_records(store, site_id), today, profiles)
 
 
 def assess_all(
@@ -124,8 +139,8 @@ def assess_all(
                 return
             try:
                 state = assess_site(store, site_id, today, profiles)
-            except Exception as exc:  # noqa: BLE001 - any failure is shown on that site alone
-                state = SiteState(ERROR, reason=f"{type(exc).__name__}: {exc}")
+            except Exception as exc:  # noqa: BLE001 - records that do not load: that site alone
+                state = _failed(exc)
             yield site_id, state
 
 

@@ -31,7 +31,7 @@ from inspectkit.tui.site_state import (
     NO_PROFILE,
     ProfileCache,
     SiteState,
-    assess,
+    judge,
     reading_verdicts,
 )
 from inspectkit.tui.widgets.sparkline import sparkline
@@ -142,8 +142,7 @@ class SiteScreen(Screen[None]):
         """Read the site again and judge it; quick for one site, so done on the spot."""
         store, today = self.app.store, self.app.today
         self.records = records = load_site_records(store, self.site_id)
-        profile = ProfileCache().get(records.site.profile)
-        self.state = assess(records, profile, today) if profile else SiteState(NO_PROFILE)
+        self.state = judge(records, today, ProfileCache())
         site = records.site
         flags = [
             f for f, on in (("critical", site.critical), ("explosive risk", site.explosive_risk))
@@ -156,8 +155,7 @@ class SiteScreen(Screen[None]):
         )
         check = self.state.check
         self.query_one("#site-summary", Static).update(
-            check.summary if check else f"profile {site.profile!r} cannot be read; pick another "
-            "in Settings (F4)"
+            check.summary if check else _not_judged(self.state)
         )
         verdicts = reading_verdicts(check, records) if check else {}
         self._fill_tree(records, verdicts, today)
@@ -410,3 +408,9 @@ class SiteScreen(Screen[None]):
             ),
             answered,
         )
+
+
+def _not_judged(state: SiteState) -> Text:
+    """Why the site has no verdict, and for a profile that cannot be read, the way out."""
+    hint = "; pick another profile in Settings (F4)" if state.word == NO_PROFILE else ""
+    return Text(f"{state.word}: {state.reason}{hint}")  # Text: a reason is never markup

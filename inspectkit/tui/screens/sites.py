@@ -231,6 +231,7 @@ class SitesScreen(Screen[None]):
             title="Site not judged",
             severity="error",
             timeout=10,
+            markup=False,
         )
 
     def refresh_states(self, states: dict[str, SiteState]) -> None:
