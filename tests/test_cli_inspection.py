@@ -286,6 +286,8 @@ def test_readings_add_is_the_same_command(demo: Path) -> None:
     )
     assert result.exit_code == 0, result.output
     assert "PASS 4.2 Ω ≤ 10 Ω" in result.stdout
+    four = add(demo, visit, "E-01", "earth_isolated", "4.3", "--method", "four_pole")
+    assert four.stdout.rstrip().endswith("· by four_pole")
 
 
 def test_a_start_of_the_id_is_enough(demo: Path) -> None:
@@ -308,6 +310,7 @@ def test_a_doubtful_reading_is_kept_but_not_a_pass(demo: Path) -> None:
     result = add(demo, visit, "E-01", "earth_isolated", "4.2", "--doubtful", "--json")
     assert result.exit_code == 0, result.output
     outcome = json.loads(result.stdout)
+    assert outcome["method"] == "fall_of_potential_3p"
     assert outcome["unreliable"] is True and outcome["severity"] == "watch"
     assert outcome["verdict"].startswith("WATCH 4.2 Ω ≤ 10 Ω") and "doubtful" in outcome["verdict"]
     assert any("marked doubtful" in m for m in outcome["messages"])

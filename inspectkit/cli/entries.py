@@ -11,7 +11,15 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
 from inspectkit.cli.readings import readings_app
-from inspectkit.model import Component, Grade, Method, Quantity, Severity, SoilCondition
+from inspectkit.model import (
+    METHODS_FOR,
+    Component,
+    Grade,
+    Method,
+    Quantity,
+    Severity,
+    SoilCondition,
+)
 from inspectkit.tui.preferences import Preferences
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
@@ -39,10 +47,18 @@ def failed(outcome: ReadingOutcome) -> bool:
 
 
 def outcome_line(tag: str, outcome: ReadingOutcome) -> str:
-    """`TJ-03 earth resistance (combined): PASS 3.9 Ω ≤ 10 Ω · +12 % on 2026-03-03`."""
-    label = outcome.reading.quantity.label
-    line = f"{tag} {label}: {outcome.verdict}" if tag else f"{label}: {outcome.verdict}"
-    return f"{line} · {outcome.comparison}" if outcome.comparison else line
+    """`TJ-03 earth resistance, combined system: PASS 3.9 Ω ≤ 10 Ω · +12 % on 2026-03-03`.
+
+    The method follows where the quantity can be measured more than one way.
+    """
+    reading = outcome.reading
+    label = reading.quantity.label
+    parts = [f"{tag} {label}: {outcome.verdict}" if tag else f"{label}: {outcome.verdict}"]
+    if outcome.comparison:
+        parts.append(outcome.comparison)
+    if len(METHODS_FOR[reading.quantity]) > 1:
+        parts.append(f"by {reading.method.value}")
+    return " · ".join(parts)
 
 
 def outcome_json(outcome: ReadingOutcome) -> dict[str, Any]:
