@@ -199,6 +199,8 @@ async def test_long_list_filters_once_typing_pauses(
     from inspectkit.tui.screens import sites
 
     monkeypatch.setattr(sites, "LONG_LIST", 1)
+    # Long enough that a loaded machine's gaps between pilot keys stay inside it.
+    monkeypatch.setattr(sites, "TYPING_PAUSE", 0.6)
     app = make_app(tui_db, today=ANCHOR)
     async with app.run_test(size=(80, 24)) as pilot:
         await settled(pilot)
