@@ -70,12 +70,6 @@ def counts_as_done(inspection: Inspection) -> bool:
     return inspection.state is InspectionState.SIGNED or inspection.finished
 
 
-def last_of(inspections: Iterable[Inspection], kinds: frozenset[InspectionKind]) -> date | None:
-    """Date of the latest finished visit of one of these kinds."""
-    days = [i.date for i in inspections if i.kind in kinds and counts_as_done(i)]
-    return max(days, default=None)
-
-
 def in_service(component: Component, on: date) -> bool:
     """Installed by that day (or date unknown) and not yet retired."""
     if component.installed_on is not None and component.installed_on > on:
@@ -104,11 +98,14 @@ def series(readings: Iterable[Reading]) -> History:
     """
     groups: History = defaultdict(list)
     for reading in readings:
-        groups[(reading.component_id, reading.quantity)].append(reading)
-    by_time = attrgetter("taken_at")
+        groups[_series_key(reading)].append(reading)
     for group in groups.values():
-        group.sort(key=by_time)
+        group.sort(key=_by_time)
     return dict(groups)
+
+
+_series_key = attrgetter("component_id", "quantity")
+_by_time = attrgetter("taken_at")
 
 
 def calibration_lapsed(records: SiteRecords, reading: Reading) -> bool:

@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass
 from datetime import date
+from operator import attrgetter
 
 from inspectkit.engine.history import (
     COMPLETE_KINDS,
@@ -285,33 +286,29 @@ def missing_tests(facts: SiteFacts) -> Iterator[Result]:
 def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
     """The tags of components a complete inspection should have tested and did not."""
     visit = inspection.id
-    taken = {
-        (r.component_id, r.quantity) for r in facts.records.readings if r.inspection_id == visit
-    }
+    tested: dict[Quantity, set[str]] = {Quantity.EARTH_ISOLATED: set(), Quantity.CONTINUITY: set()}
+    for reading in facts.records.readings:
+        if reading.inspection_id == visit and reading.quantity in tested:
+            tested[reading.quantity].add(reading.component_id)
+    isolated, conducted = tested[Quantity.EARTH_ISOLATED], tested[Quantity.CONTINUITY]
     present = [c for c in facts.records.components if in_service(c, inspection.date)]
     children: dict[str, list[Component]] = {}
     for component in present:
         children.setdefault(component.parent_id or "", []).append(component)
 
-    def measured(component: Component, quantity: Quantity) -> bool:
-        near = [component, *children.get(component.id, [])]
-        return any((c.id, quantity) in taken for c in near)
+    def measured(component: Component, ids: set[str]) -> bool:
+        return component.id in ids or any(c.id in ids for c in children.get(component.id, ()))
 
     earth, continuity = [], []
-    for component in sorted(present, key=lambda c: c.tag):
+    for component in sorted(present, key=_tag):
         if component.kind is ComponentKind.TEST_JOINT:
+            if component.id in isolated:  # a reading on the joint stands for its electrodes
+                continue
             electrodes = [
                 c for c in children.get(component.id, []) if c.kind is ComponentKind.EARTH_ELECTRODE
             ]
-            for target in electrodes or [component]:
-                if not (
-                    measured(target, Quantity.EARTH_ISOLATED)
-                    or (component.id, Quantity.EARTH_ISOLATED) in taken
-                ):
-                    earth.append(target.tag)
-        elif component.kind is ComponentKind.DOWN_CONDUCTOR and not measured(
-            component, Quantity.CONTINUITY
-        ):
+            earth += (t.tag for t in electrodes or [component] if not measured(t, isolated))
+        elif component.kind is ComponentKind.DOWN_CONDUCTOR and not measured(component, conducted):
             continuity.append(component.tag)
     missing = {}
     if earth:
@@ -319,6 +316,9 @@ def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
     if continuity:
         missing["continuity reading"] = continuity
     return missing
+
+
+_tag = attrgetter("tag")
 
 
 def open_defects(facts: SiteFacts) -> Iterator[Result]:

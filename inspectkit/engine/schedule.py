@@ -37,7 +37,6 @@ from inspectkit.engine.history import (
     History,
     as_of,
     counts_as_done,
-    last_of,
     series,
 )
 from inspectkit.model import InspectionKind, Quantity, SiteRecords
@@ -55,7 +54,10 @@ class DueStatus(StrEnum):
     @property
     def rank(self) -> int:
         """Bigger is more urgent."""
-        return list(DueStatus).index(self)
+        return _STATUS_RANK[self]
+
+
+_STATUS_RANK = {status: rank for rank, status in enumerate(DueStatus)}
 
 
 class DueKind(StrEnum):
@@ -217,10 +219,10 @@ def schedule_site(
     changes = counter_changes(records, history)
     window = profile.triggers.due_soon_days if due_soon_days is None else due_soon_days
     visual_months, complete_months, basis = intervals_for(records, profile)
-    inspections = records.inspections
-    last_visual = last_of(inspections, VISUAL_KINDS)
-    last_complete = last_of(inspections, COMPLETE_KINDS)
-    last_post_strike = last_of(inspections, frozenset({InspectionKind.POST_STRIKE}))
+    last = _last_by_kind(records)
+    last_visual = _latest(last, VISUAL_KINDS)
+    last_complete = _latest(last, COMPLETE_KINDS)
+    last_post_strike = last.get(InspectionKind.POST_STRIKE)
 
     judge = _Judge(today, window)
     items = [
@@ -228,7 +230,7 @@ def schedule_site(
         _routine(judge, DueKind.COMPLETE, last_complete, complete_months),
     ]
     next_visual, next_complete = items[0].due, items[1].due
-    items += _strike_items(judge, records, profile, changes)
+    items += _strike_items(judge, records, profile, changes, _latest(last, STRIKE_SETTLING_KINDS))
     altered = records.site.altered_on
     if (
         altered is not None
@@ -288,27 +290,45 @@ def _routine(judge: _Judge, kind: DueKind, last: date | None, months: int) -> Du
     )
 
 
+def _last_by_kind(records: SiteRecords) -> dict[InspectionKind, date]:
+    """The date of the latest counted visit of each kind, from one pass over the visits."""
+    last: dict[InspectionKind, date] = {}
+    for inspection in records.inspections:
+        if counts_as_done(inspection):
+            day = last.get(inspection.kind)
+            if day is None or inspection.date > day:
+                last[inspection.kind] = inspection.date
+    return last
+
+
+def _latest(last: dict[InspectionKind, date], kinds: frozenset[InspectionKind]) -> date | None:
+    return max((last[kind] for kind in kinds if kind in last), default=None)
+
+
 def _strike_items(
-    judge: _Judge, records: SiteRecords, profile: Profile, changes: list[CounterRise]
+    judge: _Judge,
+    records: SiteRecords,
+    profile: Profile,
+    changes: list[CounterRise],
+    last_settled: date | None,
 ) -> list[DueItem]:
-    """A post-strike item for each counter rise not yet followed by a settling visit."""
-    settled_on = sorted(
-        i.date for i in records.inspections if i.kind in STRIKE_SETTLING_KINDS and counts_as_done(i)
-    )
+    """A post-strike item for each counter rise not yet followed by a settling visit.
+
+    Args:
+        last_settled: the latest counted visit that settles a strike (see `STRIKE_SETTLING_KINDS`).
+    """
+    owed = [c for c in changes if c.rose and (last_settled is None or last_settled < c.found_on)]
+    if not owed:
+        return []
     tags = {c.id: c.tag for c in records.components}
     days = profile.triggers.post_strike_days
-    items = []
-    for change in changes:
-        if not change.rose or any(day >= change.found_on for day in settled_on):
-            continue
-        tag = tags.get(change.component_id, "strike counter")
-        items.append(
-            judge.item(
-                DueKind.POST_STRIKE,
-                change.found_on + timedelta(days=days),
-                f"{tag} rose from {change.before} to {change.after} on "
-                f"{change.found_on.isoformat()} + {days} days",
-                change.component_id,
-            )
+    return [
+        judge.item(
+            DueKind.POST_STRIKE,
+            change.found_on + timedelta(days=days),
+            f"{tags.get(change.component_id, 'strike counter')} rose from {change.before} to "
+            f"{change.after} on {change.found_on.isoformat()} + {days} days",
+            change.component_id,
         )
-    return items
+        for change in owed
+    ]

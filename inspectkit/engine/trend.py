@@ -14,6 +14,7 @@ from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
+from functools import cache
 from statistics import NormalDist, median
 from typing import Any
 
@@ -69,8 +70,7 @@ def theil_sen(
     middle = len(slopes) // 2  # sorted already: no need for statistics.median to sort again
     slope = slopes[middle] if len(slopes) % 2 else (slopes[middle - 1] + slopes[middle]) / 2
     intercept = median(ys) - slope * median(xs)
-    alpha = min(confidence, 1 - confidence)
-    z = NormalDist().inv_cdf(alpha / 2)
+    z = _normal_quantile(confidence)
 
     def ties(values: Sequence[float]) -> int:
         if len(set(values)) == len(values):
@@ -84,6 +84,13 @@ def theil_sen(
     upper = min(int(round((len(slopes) - z * sigma) / 2)), len(slopes) - 1)
     lower = max(int(round((len(slopes) + z * sigma) / 2)) - 1, 0)
     return TheilSen(slope, intercept, slopes[lower], slopes[upper])
+
+
+@cache
+def _normal_quantile(confidence: float) -> float:
+    """The normal quantile for a two-sided interval (negative); the same for every fit."""
+    alpha = min(confidence, 1 - confidence)
+    return NormalDist().inv_cdf(alpha / 2)
 
 
 @dataclass(frozen=True)
@@ -182,27 +189,30 @@ def _trend(
     next_complete: date | None,
 ) -> ElectrodeTrend:
     over_range = doubtful = 0
-    kept: list[Reading] = []
+    days: list[date] = []
+    values: list[float] = []
+    ids: list[str] = []
     for reading in readings:
-        if reading.over_range or reading.value is None:
+        value = reading.value
+        if reading.over_range or value is None:
             over_range += 1
-        elif reading.unreliable or (
-            reading.instrument_id in calibration_due
-            and reading.taken_at.date() > calibration_due[reading.instrument_id]
-        ):
+            continue
+        day = reading.taken_at.date()
+        lapse = calibration_due.get(reading.instrument_id)
+        if reading.unreliable or (lapse is not None and day > lapse):
             doubtful += 1
-        else:
-            kept.append(reading)
+            continue
+        days.append(day)
+        values.append(value)
+        ids.append(reading.id)
     left_out = _left_out(doubtful, over_range)
-    days = [r.taken_at.date() for r in kept]
-    values = [r.value for r in kept if r.value is not None]
     base: dict[str, Any] = dict(
         component_id=component.id,
         component_tag=component.tag,
-        used=len(kept),
+        used=len(days),
         days=tuple(days),
         values=tuple(values),
-        reading_ids=tuple(r.id for r in kept),
+        reading_ids=tuple(ids),
         left_out_unreliable=doubtful,
         left_out_over_range=over_range,
         first_day=days[0] if days else None,
@@ -211,8 +221,8 @@ def _trend(
         next_complete=next_complete,
     )
     span = (days[-1] - days[0]).days / YEAR_DAYS if days else 0.0
-    if len(kept) < MIN_READINGS:
-        note = f"no forecast: {len(kept)} usable reading(s), {MIN_READINGS} needed{left_out}"
+    if len(days) < MIN_READINGS:
+        note = f"no forecast: {len(days)} usable reading(s), {MIN_READINGS} needed{left_out}"
         return ElectrodeTrend(**base, note=note)
     if span < MIN_SPAN_YEARS:
         note = f"no forecast: readings span {span:.1f} years, at least 1 year needed{left_out}"
