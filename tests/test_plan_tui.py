@@ -129,3 +129,17 @@ async def test_w_widens_the_window(round_db: Path) -> None:
         await pilot.press("w")
         await pilot.pause()
         assert screen.plan is not None and screen.plan.window.days == 60
+
+
+async def test_without_a_depot_typing_goes_to_the_depot_field(db_path: Path) -> None:
+    with Store.open(db_path) as store:
+        fill_round_db(store)
+        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+    app = make_app(db_path, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is None
+        await pilot.press(*"52,-1", "enter")
+        await pilot.pause()
+        assert screen.query_one("#depot", Input).value == "52,-1"
+        assert screen.plan is not None and _visits(screen)

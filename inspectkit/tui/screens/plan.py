@@ -89,8 +89,10 @@ class PlanScreen(Screen[None]):
         for label, key, width in COLUMNS:
             width = width or (site_width if key == "site" else kind_width)
             self.table.add_column(label, key=key, width=width)
-        self.query_one("#depot", Input).value = self._depot_text()
-        self.table.focus()
+        depot = self.query_one("#depot", Input)
+        depot.value = self._depot_text()
+        # With no depot there is nothing to plan from: start where it is typed.
+        (self.table if depot.value else depot).focus()
 
     def on_screen_resume(self) -> None:
         self.replan()
