@@ -8,8 +8,12 @@ from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
+from inspectkit.model import Grade
 from inspectkit.store.queries import OpenFinding, later_inspections, open_findings
 from inspectkit.tui.dialogs.choice import ChoiceDialog
+
+#: Grades in one short word each, so the column fits an 80-column screen.
+_GRADE_WORD = {Grade.SOUND: "sound", Grade.NEEDS_ATTENTION: "attention", Grade.DEFECT: "defect"}
 
 
 class FindingsScreen(Screen[None]):
@@ -71,7 +75,7 @@ class FindingsScreen(Screen[None]):
                 f"{(today - item.found_on).days} d",
                 item.site_name,
                 item.tag,
-                item.finding.grade.value.replace("_", " "),
+                _GRADE_WORD[item.finding.grade],
                 item.finding.text,
                 key=item.finding.id,
             )
