@@ -8,7 +8,10 @@ from datetime import UTC, date, datetime
 from enum import Enum
 from itertools import groupby
 from operator import attrgetter, itemgetter
+from types import GetSetDescriptorType, MemberDescriptorType
 from typing import Any, get_args
+
+from pydantic import BaseModel
 
 from inspectkit.model import (
     Component,
@@ -113,25 +116,23 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
     site order and the streams are merged, so only one site is in memory at a time.
     """
     instruments = {i.id: i for i in store.select(Instrument)}
+    site_of = dict(store.db.execute("SELECT id, site_id FROM inspection").fetchall())
     streams = {
-        "components": _by_site(store, Component, "SELECT site_id AS _site, * FROM component"),
+        "components": _by_site(store, Component, "SELECT * FROM component ORDER BY site_id"),
         "inspections": _by_site(
-            store, Inspection, "SELECT site_id AS _site, * FROM inspection ORDER BY site_id, date"
+            store, Inspection, "SELECT * FROM inspection ORDER BY site_id, date"
         ),
-        "readings": _by_site(store, Reading, _JOINED.format(table="reading")),
-        "findings": _by_site(store, Finding, _JOINED.format(table="finding")),
-        "photos": _by_site(store, Photo, _JOINED.format(table="photo")),
+        "readings": _by_visit(store, Reading, "reading", site_of),
+        "findings": _by_visit(store, Finding, "finding", site_of),
+        "photos": _by_visit(store, Photo, "photo", site_of),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
-    cursor = store.db.execute("SELECT * FROM site ORDER BY id")
-    names = [d[0] for d in cursor.description]
-    for values in cursor:
-        site = from_row(Site, dict(zip(names, values, strict=True)))
+    for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
         parts: dict[str, list[Record]] = {}
         for name, stream in streams.items():
-            while pending[name] is not None and pending[name][0] < site.id:
+            while pending[name] is not None and pending[name][0] < site_id:
                 pending[name] = next(stream, None)
-            if pending[name] is not None and pending[name][0] == site.id:
+            if pending[name] is not None and pending[name][0] == site_id:
                 parts[name] = pending[name][1]
                 pending[name] = next(stream, None)
         readings = parts.get("readings", [])
@@ -150,25 +151,45 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
 
 _instrument_of = attrgetter("instrument_id")
 
-#: Rows of a table hanging off inspections, with the inspection's site, in site order.
-_JOINED = (
-    "SELECT i.site_id AS _site, t.* FROM inspection i JOIN [{table}] t ON t.inspection_id = i.id"
-    " ORDER BY i.site_id"
-)
 
+def _by_site(
+    store: Store, model: type[Record], sql: str, site: str = "site_id"
+) -> Iterator[tuple[str, list[Record]]]:
+    """(site id, records) for each site with rows, from a query in site order.
 
-def _by_site(store: Store, model: type[Record], sql: str) -> Iterator[tuple[str, list[Record]]]:
-    """(site id, records) for each site with rows, from a query whose first column is the site."""
-    cursor = store.db.execute(sql if "ORDER BY" in sql else f"{sql} ORDER BY site_id")
-    names = [d[0] for d in cursor.description][1:]
+    Args:
+        site: the column holding the site id.
+    """
+    cursor = store.db.execute(sql)
+    names = [d[0] for d in cursor.description]
     build = _trusted_builder(model, names)
-    for site_id, rows in groupby(cursor, key=itemgetter(0)):
+    for site_id, rows in groupby(cursor, key=itemgetter(names.index(site))):
         yield site_id, [build(row) for row in rows]
 
 
-def _trusted_builder(
-    model: type[Record], names: list[str], skip: int = 1
-) -> Callable[[tuple[Any, ...]], Record]:
+def _by_visit(
+    store: Store, model: type[Record], table: str, site_of: dict[str, str]
+) -> Iterator[tuple[str, list[Record]]]:
+    """(site id, records) for each site with rows in a table that hangs off inspections.
+
+    The rows come in site order, each visit's together; they carry their visit, not
+    their site, so that half a million rows do not each bring the site id along too.
+
+    Args:
+        site_of: the site id of each inspection id.
+    """
+    cursor = store.db.execute(
+        f"SELECT t.* FROM inspection i JOIN [{table}] t ON t.inspection_id = i.id"
+        " ORDER BY i.site_id"
+    )
+    names = [d[0] for d in cursor.description]
+    build = _trusted_builder(model, names)
+    visits = groupby(cursor, key=itemgetter(names.index("inspection_id")))
+    for site_id, runs in groupby(visits, key=lambda run: site_of[run[0]]):
+        yield site_id, [build(row) for _, rows in runs for row in rows]
+
+
+def _trusted_builder(model: type[Record], names: list[str]) -> Callable[[tuple[Any, ...]], Record]:
     """A fast way from a stored row to its record, for rows the store itself wrote.
 
     Every row was validated when it was written, so reading half a million of them
@@ -183,15 +204,14 @@ def _trusted_builder(
 
     Args:
         model: the record type.
-        names: the columns, in the order the query gives them after the first `skip`.
-        skip: leading columns that are not the record's (the site id).
+        names: the columns, in the order the query gives them.
     """
     fields = model.model_fields
     if set(names) != set(fields):
-        return lambda row: from_row(model, dict(zip(names, row[skip:], strict=True)))
+        return lambda row: from_row(model, dict(zip(names, row, strict=True)))
     scope: dict[str, Any] = {
         "new": object.__new__,
-        "put": object.__setattr__,
+        **{f"set{slot}": _slot_setter(slot) for slot in _SLOTS},
         "model": model,
         "every": set(names),
         "parse_time": datetime.fromisoformat,
@@ -199,7 +219,7 @@ def _trusted_builder(
         "stored_time": _stored_time,
     }
     items = []
-    for index, name in enumerate(names, start=skip):
+    for index, name in enumerate(names):
         convert = _converter(fields[name].annotation)
         cell = f"row[{index}]"
         if convert is None:
@@ -209,25 +229,46 @@ def _trusted_builder(
                 f"{name!r}: None if {cell} is None else (t if (t := parse_time({cell})).tzinfo"
                 f" is UTC else stored_time({cell}))"
             )
+        elif isinstance(convert, dict):  # a lookup that takes None too: no call, no test
+            scope[f"convert_{index}"] = convert
+            items.append(f"{name!r}: convert_{index}[{cell}]")
         else:
             scope[f"convert_{index}"] = convert
             items.append(f"{name!r}: None if {cell} is None else convert_{index}({cell})")
     source = (
         "def build(row):\n"
         "    record = new(model)\n"
-        f"    put(record, '__dict__', {{{', '.join(items)}}})\n"
-        "    put(record, '__pydantic_fields_set__', every)\n"
-        "    put(record, '__pydantic_extra__', None)\n"
-        "    put(record, '__pydantic_private__', None)\n"
+        f"    set__dict__(record, {{{', '.join(items)}}})\n"
+        "    set__pydantic_fields_set__(record, every)\n"
+        "    set__pydantic_extra__(record, None)\n"
+        "    set__pydantic_private__(record, None)\n"
         "    return record\n"
     )
     exec(source, scope)  # noqa: S102 - the source is made above from the model's own field names
     return scope["build"]  # type: ignore[no-any-return]
 
 
-def _converter(annotation: Any) -> Callable[[Any], Any] | None:
-    """How a stored column becomes the field's value (None: stored as it is used; SQLite
-    gives REAL columns back as floats already)."""
+#: What `model_construct` sets on a new record besides its fields.
+_SLOTS = ("__dict__", "__pydantic_fields_set__", "__pydantic_extra__", "__pydantic_private__")
+
+
+def _slot_setter(name: str) -> Callable[[Any, Any], None]:
+    """The setter of one of pydantic's slots on a record, taken from the slot itself.
+
+    Calling the slot's own setter skips the attribute lookup `object.__setattr__`
+    makes, on every one of half a million records; should pydantic ever hold the
+    attribute differently, `object.__setattr__` does the job.
+    """
+    slot = vars(BaseModel).get(name)
+    if isinstance(slot, MemberDescriptorType | GetSetDescriptorType):
+        return slot.__set__  # type: ignore[no-any-return]
+    return lambda record, value: object.__setattr__(record, name, value)
+
+
+def _converter(annotation: Any) -> Callable[[Any], Any] | dict[Any, Any] | None:
+    """How a stored column becomes the field's value: a function, or for an enum a
+    lookup of every stored value and None (None: stored as it is used; SQLite gives
+    REAL columns back as floats already)."""
     kinds = [a for a in get_args(annotation) if a is not type(None)] or [annotation]
     kind = kinds[0]
     if kind is datetime:
@@ -237,7 +278,7 @@ def _converter(annotation: Any) -> Callable[[Any], Any] | None:
     if kind is bool:
         return bool
     if isinstance(kind, type) and issubclass(kind, Enum):
-        return {member.value: member for member in kind}.__getitem__
+        return {None: None, **{member.value: member for member in kind}}
     return None
 
 
