@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass
 from datetime import date
+from functools import cache
 from operator import attrgetter
 
 from inspectkit.engine.history import (
@@ -129,6 +130,12 @@ def _ohms(value: float) -> str:
     return format_value(value, Quantity.EARTH_ISOLATED, digits=3)
 
 
+@cache
+def _limit_text(limit: float, quantity: Quantity) -> str:
+    """A limit as the messages show it; a profile has few, and thousands of readings meet them."""
+    return format_value(limit, quantity, digits=3)
+
+
 def _day(reading: Reading) -> str:
     return reading.taken_at.date().isoformat()
 
@@ -144,7 +151,7 @@ def reading_limits(facts: SiteFacts) -> Iterator[Result]:
             continue
         about = {**facts.about(reading), "limit": limit}
         tag, shown = about["component_tag"], _shown(reading)
-        limit_text = format_value(limit, quantity, digits=3)
+        limit_text = _limit_text(limit, quantity)
         if reading.over_range and bound is not None and bound < limit:
             yield facts.result(
                 Severity.WATCH,
