@@ -168,6 +168,25 @@ def test_incomplete_complete_inspection_lists_what_is_missing():
     assert "continuity reading for DC-02, DC-03" in result.message
 
 
+def test_earlier_visits_readings_do_not_complete_the_latest_one():
+    # IEC 62305-3 Annex E: a complete inspection includes the tests, so each complete
+    # visit must hold its own readings; ours judges the latest counted one.
+    site = SiteBuilder("II")
+    (_, first), (joint, second) = (site.joint_with_electrode(n) for n in (1, 2))
+    downs = [c for c in site.components if c.kind is ComponentKind.DOWN_CONDUCTOR]
+    earlier, latest = site.visit(date(2025, 3, 1)), site.visit(date(2026, 3, 1))
+    for electrode in (first, second):
+        site.reading(earlier, electrode, Quantity.EARTH_ISOLATED, 4.0)
+    for down in downs:
+        site.reading(earlier, down, Quantity.CONTINUITY, 0.05)
+    site.reading(latest, second, Quantity.EARTH_ISOLATED, 4.0)
+    site.reading(latest, joint, Quantity.CONTINUITY, 0.05)  # at the conductor's test joint
+    (result,) = _by_rule(site, "incomplete")
+    assert "of 2026-03-01" in result.message
+    assert "isolated earth reading for E-01;" in result.message
+    assert "continuity reading for DC-01:" in result.message
+
+
 def test_draft_complete_inspection_is_judged_too():
     site = SiteBuilder("II")
     site.joint_with_electrode(1, down=False)
