@@ -113,7 +113,8 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
 
     For checking a whole database: a query per site would run thousands of queries,
     and holding every site at once would hold every reading. Each table is read in
-    site order and the streams are merged, so only one site is in memory at a time.
+    site order and the streams are merged, so only one site is in memory at a time;
+    one more small query gives each visit's site.
     """
     instruments = {i.id: i for i in store.select(Instrument)}
     site_of = dict(store.db.execute("SELECT id, site_id FROM inspection").fetchall())
@@ -172,8 +173,9 @@ def _by_visit(
 ) -> Iterator[tuple[str, list[Record]]]:
     """(site id, records) for each site with rows in a table that hangs off inspections.
 
-    The rows come in site order, each visit's together; they carry their visit, not
-    their site, so that half a million rows do not each bring the site id along too.
+    The rows come in site order and carry their visit, not their site, so that half a
+    million rows do not each bring the site id along too; a visit's rows come together,
+    so its site is looked up once.
 
     Args:
         site_of: the site id of each inspection id.
