@@ -122,6 +122,7 @@ def test_bulk_loader_gives_what_the_per_site_loader_gives(db_path):
         assert [b.site.id for b in bulk] == sorted(b.site.id for b in bulk)
         for records in bulk:
             one = load_site_records(store, records.site.id)
+            assert records.site == one.site
             for part in ("components", "inspections", "readings", "findings", "photos"):
                 got = sorted(getattr(records, part), key=lambda r: r.id)
                 assert got == sorted(getattr(one, part), key=lambda r: r.id)
