@@ -619,7 +619,8 @@ class Reading(Record):
         if self.method not in METHODS_FOR[quantity]:
             allowed = ", ".join(sorted(m.value for m in METHODS_FOR[quantity]))
             raise ValueError(
-                f"method {self.method.value} does not measure {quantity.label}; use one of: {allowed}"
+                f"method {self.method.value} does not measure {quantity.label}; "
+                f"use one of: {allowed}"
             )
         if quantity is Quantity.EARTH_ISOLATED and self.joint_state is JointState.CLOSED:
             raise ValueError(

@@ -71,7 +71,8 @@ def test_a_user_profile_wins_over_the_builtin_one() -> None:
 
 def test_a_missing_interval_names_the_file_and_key() -> None:
     text = builtin_text("iec-62305-3").replace(
-        "visual_months = 24              # Table E.2: levels III and IV, visual, 2 years\ncomplete_months = 48",
+        "visual_months = 24              # Table E.2: levels III and IV, visual, 2 years\n"
+        "complete_months = 48",
         "complete_months = 48",
         1,
     )

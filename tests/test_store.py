@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import sqlite3
-from datetime import date, datetime, timezone
+from datetime import UTC, date, datetime
 from pathlib import Path
 
 import pytest
@@ -25,7 +25,7 @@ from inspectkit.store.photos import attach_photo, photo_path
 from inspectkit.store.rows import to_row
 from inspectkit.store.schema import SCHEMA_VERSION
 
-TAKEN = datetime(2026, 5, 4, 10, 30, tzinfo=timezone.utc)
+TAKEN = datetime(2026, 5, 4, 10, 30, tzinfo=UTC)
 
 
 def make_site(store: Store) -> tuple[Site, Component, Inspection]:
@@ -246,7 +246,7 @@ def test_same_photo_is_stored_once(tmp_path: Path, db_path: Path) -> None:
         second = attach_photo(store, picture, inspection_id=visit.id, caption="again")
         assert first.sha256 == second.sha256 and first.id != second.id
         assert first.orientation == 6
-        assert first.taken_at == datetime(2026, 5, 4, 10, 31, tzinfo=timezone.utc)
+        assert first.taken_at == datetime(2026, 5, 4, 10, 31, tzinfo=UTC)
         assert photo_path(store, first.sha256).read_bytes() == picture.read_bytes()
         files = [p for p in store.photos_dir.rglob("*") if p.is_file()]
         assert len(files) == 1

@@ -34,7 +34,9 @@ DbOption = Annotated[
     ),
 ]
 
-JsonOption = Annotated[bool, typer.Option("--json", help="Print JSON for scripts instead of a table.")]
+JsonOption = Annotated[
+    bool, typer.Option("--json", help="Print JSON for scripts instead of a table.")
+]
 
 
 def resolve_db(ctx: typer.Context, db: Path | None) -> Path:

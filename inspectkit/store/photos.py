@@ -10,7 +10,7 @@ import hashlib
 import os
 import shutil
 import tempfile
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
 from PIL import Image, UnidentifiedImageError
@@ -59,7 +59,7 @@ def read_exif(path: Path) -> tuple[int, datetime | None, int, int]:
     if isinstance(stamp, str):
         try:
             taken_at = datetime.strptime(stamp.strip(), "%Y:%m:%d %H:%M:%S").replace(
-                tzinfo=timezone.utc
+                tzinfo=UTC
             )
         except ValueError:
             taken_at = None
