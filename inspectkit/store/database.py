@@ -190,10 +190,21 @@ class Store:
         params: Sequence[Any] | dict[str, Any] = (),
         order_by: str | None = None,
     ) -> list[R]:
-        """Records of one type; `where` is an SQL condition with `?` placeholders."""
+        """Records of one type; `where` is an SQL condition with `?` placeholders.
+
+        Plain SQL rather than sqlite-utils' `rows_where`, which asks for the table's
+        columns on every call: the walkdown selects on every reading typed.
+        """
+        sql = f"SELECT * FROM [{model.table}]"
+        if where:
+            sql += f" WHERE {where}"
+        if order_by:
+            sql += f" ORDER BY {order_by}"
+        cursor = self.db.execute(sql, params)
+        names = [d[0] for d in cursor.description]
         return [
-            from_row(model, row)  # type: ignore[misc]
-            for row in self.db[model.table].rows_where(where, params, order_by=order_by)
+            from_row(model, dict(zip(names, values, strict=True)))  # type: ignore[misc]
+            for values in cursor
         ]
 
     def _row(self, table: str, record_id: str) -> dict[str, Any] | None:
