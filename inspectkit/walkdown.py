@@ -467,9 +467,9 @@ def site_context(store: Store, site_id: str) -> SiteContext:
     return SiteContext(site, profile, components, visits)
 
 
-#: The engine's rules (by their result's `rule`) that speak about one reading or its
-#: series; the others judge the whole site.
-READING_RULES = frozenset({"limit", "rise", "calibration", "unreliable", "strike-counter", "trend"})
+#: The engine's rules that speak about one reading or its series; the site-wide ones
+#: (missing tests, open defects, the schedule) are not run for one reading.
+_SERIES = rules.SERIES_RULES
 
 
 def judge_reading(
@@ -479,7 +479,7 @@ def judge_reading(
     profile = context.profile
     records = _records_for(store, context, inspection, reading)
     today = max(inspection.date, reading.taken_at.date())
-    found = _about(check_site(records, profile, today).results, reading)
+    found = _about(check_site(records, profile, today, _SERIES).results, reading)
     if any(r.reading_id is None for r in found):
         # A result on the series as a whole (a counter's rise, a trend) belongs to
         # this reading only if it is not there without it.
@@ -487,7 +487,8 @@ def judge_reading(
             update={"readings": [r for r in records.readings if r.id != reading.id]}
         )
         known = {
-            (r.rule, r.message) for r in _about(check_site(before, profile, today).results, reading)
+            (r.rule, r.message)
+            for r in _about(check_site(before, profile, today, _SERIES).results, reading)
         }
         found = [r for r in found if r.reading_id is not None or (r.rule, r.message) not in known]
     severity = found[0].severity if found else Severity.OK
@@ -509,13 +510,11 @@ def judge_reading(
 
 
 def _about(results: Iterable[Result], reading: Reading) -> list[Result]:
-    """The results of the reading rules on this reading or on its series, worst first."""
+    """The results on this reading or on its series, worst first."""
     return [
         r
         for r in results
-        if r.rule in READING_RULES
-        and r.component_id == reading.component_id
-        and r.reading_id in (None, reading.id)
+        if r.component_id == reading.component_id and r.reading_id in (None, reading.id)
     ]
 
 

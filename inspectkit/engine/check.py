@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Iterator, Mapping
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from datetime import date
 
 from inspectkit.engine.history import as_of, series
 from inspectkit.engine.results import Result
-from inspectkit.engine.rules import RULES, facts_for
+from inspectkit.engine.rules import RULES, SiteFacts, facts_for
 from inspectkit.engine.schedule import SiteSchedule, schedule_site
 from inspectkit.engine.trend import ElectrodeTrend, electrode_trends
 from inspectkit.model import Severity, SiteRecords
@@ -42,14 +42,24 @@ class SiteCheck:
         return self.worst.rank >= Severity.FAIL.rank
 
 
-def check_site(records: SiteRecords, profile: Profile, today: date) -> SiteCheck:
-    """Run every rule, the schedule and the trends over one site as of `today`."""
+def check_site(
+    records: SiteRecords,
+    profile: Profile,
+    today: date,
+    rules: Sequence[Callable[[SiteFacts], Iterable[Result]]] = RULES,
+) -> SiteCheck:
+    """Run the rules (every one unless told), the schedule and the trends over one site.
+
+    Args:
+        rules: which rules to run; the walkdown runs only `SERIES_RULES`, since it
+            judges one reading as it is typed, not the whole site.
+    """
     records = as_of(records, today)
     history = series(records.readings)
     schedule = schedule_site(records, profile, today, history=history)
     trends = electrode_trends(records, profile, today, schedule.next_complete, history)
     facts = facts_for(records, profile, today, schedule, trends, history)
-    results = sorted((r for rule in RULES for r in rule(facts)), key=Result.sort_key)
+    results = sorted((r for rule in rules for r in rule(facts)), key=Result.sort_key)
     worst = results[0].severity if results else Severity.OK
     return SiteCheck(
         site_id=records.site.id,

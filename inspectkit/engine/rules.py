@@ -418,3 +418,14 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     schedule_items,
     drifting_electrodes,
 )
+
+#: The rules that speak about one reading or its series, not the site as a whole:
+#: what a reading is judged by the moment it is typed.
+SERIES_RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
+    reading_limits,
+    electrode_rises,
+    lapsed_calibration,
+    doubtful_readings,
+    strike_counters,
+    drifting_electrodes,
+)
