@@ -883,13 +883,73 @@ def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
     )
 
 
+# ------------------------------------------------------------ the visit itself
+
+#: The visit's free-text details, by field, with what a form or a listing calls each.
+#: The report prints them; the inspector types them once per visit.
+DETAIL_LABELS: dict[str, str] = {
+    "weather": "Weather",
+    "not_inspected": "Not inspected",
+    "accompanied_by": "Accompanied by",
+    "changes_since_last": "Alterations",
+    "notes": "Notes",
+}
+
+
 def set_soil(store: Store, inspection_id: str, soil: SoilCondition | str | None) -> Inspection:
     """Record the ground's state for the visit; earth readings rise in dry or frozen ground.
 
     Raises:
         WalkdownError: not a soil condition, or the inspection is signed.
     """
+    return _update_inspection(store, inspection_id, {"soil": soil or None})
+
+
+def set_details(
+    store: Store,
+    inspection_id: str,
+    *,
+    weather: str | None = None,
+    not_inspected: str | None = None,
+    accompanied_by: str | None = None,
+    changes_since_last: str | None = None,
+    notes: str | None = None,
+) -> Inspection:
+    """Record the circumstances of the visit that the report prints beside the readings.
+
+    Each field left as None keeps what is recorded, so a command can change one
+    without retyping the rest; an empty text clears it. Text is stored stripped.
+
+    Args:
+        weather: The weather during the visit (earth readings depend on it).
+        not_inspected: What could not be inspected, and why.
+        accompanied_by: Who went round with the inspector.
+        changes_since_last: Changes to the structure since the last visit.
+        notes: Anything else about the visit.
+
+    Raises:
+        WalkdownError: a text is too long (`field` names it), or the inspection is
+            signed; nothing is saved.
+    """
+    given = {
+        "weather": weather,
+        "not_inspected": not_inspected,
+        "accompanied_by": accompanied_by,
+        "changes_since_last": changes_since_last,
+        "notes": notes,
+    }
+    return _update_inspection(
+        store, inspection_id, {k: v.strip() for k, v in given.items() if v is not None}
+    )
+
+
+def _update_inspection(store: Store, inspection_id: str, changes: dict[str, Any]) -> Inspection:
+    """The open inspection with `changes` checked by its model and saved; unchanged, not saved.
+
+    Saving nothing new keeps the audit log free of rows that change nothing.
+    """
     inspection = _open_inspection(store, inspection_id)
-    data = inspection.model_dump()
-    data["soil"] = soil or None
+    if all(getattr(inspection, name) == value for name, value in changes.items()):
+        return inspection
+    data = {**inspection.model_dump(), **changes}
     return _save(store, _validated(Inspection, data, now=inspection.date))

@@ -19,6 +19,8 @@ from inspectkit.model import (
     Quantity,
     Reading,
 )
+from inspectkit.report.content import CHANGES_TITLE, text_sections
+from inspectkit.report.model import build_report
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, last_write
 from tests.walkdown_factories import write_photo
@@ -234,7 +236,15 @@ def test_unknown_site_inspection_or_photo_exit_2(demo: Path, tmp_path: Path) -> 
     assert snapshot(demo) == before
 
 
-def test_a_signed_inspection_refuses_new_entries(demo: Path) -> None:
+@pytest.mark.parametrize(
+    "command",
+    [
+        ("grade", "--inspection", "{id}", "--tag", "AT-01", "--grade", "sound"),
+        ("inspection", "details", "{id}", "--weather", "dry"),
+    ],
+    ids=["grade", "details"],
+)
+def test_a_signed_inspection_refuses_new_entries(demo: Path, command: tuple[str, ...]) -> None:
     with Store.open(demo) as store:
         site = find_site(store, SITE)
         assert site is not None
@@ -249,7 +259,7 @@ def test_a_signed_inspection_refuses_new_entries(demo: Path) -> None:
             )
         )
     before = snapshot(demo)
-    result = run(demo, "grade", "--inspection", signed.id, "--tag", "AT-01", "--grade", "sound")
+    result = run(demo, *(part.format(id=signed.id) for part in command))
     assert result.exit_code == 2
     assert "--inspection" in result.stderr and "signed" in result.stderr
     assert snapshot(demo) == before
@@ -357,3 +367,57 @@ def test_show_lists_the_walk_in_order(demo: Path) -> None:
     assert tags.index("DC-01") < tags.index("TJ-01") < tags.index("E-01") < tags.index("DC-02")
     assert any("PASS 3.9 Ω ≤ 10 Ω" in line for line in lines)
     assert any("E-01" in line and "not graded" in line for line in lines)
+
+
+def test_details_are_recorded_and_shown(demo: Path) -> None:
+    visit = start(demo)
+    result = run(
+        demo,
+        "inspection",
+        "details",
+        visit,
+        "--weather",
+        "dry, overcast",
+        "--not-inspected",
+        "north roof: no safe access",
+        "--accompanied-by",
+        "the site manager",
+    )
+    assert result.exit_code == 0, result.output
+    assert "Weather:        dry, overcast" in result.stdout
+    assert "Notes:          (none)" in result.stdout  # every detail listed, blank ones too
+    again = run(demo, "inspection", "details", visit, "--changes", "new plant room", "--notes", "")
+    assert again.exit_code == 0, again.output
+    assert "Alterations:    new plant room" in again.stdout
+    assert "Not inspected:  north roof: no safe access" in again.stdout  # kept
+    with Store.open(demo) as store:
+        saved = store.get(Inspection, visit)
+    assert saved is not None and saved.accompanied_by == "the site manager"
+    assert saved.changes_since_last == "new plant room"
+
+    shown = run(demo, "inspection", "show", visit)
+    assert "  Weather:        dry, overcast" in shown.stdout.splitlines()[1:3]
+    assert "Notes:" not in shown.stdout  # blank details are left out of the walk
+    walk = json.loads(run(demo, "inspection", "show", visit, "--json").stdout)
+    assert walk["inspection"]["not_inspected"] == "north roof: no safe access"
+    assert walk["inspection"]["notes"] == ""
+
+    with Store.open(demo) as store:
+        report = {s.title: s.lines for s in text_sections(build_report(store, visit))}
+    assert "Accompanied by: the site manager" in report["Inspection"]
+    assert "Weather: dry, overcast" in report["Inspection"]
+    assert report["Not inspected"] == ("north roof: no safe access",)
+    assert report[CHANGES_TITLE] == ("new plant room",)
+
+
+def test_a_bad_detail_exits_2_names_the_option_and_changes_nothing(demo: Path) -> None:
+    visit = start(demo)
+    run(demo, "inspection", "details", visit, "--weather", "dry")
+    before = snapshot(demo)
+    result = run(demo, "inspection", "details", visit, "--notes", "x", "--weather", "w" * 201)
+    assert result.exit_code == 2
+    assert result.stderr.startswith("inspectkit: --weather: String should have at most 200")
+    assert snapshot(demo) == before
+    with Store.open(demo) as store:
+        saved = store.get(Inspection, visit)
+    assert saved is not None and saved.weather == "dry" and saved.notes == ""

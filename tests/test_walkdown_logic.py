@@ -23,6 +23,7 @@ from inspectkit.model import (
     Severity,
 )
 from inspectkit.store import Store
+from inspectkit.store.queries import last_write
 from inspectkit.walkdown import (
     WalkdownError,
     attach_photo_file,
@@ -33,6 +34,7 @@ from inspectkit.walkdown import (
     missing_for_completion,
     record_reading,
     saved_entries,
+    set_details,
     set_soil,
     start_inspection,
     walk_for,
@@ -264,7 +266,8 @@ def test_finish_marks_finished_and_frees_the_site_for_a_new_draft(
     assert start_inspection(store, site.site.id, "visual", None, TODAY).id != visit.id
 
 
-def test_signed_inspection_refuses_entries(store: Store, site: WalkSite) -> None:
+@pytest.mark.parametrize("entry", ["reading", "details"])
+def test_signed_inspection_refuses_entries(store: Store, site: WalkSite, entry: str) -> None:
     signed = store.save(
         Inspection(
             site_id=site.site.id,
@@ -275,8 +278,12 @@ def test_signed_inspection_refuses_entries(store: Store, site: WalkSite) -> None
         )
     )
     with pytest.raises(WalkdownError) as err:
-        record_reading(store, signed.id, site.tag("ER-01").id, "earth_isolated", "3")
-    assert "signed" in str(err.value)
+        if entry == "reading":
+            record_reading(store, signed.id, site.tag("ER-01").id, "earth_isolated", "3")
+        else:
+            set_details(store, signed.id, weather="dry")
+    assert err.value.field == "inspection" and "signed" in str(err.value)
+    assert store.get(Inspection, signed.id) == signed
 
 
 @pytest.mark.parametrize("kind", list(ComponentKind))
@@ -341,3 +348,46 @@ def test_a_counter_speaks_of_its_own_rise_not_of_an_older_one(store: Store) -> N
     assert risen.severity is Severity.WATCH
     assert risen.verdict == "WATCH 12"
     assert len(risen.messages) == 1 and "from 9 to 12" in risen.messages[0]
+
+
+# ------------------------------------------------------------- the visit's details
+
+
+def test_details_change_only_the_fields_given(store: Store, visit: Inspection) -> None:
+    set_soil(store, visit.id, "dry")
+    first = set_details(store, visit.id, weather=" dry, overcast ", notes="gate code 4411")
+    assert first.weather == "dry, overcast" and first.notes == "gate code 4411"
+    second = set_details(store, visit.id, not_inspected="north roof: no safe access")
+    saved = store.get(Inspection, visit.id)
+    assert saved == second
+    assert saved.weather == "dry, overcast" and saved.notes == "gate code 4411"
+    assert saved.not_inspected == "north roof: no safe access"
+    assert saved.accompanied_by == "" and saved.changes_since_last == ""
+    assert saved.soil == "dry" and saved.kind is InspectionKind.COMPLETE
+    cleared = set_details(store, visit.id, notes="", accompanied_by="site manager")
+    assert cleared.notes == "" and cleared.accompanied_by == "site manager"
+    assert cleared.weather == "dry, overcast"
+
+
+def test_details_unchanged_write_nothing(store: Store, visit: Inspection) -> None:
+    set_details(store, visit.id, weather="wet")
+    before = last_write(store)
+    set_details(store, visit.id, weather="wet")
+    set_details(store, visit.id)
+    assert last_write(store) == before
+
+
+@pytest.mark.parametrize(
+    ("field", "limit"),
+    [("weather", 200), ("accompanied_by", 200), ("changes_since_last", 2000)],
+)
+def test_too_long_a_detail_names_the_field_and_changes_nothing(
+    store: Store, visit: Inspection, field: str, limit: int
+) -> None:
+    set_details(store, visit.id, weather="dry")
+    before = store.get(Inspection, visit.id)
+    with pytest.raises(WalkdownError) as err:
+        set_details(store, visit.id, notes="kept?", **{field: "x" * (limit + 1)})
+    assert err.value.field == field
+    assert f"at most {limit} characters" in str(err.value)
+    assert store.get(Inspection, visit.id) == before

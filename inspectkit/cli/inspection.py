@@ -1,4 +1,4 @@
-"""`inspectkit inspection start|show|missing|finish`: a walkdown from the command line."""
+"""`inspectkit inspection start|show|details|missing|finish`: a walkdown from the command line."""
 
 from __future__ import annotations
 
@@ -15,6 +15,7 @@ from inspectkit.cli.entries import outcome_json, outcome_line
 from inspectkit.model import Inspection, Site
 from inspectkit.tui.preferences import Preferences
 from inspectkit.walkdown import (
+    DETAIL_LABELS,
     Missing,
     SavedEntries,
     Stop,
@@ -22,12 +23,14 @@ from inspectkit.walkdown import (
     finish_inspection,
     missing_for_completion,
     saved_entries,
+    set_details,
     start_inspection,
     walk_for,
 )
 
 inspection_app = typer.Typer(
-    help="Inspections: start or continue a walkdown, see it, finish it.", no_args_is_help=True
+    help="Inspections: start or continue a walkdown, see it, note its details, finish it.",
+    no_args_is_help=True,
 )
 
 IdArgument = Annotated[str, typer.Argument(help="Inspection id (or its start).")]
@@ -119,6 +122,52 @@ def show(
         typer.echo(line)
 
 
+def _text_option(flag: str, help_text: str) -> Any:
+    return typer.Option(flag, help=f"{help_text} An empty text clears it.", show_default=False)
+
+
+@inspection_app.command("details")
+def details(
+    ctx: typer.Context,
+    inspection: IdArgument,
+    weather: Annotated[
+        str | None, _text_option("--weather", "The weather during the visit.")
+    ] = None,
+    not_inspected: Annotated[
+        str | None, _text_option("--not-inspected", "What could not be inspected, and why.")
+    ] = None,
+    accompanied_by: Annotated[
+        str | None, _text_option("--accompanied-by", "Who went round with the inspector.")
+    ] = None,
+    changes: Annotated[
+        str | None,
+        _text_option("--changes", "Changes to the structure since the last visit."),
+    ] = None,
+    notes: Annotated[str | None, _text_option("--notes", "Anything else about the visit.")] = None,
+    db: DbOption = None,
+) -> None:
+    """Record the visit's details the report prints, then show all of them as recorded.
+
+    Options not given keep what is recorded; with none, the details are only shown.
+    """
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        try:
+            visit = set_details(
+                store,
+                visit.id,
+                weather=weather,
+                not_inspected=not_inspected,
+                accompanied_by=accompanied_by,
+                changes_since_last=changes,
+                notes=notes,
+            )
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    for line in _detail_lines(visit, blanks=True):
+        typer.echo(line)
+
+
 @inspection_app.command("missing")
 def missing(
     ctx: typer.Context, inspection: IdArgument, db: DbOption = None, json_out: JsonOption = False
@@ -190,6 +239,7 @@ def _visit_json(visit: Inspection, site_name: str) -> dict[str, Any]:
         "finished": visit.finished,
         "soil": visit.soil.value if visit.soil else None,
         "inspector_id": visit.inspector_id,
+        **{name: getattr(visit, name) for name in DETAIL_LABELS},
     }
 
 
@@ -232,6 +282,7 @@ def _render(
         f"{site_name} · {visit.kind.value.replace('_', '-')} inspection {visit.date.isoformat()}"
         f" · {state} · {visit.id}"
     )
+    yield from _detail_lines(visit, blanks=False)
     for stop in stops:
         component = stop.component
         indent = "  " * stop.depth
@@ -250,6 +301,15 @@ def _render(
             else:
                 yield f"{indent}  · {outcome_line('', outcome)}"
     yield f"{len(missing)} thing(s) missing." if missing else "Nothing missing."
+
+
+def _detail_lines(visit: Inspection, *, blanks: bool) -> Iterator[str]:
+    """`  Weather: dry, overcast`, one line per detail; `blanks` shows unrecorded ones too."""
+    width = max(len(label) for label in DETAIL_LABELS.values()) + 1
+    for name, label in DETAIL_LABELS.items():
+        value = getattr(visit, name)
+        if value or blanks:
+            yield f"  {label + ':':<{width}} {value or '(none)'}"
 
 
 def register(app: typer.Typer) -> None:

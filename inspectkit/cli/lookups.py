@@ -39,6 +39,11 @@ OPTION_FOR = {
     "kind": "--kind",
     "date": "--date",
     "inspector_id": "--inspector",
+    "weather": "--weather",
+    "not_inspected": "--not-inspected",
+    "accompanied_by": "--accompanied-by",
+    "changes_since_last": "--changes",
+    "notes": "--notes",
 }
 
 
@@ -46,7 +51,9 @@ def refused(exc: WalkdownError) -> NoReturn:
     """Stop with exit 2, naming the option at fault and what to type instead."""
     if exc.field == "record":  # a rule on the whole record: its message names the fields
         fail(str(exc))
-    fail(f"{OPTION_FOR.get(exc.field, exc.field)}: {exc}")
+    # The model's message names its field already; the option says it for a person.
+    message = str(exc).removeprefix(f"{exc.field}: ")
+    fail(f"{OPTION_FOR.get(exc.field, exc.field)}: {message}")
 
 
 def by_id(store: Store, model: type[R], text: str, option: str) -> R:
