@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 from textual.app import App
 from textual.pilot import Pilot
-from textual.widgets import OptionList, RadioSet, Select, Static
+from textual.widgets import Input, OptionList, RadioSet, Select, Static
 
 from inspectkit.cautions import ACKNOWLEDGED_SETTING
 from inspectkit.demo.generate import build_demo
@@ -34,12 +34,19 @@ from inspectkit.profiles import load_profile
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.tui.app import make_app
+from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.saving_field import SavingField
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
-from inspectkit.walkdown import grade_component, record_reading, start_inspection, walk_for
+from inspectkit.walkdown import (
+    grade_component,
+    record_reading,
+    set_details,
+    start_inspection,
+    walk_for,
+)
 from tests.walkdown_factories import build_walk_site, write_photo
 
 ANCHOR = date(2026, 6, 1)
@@ -478,3 +485,64 @@ async def test_a_continued_draft_shows_the_method_and_doubt_saved(
         assert entry.method_select.value == Method.FOUR_POLE.value
         assert entry.doubt_box.value is True
         assert "doubtful" in status_of(entry)
+
+
+# ------------------------------------------------------------- the visit's details
+
+
+def saved_visit(app: WalkHarness, visit_id: str) -> Inspection:
+    visit = app.store.get(Inspection, visit_id)
+    assert visit is not None
+    return visit
+
+
+async def test_visit_details_are_typed_and_saved(walk_db: tuple[Path, str]) -> None:
+    path, visit_id = walk_db
+    with Store.open(path) as store:
+        set_details(store, visit_id, notes="gate code 4411")
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+        entry.input.focus()  # the key works from inside a reading field, which has ctrl+d too
+        await pilot.pause()
+        assert app.focused is entry.input
+        await pilot.press("ctrl+d")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, VisitDetailsDialog)
+        assert dialog.query_one("#field-notes", Input).value == "gate code 4411"  # prefilled
+        weather = dialog.query_one("#field-weather", Input)
+        weather.focus()
+        await pilot.press(*"dry")
+        dialog.query_one("#field-not_inspected", Input).value = "north roof: no safe access"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert app.screen is screen
+        visit = saved_visit(app, visit_id)
+        assert visit.weather == "dry"
+        assert visit.not_inspected == "north roof: no safe access"
+        assert visit.notes == "gate code 4411" and visit.accompanied_by == ""
+
+
+async def test_a_bad_detail_is_marked_on_its_field_and_the_rest_kept(
+    walk_db: tuple[Path, str],
+) -> None:
+    async with walking(walk_db) as (app, pilot, screen):
+        await pilot.press("ctrl+d")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, VisitDetailsDialog)
+        dialog.query_one("#field-weather", Input).value = "wet"
+        dialog.query_one("#field-accompanied_by", Input).value = "x" * 201
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert app.screen is dialog  # not closed
+        error = dialog.query_one("#error-accompanied_by", Static)
+        assert error.has_class("shown") and "at most 200 characters" in str(error.render())
+        assert not dialog.query_one("#error-weather", Static).has_class("shown")
+        assert dialog.query_one("#field-weather", Input).value == "wet"  # kept as typed
+        assert app.focused is dialog.query_one("#field-accompanied_by", Input)
+        assert saved_visit(app, visit_id := screen.inspection_id).weather == ""  # nothing saved
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.screen is screen
+        assert saved_visit(app, visit_id).weather == ""

@@ -24,6 +24,7 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.widgets.finding_form import FindingForm
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.saving_field import SavingField
@@ -41,6 +42,7 @@ from inspectkit.walkdown import (
     missing_for_completion,
     record_reading,
     saved_entries,
+    set_details,
     set_soil,
     site_context,
     walk_for,
@@ -113,6 +115,16 @@ class WalkdownScreen(Screen[None]):
             id="walkdown.finish",
             priority=True,
             tooltip="Mark the inspection complete, after listing what is missing",
+        ),
+        # Kept out of the footer, which is full at 80 columns; the command palette lists it.
+        Binding(
+            "ctrl+d",
+            "details",
+            "Visit details",
+            id="walkdown.details",
+            priority=True,
+            show=False,
+            tooltip="Weather, what could not be inspected, who came along, alterations, notes",
         ),
         Binding(
             "escape",
@@ -479,6 +491,18 @@ class WalkdownScreen(Screen[None]):
         self.app.push_screen(
             ConfirmDialog(_finish_question(missing), yes_label="Mark complete"), done
         )
+
+    def action_details(self) -> None:
+        """Open the visit's details; each saves through `set_details` when the form is saved."""
+
+        def save(**details: str) -> Inspection:
+            return set_details(self.store, self.inspection_id, **details)
+
+        def done(saved: Inspection | None) -> None:
+            if saved is not None:
+                self.notify("Visit details saved")
+
+        self.app.push_screen(VisitDetailsDialog(self.inspection, save), done)
 
     def action_leave(self) -> None:
         if self.stops:
