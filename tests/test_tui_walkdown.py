@@ -34,6 +34,7 @@ from inspectkit.profiles import load_profile
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.tui.app import make_app
+from inspectkit.tui.commands import ActionsProvider
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
@@ -546,3 +547,13 @@ async def test_a_bad_detail_is_marked_on_its_field_and_the_rest_kept(
         await pilot.pause()
         assert app.screen is screen
         assert saved_visit(app, visit_id).weather == ""
+
+
+async def test_the_command_palette_opens_the_visit_details(walk_db: tuple[Path, str]) -> None:
+    async with walking(walk_db) as (app, pilot, screen):
+        provider = ActionsProvider(screen)
+        [hit] = [hit async for hit in provider.search("visit details")]
+        assert "what could not be inspected" in str(hit.help)
+        hit.command()
+        await pilot.pause()
+        assert isinstance(app.screen, VisitDetailsDialog)
