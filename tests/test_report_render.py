@@ -182,6 +182,7 @@ SITE_DETAILS = {
 VISIT_DETAILS = {
     "accompanied_by": "Ulrike Sæbø, farm manager",
     "changes_since_last": "New grain dryer on the north gable since the last visit, not yet bonded",
+    "notes": "Keys to the roof hatch from the farm office",
 }
 
 
@@ -206,6 +207,7 @@ def test_site_details_and_visit_details_are_in_the_pdf(built) -> None:
     assert "type A: a rod or plate electrode at each down conductor" in text
     assert "Down conductors 2" in text
     assert "Accompanied by Ulrike Sæbø, farm manager" in text
+    assert "Notes Keys to the roof hatch from the farm office" in text
     assert f"{CHANGES_TITLE} {VISIT_DETAILS['changes_since_last']}" in text
     # The site and its protection system: the general part first, then the system.
     assert text.index("The site and its protection system") < text.index("LPS installed by")
@@ -228,4 +230,5 @@ def test_plain_text_sections_carry_the_details(built) -> None:
     arrangement = "Earthing arrangement: type A: a rod or plate electrode at each down conductor"
     assert arrangement in sections["Site"]
     assert "Accompanied by: Ulrike Sæbø, farm manager" in sections["Inspection"]
+    assert "Notes: Keys to the roof hatch from the farm office" in sections["Inspection"]
     assert sections[CHANGES_TITLE] == (VISIT_DETAILS["changes_since_last"],)

@@ -485,6 +485,7 @@ def build_report(
         Field("Accompanied by", inspection.accompanied_by),
         Field("Weather", inspection.weather),
         Field("Soil", inspection.soil.value if inspection.soil else "not recorded"),
+        *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
         Field("Report", revision_label),
         Field("Inspection id", inspection.id),
     ]
