@@ -56,7 +56,7 @@ class InspectApp(App[None]):
             "f4", "switch_mode('settings')", "Settings", id="app.settings",
             tooltip="Inspector, instrument, profiles and data folder",
         ),
-        # Kept out of the footer until the footer snapshots are updated; the palette lists it.
+        # The footer is full at 80 columns; the command palette lists it.
         Binding(
             "f5", "switch_mode('plan')", "Plan", id="app.plan",
             tooltip="The next round of visits, day by day", show=False,
