@@ -11,6 +11,8 @@ type into those.
 
 from __future__ import annotations
 
+import os
+import re
 import uuid
 from datetime import UTC, date, datetime, timedelta
 from enum import StrEnum
@@ -42,6 +44,24 @@ MAX_COUNT = 999_999
 def new_id() -> str:
     """A fresh record key; random, so two offline laptops never collide."""
     return str(uuid.uuid4())
+
+
+def new_ids(count: int) -> list[str]:
+    """`count` fresh keys as `new_id` makes them (random UUID version 4), in one go.
+
+    An import writes an audit row per record: one read of the system's random
+    source and one hex conversion for all of them costs a fifth of `count` calls
+    to `new_id`.
+    """
+    raw = bytearray(os.urandom(16 * count))
+    raw[6::16] = bytes(0x40 | (byte & 0x0F) for byte in raw[6::16])  # version 4
+    raw[8::16] = bytes(0x80 | (byte & 0x3F) for byte in raw[8::16])  # RFC 4122 variant
+    text = raw.hex()
+    return [
+        f"{text[n : n + 8]}-{text[n + 8 : n + 12]}-{text[n + 12 : n + 16]}-"
+        f"{text[n + 16 : n + 20]}-{text[n + 20 : n + 32]}"
+        for n in range(0, 32 * count, 32)
+    ]
 
 
 def utcnow() -> datetime:
@@ -272,6 +292,10 @@ _SEVERITY_RANK = {
 }
 
 
+#: A UUID as `str(uuid.UUID(...))` writes it (RFC 4122 §3), in lower case.
+_CANONICAL_UUID = re.compile(r"[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}\Z")
+
+
 class Record(BaseModel):
     """Fields every stored record carries."""
 
@@ -288,6 +312,8 @@ class Record(BaseModel):
     @field_validator("id")
     @classmethod
     def _id_is_uuid(cls, value: str) -> str:
+        if _CANONICAL_UUID.match(value):  # the form keys are made in; parsing it costs more
+            return value
         try:
             uuid.UUID(value)
         except ValueError:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import uuid
 from datetime import UTC, date, datetime, timedelta
 
 import pytest
@@ -19,6 +20,7 @@ from inspectkit.model import (
     Reading,
     Site,
     explain,
+    new_ids,
 )
 
 NOW = datetime(2026, 6, 1, 12, 0, tzinfo=UTC)
@@ -189,3 +191,13 @@ def test_unknown_fields_are_refused() -> None:
 
 def test_ids_must_be_uuids() -> None:
     assert "UUID" in message(Site, {"id": "site-1", "name": "Mill", "protection_level": "I"})
+
+
+@pytest.mark.parametrize("count", [0, 1, 2, 1000])
+def test_keys_made_in_bulk_are_random_uuid4s_as_the_stdlib_reads_them(count):
+    """Version 4 and the RFC 4122 variant (RFC 4122 §4.4), checked with the `uuid` module."""
+    keys = new_ids(count)
+    assert len(keys) == len(set(keys)) == count
+    for key in keys:
+        parsed = uuid.UUID(key)
+        assert (parsed.version, parsed.variant, str(parsed)) == (4, uuid.RFC_4122, key)

@@ -15,7 +15,7 @@ from typing import Any
 
 import sqlite_utils
 
-from inspectkit.model import MODEL_FOR_TABLE, new_id
+from inspectkit.model import MODEL_FOR_TABLE, new_ids
 from inspectkit.store.rows import canonical
 
 GENESIS = "0" * 64
@@ -54,9 +54,11 @@ def make_entries(
 ) -> list[dict[str, Any]]:
     """Chained audit rows for (table, row id, action, before, after) changes, in order."""
     entries = []
-    for table, row_id, action, before, after in changes:
+    for audit_id, (table, row_id, action, before, after) in zip(
+        new_ids(len(changes)), changes, strict=True
+    ):
         entry = {
-            "id": new_id(),
+            "id": audit_id,
             "at": at,
             "who": who,
             "table_name": table,

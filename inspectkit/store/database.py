@@ -162,12 +162,30 @@ class Store:
         The outermost block takes the write lock at once (BEGIN IMMEDIATE), so the
         audit chain's last hash cannot change under it; inner blocks are savepoints.
         """
-        conn = self.db.conn
-        if conn.in_transaction:
+        if self.db.conn.in_transaction:
             with self.db.atomic():
                 yield self
             return
-        conn.execute("BEGIN IMMEDIATE")
+        with self._outermost("BEGIN IMMEDIATE"):
+            yield self
+
+    @contextmanager
+    def snapshot(self) -> Iterator[Store]:
+        """Every read inside sees one state of the database, while others go on writing.
+
+        A bundle is read table by table; without one read transaction a reading
+        saved meanwhile could arrive without the inspection it belongs to.
+        """
+        if self.db.conn.in_transaction:
+            yield self
+            return
+        with self._outermost("BEGIN DEFERRED"):
+            yield self
+
+    @contextmanager
+    def _outermost(self, begin: str) -> Iterator[Store]:
+        conn = self.db.conn
+        conn.execute(begin)
         try:
             yield self
         except BaseException:

@@ -38,17 +38,29 @@ def site_rows(
     """
     rows: dict[str, list[dict[str, Any]]] = {}
     for model in RECORD_TYPES:
-        where = f"({_SITE_WHERE[model.table]})"
-        params: dict[str, Any] = {"site": site_id}
-        if since is not None and model.table != "site":
-            where += " AND updated_at >= :since"
-            params["since"] = since.isoformat()
+        where, params = _site_filter(model.table, site_id, since)
         cursor = store.db.execute(
             f"SELECT * FROM [{model.table}] WHERE {where} ORDER BY created_at, id", params
         )
         names = [d[0] for d in cursor.description]
         rows[model.table] = [dict(zip(names, values, strict=True)) for values in cursor]
     return rows
+
+
+def site_photo_hashes(store: Store, site_id: str, since: date | None = None) -> list[str]:
+    """The distinct photo files a site's bundle carries (the photo rows `site_rows` picks)."""
+    where, params = _site_filter("photo", site_id, since)
+    sql = f"SELECT DISTINCT sha256 FROM photo WHERE {where} ORDER BY sha256"
+    return [sha for (sha,) in store.db.execute(sql, params)]
+
+
+def _site_filter(table: str, site_id: str, since: date | None) -> tuple[str, dict[str, Any]]:
+    where = f"({_SITE_WHERE[table]})"
+    params: dict[str, Any] = {"site": site_id}
+    if since is not None and table != "site":
+        where += " AND updated_at >= :since"
+        params["since"] = since.isoformat()
+    return where, params
 
 
 _READINGS_SQL = """

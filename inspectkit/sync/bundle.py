@@ -22,10 +22,10 @@ import json
 import os
 import re
 import shutil
-import stat
 import tempfile
 import zipfile
 import zlib
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 from datetime import date
 from pathlib import Path
@@ -35,7 +35,7 @@ from pydantic import ValidationError
 
 from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
 from inspectkit.store import Store
-from inspectkit.store.exchange import site_rows
+from inspectkit.store.exchange import site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import STORED, to_row
 from inspectkit.sync.guard import (
@@ -48,7 +48,9 @@ from inspectkit.sync.guard import (
     check_members,
     limit_for,
     read_capped,
+    same_hash,
 )
+from inspectkit.sync.photo_members import PhotoChecks, add_photos
 from inspectkit.sync.versions import known_versions, version_hash
 
 FORMAT = "inspectkit-bundle"
@@ -123,15 +125,79 @@ def export_bundle(
 ) -> ExportSummary:
     """Write one site's records and photos to a bundle file.
 
-    Photo files are copied as stored, not hashed again: they are named by their
-    hash, and the importing side checks every one.
+    All of it is read in one snapshot of the database, so a reading saved while
+    the bundle is written is either in it with its inspection or not at all. Photo
+    files are copied as stored, not hashed again: they are named by their hash,
+    and the importing side checks every one.
 
     Raises:
         BundleError: the site does not exist, or a photo's file is missing on disk.
     """
-    rows = site_rows(store, site_id, since)
-    if not rows["site"]:
-        raise BundleError(f"no site with id {site_id}")
+    origin = database_id(store)
+    target = Path(target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    handle, temp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.")
+    os.close(handle)
+    try:
+        with store.snapshot(), zipfile.ZipFile(temp, "w") as archive:
+            counts = _fill(store, archive, site_id, since, origin)
+        os.replace(temp, target)
+    except BaseException:
+        Path(temp).unlink(missing_ok=True)
+        raise
+    return ExportSummary(target, {t: n for t, n in counts.items() if t != "photos"},
+                         counts["photos"])  # fmt: skip
+
+
+def _fill(
+    store: Store, archive: zipfile.ZipFile, site_id: str, since: date | None, origin: str
+) -> dict[str, int]:
+    """Write the members; photos go in on a worker thread while the records are encoded."""
+    shas = site_photo_hashes(store, site_id, since)
+    missing = [sha for sha in shas if not photo_path(store, sha).is_file()]
+    if missing:
+        raise BundleError(
+            f"{len(missing)} photo file(s) missing on disk (first {missing[0]}); "
+            "run `inspectkit doctor` to see how to restore them"
+        )
+    files = [(photo_path(store, sha), f"{PHOTO_PREFIX}{sha}") for sha in shas]
+    with ThreadPoolExecutor(max_workers=1, thread_name_prefix="photo-export") as pool:
+        copying = pool.submit(add_photos, archive, files)
+        rows = site_rows(store, site_id, since)
+        if not rows["site"]:
+            raise BundleError(f"no site with id {site_id}")
+        records = json.dumps(
+            {"tables": rows, "history": _history(store, rows)},
+            ensure_ascii=False,
+            separators=(",", ":"),
+        ).encode("utf-8")
+        copying.result()
+    counts = {table: len(r) for table, r in rows.items()} | {"photos": len(shas)}
+    manifest = {
+        "format": FORMAT,
+        "version": VERSION,
+        "schema": store.schema_version(),
+        "origin": origin,
+        "site_id": site_id,
+        "site_name": rows["site"][0]["name"],
+        "exported_at": utcnow().isoformat(),
+        "since": since.isoformat() if since else None,
+        "counts": counts,
+        "members": {RECORDS: hashlib.sha256(records).hexdigest()}
+        | {name: sha for sha, (_, name) in zip(shas, files, strict=True)},
+    }
+    # The fastest level: it packs record JSON nearly as small as the default does.
+    archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED, compresslevel=1)
+    archive.writestr(
+        MANIFEST, json.dumps(manifest, indent=2, ensure_ascii=False), zipfile.ZIP_DEFLATED
+    )
+    return counts
+
+
+def _history(
+    store: Store, rows: dict[str, list[dict[str, Any]]]
+) -> dict[str, dict[str, list[str]]]:
+    """Earlier versions this database has seen of each record, by table and id."""
     history: dict[str, dict[str, list[str]]] = {}
     for table, table_rows in rows.items():
         # Most records were only ever inserted: they have no earlier versions to hash.
@@ -142,59 +208,7 @@ def export_bundle(
             if r["id"] in known
         }
         history[table] = {row_id: hashes for row_id, hashes in earlier.items() if hashes}
-    shas = sorted({r["sha256"] for r in rows["photo"]})
-    missing = [sha for sha in shas if not photo_path(store, sha).is_file()]
-    if missing:
-        raise BundleError(
-            f"{len(missing)} photo file(s) missing on disk (first {missing[0]}); "
-            "run `inspectkit doctor` to see how to restore them"
-        )
-    records = json.dumps(
-        {"tables": rows, "history": history}, ensure_ascii=False, separators=(",", ":")
-    ).encode("utf-8")
-    members = {RECORDS: hashlib.sha256(records).hexdigest()}
-    members.update({f"{PHOTO_PREFIX}{sha}": sha for sha in shas})
-    manifest = {
-        "format": FORMAT,
-        "version": VERSION,
-        "schema": store.schema_version(),
-        "origin": database_id(store),
-        "site_id": site_id,
-        "site_name": rows["site"][0]["name"],
-        "exported_at": utcnow().isoformat(),
-        "since": since.isoformat() if since else None,
-        "counts": {table: len(r) for table, r in rows.items()} | {"photos": len(shas)},
-        "members": members,
-    }
-    target = Path(target)
-    target.parent.mkdir(parents=True, exist_ok=True)
-    handle, temp = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.")
-    os.close(handle)
-    try:
-        with zipfile.ZipFile(temp, "w") as archive:
-            archive.writestr(
-                MANIFEST, json.dumps(manifest, indent=2, ensure_ascii=False), zipfile.ZIP_DEFLATED
-            )
-            # The fastest level: it packs record JSON nearly as small as the default does.
-            archive.writestr(RECORDS, records, zipfile.ZIP_DEFLATED, compresslevel=1)
-            for sha in shas:
-                _add_file(archive, photo_path(store, sha), f"{PHOTO_PREFIX}{sha}")
-        os.replace(temp, target)
-    except BaseException:
-        Path(temp).unlink(missing_ok=True)
-        raise
-    return ExportSummary(target, {t: len(r) for t, r in rows.items()}, len(shas))
-
-
-def _add_file(archive: zipfile.ZipFile, source: Path, name: str) -> None:
-    """Store a file uncompressed (photos are compressed already), in large blocks."""
-    info = zipfile.ZipInfo(name, date_time=(1980, 1, 1, 0, 0, 0))
-    info.compress_type = zipfile.ZIP_STORED
-    info.external_attr = (stat.S_IFREG | 0o644) << 16
-    info.file_size = source.stat().st_size
-    with source.open("rb") as src, archive.open(info, "w") as dest:
-        while block := src.read(_BLOCK):
-            dest.write(block)
+    return history
 
 
 def read_bundle(
@@ -223,14 +237,13 @@ def read_bundle(
             if ours is not None:
                 _same_schema(manifest, ours.schema_version())
             records = _read(archive, RECORDS, limits)
-            _same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest)
-            rows, checked, history, same = _records(records, manifest, ours)
-            photos: dict[str, Path | None] = {}
-            for info in infos:
-                if info.filename.startswith(PHOTO_PREFIX):
-                    sha = info.filename.removeprefix(PHOTO_PREFIX)
-                    held = ours is not None and photo_path(ours, sha).is_file()
-                    photos[sha] = _photo(archive, info, manifest, limits, None if held else staging)
+            same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
+            pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
+            held = set() if ours is None else _held_photos(ours, pictures)
+            checks = PhotoChecks(path, pictures, manifest["members"], limits, staging, held)
+            with checks:
+                rows, checked, history, same = _records(records, manifest, ours)
+                photos = checks.result()
     except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
         raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
     except OSError as exc:
@@ -238,6 +251,11 @@ def read_bundle(
             f"{path}: cannot be read or unpacked ({exc}); nothing was written"
         ) from exc
     return Bundle(manifest, rows, checked, history, photos, same)
+
+
+def _held_photos(ours: Store, pictures: list[zipfile.ZipInfo]) -> set[str]:
+    shas = (info.filename.removeprefix(PHOTO_PREFIX) for info in pictures)
+    return {sha for sha in shas if photo_path(ours, sha).is_file()}
 
 
 def _same_schema(manifest: dict[str, Any], ours: int) -> None:
@@ -254,43 +272,6 @@ def _same_schema(manifest: dict[str, Any], ours: int) -> None:
 def _read(archive: zipfile.ZipFile, name: str, limits: Limits) -> bytes:
     with archive.open(name) as handle:
         return b"".join(read_capped(handle, name, limit_for(name, limits)))
-
-
-def _photo(
-    archive: zipfile.ZipFile,
-    info: zipfile.ZipInfo,
-    manifest: dict[str, Any],
-    limits: Limits,
-    staging: Path | None,
-) -> Path | None:
-    """Hash a photo member while copying it to `staging`; refuse it if the hash is wrong."""
-    name = info.filename
-    sha = name.removeprefix(PHOTO_PREFIX)
-    digest = hashlib.sha256()
-    target = None
-    if staging is not None:
-        # Staged in the photo folder's own layout, so that whole folders move into place.
-        target = staging / sha[:2] / sha
-        target.parent.mkdir(parents=True, exist_ok=True)
-    with archive.open(info) as source, open(target or os.devnull, "wb") as out:
-        for block in read_capped(source, name, limit_for(name, limits)):
-            digest.update(block)
-            out.write(block)
-    if digest.hexdigest() != sha:
-        raise BundleError(
-            f"photo {sha} does not match its hash (content hashes to {digest.hexdigest()}); "
-            "the bundle was damaged or altered, export it again"
-        )
-    _same_hash(name, sha, manifest)
-    return target
-
-
-def _same_hash(name: str, sha: str, manifest: dict[str, Any]) -> None:
-    if manifest["members"].get(name) != sha:
-        raise BundleError(
-            f"member {name!r} does not match the hash in the manifest; "
-            "the bundle was damaged or altered, export it again"
-        )
 
 
 def _json(data: bytes, name: str) -> Any:

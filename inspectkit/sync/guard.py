@@ -128,3 +128,12 @@ def read_capped(handle: IO[bytes], name: str, cap: int) -> Iterator[bytes]:
                 f"member {name!r} unpacks to more than the {cap:,} bytes allowed; refused"
             )
         yield block
+
+
+def same_hash(name: str, sha: str, members: dict[str, str]) -> None:
+    """Refuse a member whose content does not hash to what the manifest lists for it."""
+    if members.get(name) != sha:
+        raise BundleError(
+            f"member {name!r} does not match the hash in the manifest; "
+            "the bundle was damaged or altered, export it again"
+        )
