@@ -181,3 +181,40 @@ def test_integrity_check_reports_a_damaged_index_page(tmp_path):
     with Store.open(db) as store:
         problems = check_health(store, hash_photos=False)
     assert any(p.check == "integrity" and "restore the latest backup" in p.fix for p in problems)
+
+
+def test_a_backup_carries_its_photos_and_opens_with_them(tmp_path):
+    db = tmp_path / "inspect.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in")
+        names = sorted(p.name for p in store.photos_dir.rglob("*") if p.is_file())
+    target = tmp_path / "safe" / "monday.bak"
+    result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target)])
+    assert result.exit_code == 0, result.output
+    assert f"{len(names)} photo file(s) copied" in result.output
+    with Store.open(target, create=False) as copy:
+        assert copy.photos_dir == tmp_path / "safe" / "monday-photos"
+        assert check_health(copy) == []  # every photo present, and each matches its hash
+        assert sorted(p.name for p in copy.photos_dir.rglob("*") if p.is_file()) == names
+
+
+def test_a_backup_says_which_photos_it_could_not_carry(tmp_path):
+    db = tmp_path / "inspect.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in")
+        (lost,) = store.db.execute("SELECT sha256 FROM photo").fetchone()
+        photo_path(store, lost).unlink()
+    target = tmp_path / "b.bak"
+    result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target)])
+    assert result.exit_code == 1 and lost in result.output and "doctor" in result.output
+    assert target.exists(), "the database itself is still backed up"
+
+
+def test_a_backup_without_photos_says_to_copy_them(tmp_path):
+    db = tmp_path / "inspect.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in")
+    target = tmp_path / "b.bak"
+    result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target), "--no-photos"])
+    assert result.exit_code == 0 and "copy the folder" in result.output
+    assert not (tmp_path / "b-photos").exists()

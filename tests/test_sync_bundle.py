@@ -8,12 +8,23 @@ from datetime import UTC, date, datetime
 from pathlib import Path
 
 import pytest
-from sync_factories import build_site, copy_db, edit, file_hash, photo_files, record_rows, sign
+from sync_factories import (
+    build_site,
+    copy_db,
+    edit,
+    file_hash,
+    jpeg,
+    photo_files,
+    record_rows,
+    sign,
+)
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
 from inspectkit.model import RECORD_TYPES, Finding, Grade, Inspection, Reading, Site, new_id
 from inspectkit.store import Store
+from inspectkit.store.health import check_health
+from inspectkit.store.photos import attach_photo
 from inspectkit.sync.bundle import FORMAT, VERSION, export_bundle
 from inspectkit.sync.guard import BundleError
 from inspectkit.sync.merge import import_bundle
@@ -232,6 +243,22 @@ def test_cli_export_and_import(office, tmp_path):
     assert result.exit_code == 1, result.output
     assert "conflict: site Harbour Mill" in result.output and "kept theirs" in result.output
     assert store.get(Site, records.site.id).notes == "laptop"
+
+
+def test_a_photo_refused_with_its_signed_inspection_leaves_no_file_behind(office, tmp_path):
+    store, records = office
+    store.close()
+    other = Store.open(copy_db(tmp_path / "office.sqlite", tmp_path / "other.sqlite"))
+    store = Store.open(tmp_path / "office.sqlite")
+    sign(store, store.get(Inspection, records.inspection.id))
+    late = attach_photo(other, jpeg(tmp_path / "late.jpg", 7), inspection_id=records.inspection.id)
+    files_before = photo_files(store)
+
+    report = import_bundle(store, export_bundle(other, records.site.id, tmp_path / "x.zip").path)
+
+    assert any(late.id in message for message in report.kept_signed)
+    assert photo_files(store) == files_before and report.photos_added == 0
+    assert check_health(store) == []
 
 
 def test_cli_refuses_a_broken_bundle_with_exit_2(office, tmp_path):

@@ -10,6 +10,8 @@ import typer
 
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.store import StoreError
+from inspectkit.store.database import photos_dir_of
+from inspectkit.store.photos import copy_photos_for_backup
 
 
 def default_backup_path(db_path: Path, now: datetime) -> Path:
@@ -25,9 +27,16 @@ def backup(
             "-o", "--out", help="Backup file (default: timestamped, beside the db).", dir_okay=False
         ),
     ] = None,
+    photos: Annotated[
+        bool, typer.Option("--photos/--no-photos", help="Copy the photo files it names too.")
+    ] = True,
     db: DbOption = None,
 ) -> None:
-    """Copy the database with SQLite's online backup: safe while the TUI or a command writes."""
+    """Copy the database with SQLite's online backup (safe while the TUI or a command
+    writes), and the photos its records name into a folder beside it.
+
+    Exit 1 when the copy failed its check or photo files were missing.
+    """
     with open_store(ctx, db) as store:
         target = out or default_backup_path(store.path, datetime.now())
         if target.exists():
@@ -38,10 +47,18 @@ def backup(
             store.backup(target)
         except StoreError as exc:
             fail(str(exc), Exit.ACT)
-        photos = store.photos_dir
+        copied, missing = copy_photos_for_backup(store, target) if photos else (0, [])
     typer.echo(f"Backed up to {target} (checked: ok).")
-    if photos.is_dir():
-        typer.echo(f"Photos are not in the backup: copy the folder {photos} as well.")
+    if photos:
+        typer.echo(f"{copied} photo file(s) copied to {photos_dir_of(target)}.")
+    else:
+        typer.echo(f"Photos are not in the backup: copy the folder {store.photos_dir} as well.")
+    if missing:
+        fail(
+            f"{len(missing)} photo file(s) the records name are missing here (first "
+            f"{missing[0]}) and are not in the backup; run `inspectkit doctor`",
+            Exit.ACT,
+        )
 
 
 def doctor(

@@ -55,6 +55,11 @@ def _pragmas(conn: sqlite3.Connection) -> None:
     conn.execute("PRAGMA foreign_keys = ON")
 
 
+def photos_dir_of(db_path: Path) -> Path:
+    """The photo folder that belongs to a database file, wherever the file is."""
+    return db_path.with_name(f"{db_path.stem}-photos")
+
+
 class Store:
     """One open database and the folder of photos beside it."""
 
@@ -111,7 +116,7 @@ class Store:
         """Content-addressed photo folder beside the database (`demo.sqlite` → `demo-photos/`)."""
         if self.path is None:
             raise StoreError("an in-memory database has no photo folder")
-        return self.path.with_name(f"{self.path.stem}-photos")
+        return photos_dir_of(self.path)
 
     def schema_version(self) -> int:
         if "meta" not in self.db.table_names():

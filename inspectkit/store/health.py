@@ -100,7 +100,8 @@ def photo_problems(store: Store, *, hash_photos: bool = True) -> list[HealthProb
     for path, photo_id in expected.items():
         restore = (
             f"import a bundle that holds this photo (`inspectkit import BUNDLE` puts back missing "
-            f"files), or copy {path.name} from a backup of {folder} to {path}"
+            f"files), or copy {path.name} to {path} from the NAME-photos folder that "
+            f"`inspectkit backup` writes beside a backup NAME.bak, or from a copy of {folder}"
         )
         if not path.is_file():
             problems.append(

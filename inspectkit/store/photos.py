@@ -9,6 +9,7 @@ from __future__ import annotations
 import hashlib
 import os
 import shutil
+import sqlite3
 import tempfile
 from datetime import UTC, datetime
 from pathlib import Path
@@ -16,7 +17,7 @@ from pathlib import Path
 from PIL import Image, UnidentifiedImageError
 
 from inspectkit.model import Photo
-from inspectkit.store.database import Store, StoreError
+from inspectkit.store.database import Store, StoreError, photos_dir_of
 
 _EXIF_ORIENTATION = 0x0112
 _EXIF_IFD = 0x8769
@@ -33,8 +34,13 @@ def file_sha256(path: Path) -> str:
 
 
 def photo_path(store: Store, sha256: str) -> Path:
-    """Where the file of that hash lives (two-letter fan-out keeps folders small)."""
-    return store.photos_dir / sha256[:2] / sha256
+    """Where the file of that hash lives."""
+    return _in_folder(store.photos_dir, sha256)
+
+
+def _in_folder(folder: Path, sha256: str) -> Path:
+    """A two-letter fan-out keeps folders small."""
+    return folder / sha256[:2] / sha256
 
 
 def read_exif(path: Path) -> tuple[int, datetime | None, int, int]:
@@ -69,14 +75,52 @@ def read_exif(path: Path) -> tuple[int, datetime | None, int, int]:
 def put_file(store: Store, source: Path) -> str:
     """Copy a file into the photo folder under its hash; return the hash."""
     sha = file_sha256(source)
-    target = photo_path(store, sha)
-    if not target.exists():
-        target.parent.mkdir(parents=True, exist_ok=True)
-        handle, temp = tempfile.mkstemp(dir=target.parent, prefix=".incoming-")
-        os.close(handle)
+    _place(source, photo_path(store, sha))
+    return sha
+
+
+def _place(source: Path, target: Path) -> bool:
+    """Copy `source` to `target` unless it is there; never a half-copied file under the name."""
+    if target.exists():
+        return False
+    target.parent.mkdir(parents=True, exist_ok=True)
+    handle, temp = tempfile.mkstemp(dir=target.parent, prefix=".incoming-")
+    os.close(handle)
+    try:
         shutil.copyfile(source, temp)
         os.replace(temp, target)
-    return sha
+    except BaseException:
+        Path(temp).unlink(missing_ok=True)
+        raise
+    return True
+
+
+def copy_photos_for_backup(store: Store, backup: Path) -> tuple[int, list[str]]:
+    """Copy the photo files a backup's records name into the backup's own photo folder.
+
+    The folder is the one the backup opens with (`x.bak` → `x-photos/`), so a
+    restored backup has its photos. Files named by their hash never change, so a
+    file already there is not copied again, and a second backup to the same place
+    costs only the new photos.
+
+    Returns:
+        How many files were copied, and the hashes of files missing from this
+        database's photo folder (`inspectkit doctor` says how to restore them).
+    """
+    conn = sqlite3.connect(f"file:{backup}?mode=ro", uri=True)
+    try:
+        shas = [sha for (sha,) in conn.execute("SELECT DISTINCT sha256 FROM photo ORDER BY 1")]
+    finally:
+        conn.close()
+    folder = photos_dir_of(backup)
+    copied, missing = 0, []
+    for sha in shas:
+        source = photo_path(store, sha)
+        if not source.is_file():
+            missing.append(sha)
+        elif _place(source, _in_folder(folder, sha)):
+            copied += 1
+    return copied, missing
 
 
 def attach_photo(
@@ -105,3 +149,20 @@ def attach_photo(
         height=height,
     )
     return store.save(photo)
+
+
+def remove_unreferenced(store: Store, shas: list[str]) -> list[str]:
+    """Delete those of these photo files that no photo record names; return their hashes."""
+    named: set[str] = set()
+    for start in range(0, len(shas), 500):
+        chunk = shas[start : start + 500]
+        marks = ",".join("?" * len(chunk))
+        named.update(
+            sha for (sha,) in store.db.execute(
+                f"SELECT sha256 FROM photo WHERE sha256 IN ({marks})", chunk
+            )
+        )
+    dropped = [sha for sha in shas if sha not in named]
+    for sha in dropped:
+        photo_path(store, sha).unlink(missing_ok=True)
+    return dropped

@@ -416,8 +416,8 @@ def _check_row(model: type[Record], number: int, row: Any) -> Record:
     return record
 
 
-def place_photos(store: Store, photos: dict[str, Path | None]) -> int:
-    """Move checked, staged photos into the photo folder; return how many were new.
+def place_photos(store: Store, photos: dict[str, Path | None]) -> list[str]:
+    """Move checked, staged photos into the photo folder; return the hashes that were new.
 
     Creating files and folders is the slow part of an import, so a staged folder
     the photo folder lacks is moved in whole (the whole staging tree when there is
@@ -425,24 +425,24 @@ def place_photos(store: Store, photos: dict[str, Path | None]) -> int:
     """
     staged = {sha: path for sha, path in photos.items() if path is not None}
     if not staged:
-        return 0
+        return []
     roots = {path.parent.parent for path in staged.values()}
     if len(roots) == 1 and _move_folder(roots.pop(), store.photos_dir):
-        return len(staged)
+        return list(staged)
     by_folder: dict[Path, list[str]] = {}
     for sha, path in staged.items():
         by_folder.setdefault(path.parent, []).append(sha)
-    added = 0
+    added = []
     for folder, shas in by_folder.items():
         if _move_folder(folder, photo_path(store, shas[0]).parent):
-            added += len(shas)
+            added += shas
             continue
         for sha in shas:
             target = photo_path(store, sha)
             if not target.exists():
                 target.parent.mkdir(parents=True, exist_ok=True)
                 shutil.move(staged[sha], target)
-                added += 1
+                added.append(sha)
     return added
 
 

@@ -29,7 +29,7 @@ from typing import Any, Literal
 
 from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
-from inspectkit.store.photos import photo_path
+from inspectkit.store.photos import photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
 from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, read_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
@@ -147,8 +147,7 @@ def import_bundle(
             report.photos_added = sum(
                 1 for sha in bundle.photos if not photo_path(store, sha).exists()
             )
-        else:
-            report.photos_added = place_photos(store, bundle.photos)
+        placed = [] if dry_run else place_photos(store, bundle.photos)
         try:
             with store.transaction():
                 _apply(store, plan, report)
@@ -156,6 +155,12 @@ def import_bundle(
                     raise _DryRun
         except _DryRun:
             pass
+        finally:
+            # Files of photo records that were refused (signed), or of a write that
+            # failed, are taken out again: the folder holds what the records name.
+            dropped = remove_unreferenced(store, placed)
+        if not dry_run:
+            report.photos_added = len(placed) - len(dropped)
     return report
 
 
