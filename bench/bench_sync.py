@@ -186,7 +186,9 @@ def floor_via_zip(source: Store, work: Path) -> None:
     with zipfile.ZipFile(bundle, "w") as archive:
         archive.writestr("rows.json", json.dumps(tables), zipfile.ZIP_DEFLATED, compresslevel=1)
         for sha in shas:
-            archive.write(photo_path(source, sha), f"photos/{sha}")
+            member = archive.open(f"photos/{sha}", "w")
+            with photo_path(source, sha).open("rb") as src, member as out:
+                shutil.copyfileobj(src, out, 1 << 20)
     folder = work / "bare-photos"
     with zipfile.ZipFile(bundle) as archive:
         rows = json.loads(archive.read("rows.json"))
