@@ -406,8 +406,9 @@ async def test_choosing_the_method_saves_it_at_once(walk_db: tuple[Path, str]) -
         assert "PASS 4.2 Ω ≤ 10 Ω" in status_of(entry) and "✓ saved" in status_of(entry)
 
 
-async def test_a_method_chosen_before_the_value_is_saved_with_it(
-    walk_db: tuple[Path, str],
+@pytest.mark.parametrize("walk_on", [False, True], ids=["staying", "walking on and back"])
+async def test_a_method_and_doubt_picked_before_the_value_are_saved_with_it(
+    walk_db: tuple[Path, str], walk_on: bool
 ) -> None:
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
@@ -415,11 +416,19 @@ async def test_a_method_chosen_before_the_value_is_saved_with_it(
         select = entry.method_select
         assert select is not None
         select.value = Method.CLAMP_ON.value  # the combined system allows a clamp-on meter
+        entry.doubt_box.value = True
         await pilot.pause()
+        if walk_on:
+            stop = screen.index
+            await screen.show_stop(stop + 1)
+            await screen.show_stop(stop)
+            entry = await entry_at(screen, "TJ-01", Quantity.EARTH_COMBINED)
+            assert entry.method_select.value == Method.CLAMP_ON.value and entry.doubt_box.value
         assert "saved with the value" in status_of(entry)
         assert app.store.select(Reading, "inspection_id = ?", [visit_id]) == []
         await type_into(pilot, entry, "3.9")
-        assert saved_reading(app, visit_id, Quantity.EARTH_COMBINED).method is Method.CLAMP_ON
+        reading = saved_reading(app, visit_id, Quantity.EARTH_COMBINED)
+        assert (reading.method, reading.unreliable) == (Method.CLAMP_ON, True)
 
 
 async def test_continuity_offers_two_and_four_wire(walk_db: tuple[Path, str]) -> None:

@@ -143,6 +143,8 @@ class WalkdownScreen(Screen[None]):
         self.saved = SavedEntries({}, {}, {})
         #: Text that could not be saved, by (component id, field id), kept as typed.
         self.drafts: dict[tuple[str, str], str] = {}
+        #: Method and doubt picked before a value was typed, by (component id, quantity).
+        self.choices: dict[tuple[str, Quantity], tuple[Method, bool]] = {}
 
     # ------------------------------------------------------------ accessors
 
@@ -319,6 +321,7 @@ class WalkdownScreen(Screen[None]):
                     q, text, method, doubtful
                 ),
                 outcome=self.saved.readings.get((component.id, quantity)),
+                choices=self.choices.get((component.id, quantity)),
                 id=f"q-{quantity.value}",
             )
             for quantity in stop.quantities
@@ -368,6 +371,12 @@ class WalkdownScreen(Screen[None]):
                 refused += 1
             else:
                 self.drafts.pop(key, None)
+        for entry in self.detail.query(ReadingEntry):
+            key = (cid, entry.quantity)
+            if (choices := entry.pending_choices) is not None:
+                self.choices[key] = choices
+            else:
+                self.choices.pop(key, None)
         if refused:
             self.notify(
                 f"{self.stop.component.tag}: {refused} field(s) not saved, kept as typed",

@@ -91,6 +91,9 @@ class ReadingEntry(SavingField):
     and a box to mark the reading doubtful. Changing either saves at once, with the
     value already saved, and the verdict says so; Enter on the value skips them.
 
+    Args:
+        choices: Method and doubt picked earlier for a value not yet typed.
+
     Attributes:
         quantity: What this entry measures.
         outcome: The verdict on what was last saved, or None before the first save.
@@ -112,14 +115,14 @@ class ReadingEntry(SavingField):
         record: Recorder,
         *,
         outcome: ReadingOutcome | None = None,
+        choices: tuple[Method, bool] | None = None,
         id: str | None = None,
     ) -> None:
         self.quantity = quantity
         self.outcome = outcome
         self._record = record
         self.methods = [m for m in Method if m in METHODS_FOR[quantity]]
-        self.method = DEFAULT_METHOD[quantity]
-        self.doubtful = False
+        self.method, self.doubtful = choices or (DEFAULT_METHOD[quantity], False)
         typed = ""
         if outcome is not None:
             reading = outcome.reading
@@ -129,7 +132,7 @@ class ReadingEntry(SavingField):
             entry_label(quantity),
             self._save,
             value=typed,
-            saved_status=outcome_text(outcome) if outcome else None,
+            saved_status=outcome_text(outcome) if outcome else KEPT_FOR_VALUE if choices else None,
             placeholder=PLACEHOLDERS[quantity],
             allow_blank=False,
             id=id,
@@ -164,6 +167,16 @@ class ReadingEntry(SavingField):
     @property
     def doubt_box(self) -> Checkbox:
         return self.query_one(".doubtful", Checkbox)
+
+    @property
+    def pending_choices(self) -> tuple[Method, bool] | None:
+        """Method and doubt picked with no value saved yet, to keep when the stop is left."""
+        if self.outcome is None and (self.method, self.doubtful) != (
+            DEFAULT_METHOD[self.quantity],
+            False,
+        ):
+            return self.method, self.doubtful
+        return None
 
     def _save(self, text: str) -> Text:
         self.outcome = self._record(text, self.method, self.doubtful)
