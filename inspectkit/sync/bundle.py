@@ -11,8 +11,9 @@ Layout (format `inspectkit-bundle`, version 1):
 - `photos/<sha256>`: photo files, named by their content hash.
 
 Reading a bundle checks all of it (members, hashes, every record through its
-model, bar those equal to the importing database's own rows) before anything is
-written anywhere.
+model, bar those equal to the importing database's own rows); the photos are
+checked on worker threads while the records are checked and written, and the
+import commits nothing before both are done.
 """
 
 from __future__ import annotations
@@ -25,7 +26,9 @@ import shutil
 import tempfile
 import zipfile
 import zlib
+from collections.abc import Iterator
 from concurrent.futures import ThreadPoolExecutor
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import date
 from pathlib import Path
@@ -90,25 +93,42 @@ class ExportSummary:
 
 @dataclass
 class Bundle:
-    """A bundle read and checked in full.
+    """A bundle whose records are checked; its photos are checked on worker threads.
 
     Attributes:
         manifest: The manifest as written.
         rows: Stored-form rows by table, in `RECORD_TYPES` order.
         records: The same rows as checked records, by table and id.
         history: Earlier version hashes by table and record id.
-        photos: Photo hashes in the bundle → the checked file staged on disk, or
-            None when not staged (a dry run, or a file the database holds already).
+        photo_hashes: Hashes of the photo files in the bundle, in its order.
         same: Ids of rows equal to the importing database's own, by table; they are
             not in `records`, since they are rows that database already holds.
     """
 
+    path: Path
     manifest: dict[str, Any]
     rows: dict[str, list[dict[str, Any]]]
     records: dict[str, dict[str, Record]]
     history: dict[str, dict[str, set[str]]]
-    photos: dict[str, Path | None] = field(default_factory=dict)
-    same: dict[str, set[str]] = field(default_factory=dict)
+    photo_hashes: list[str]
+    same: dict[str, set[str]]
+    checks: PhotoChecks | None = field(default=None, repr=False)
+    _photos: dict[str, Path | None] | None = field(default=None, repr=False)
+
+    def checked_photos(self) -> dict[str, Path | None]:
+        """Wait for the photo checks: hash → the file staged, or None when not staged.
+
+        A file is not staged in a dry run, or when the database holds it already.
+
+        Raises:
+            BundleError: the first photo in the bundle's order that was refused.
+        """
+        if self._photos is None:
+            if self.checks is None:
+                raise BundleError("the bundle was closed before its photos were checked")
+            with _refusing_damage(self.path):
+                self._photos = self.checks.result()
+        return self._photos
 
 
 def database_id(store: Store) -> str:
@@ -211,13 +231,15 @@ def _history(
     return history
 
 
-def read_bundle(
+@contextmanager
+def reading_bundle(
     path: Path,
     limits: Limits = DEFAULT_LIMITS,
     staging: Path | None = None,
     ours: Store | None = None,
-) -> Bundle:
-    """Open a bundle and check all of it; photos are copied to `staging` as they are checked.
+) -> Iterator[Bundle]:
+    """Open a bundle and check its records; photos are checked and copied to `staging`
+    on worker threads meanwhile, until `Bundle.checked_photos()` or the block's end.
 
     With `ours`, the database the bundle is for, a row equal to that database's own
     is not validated again and a photo file it holds is checked but not staged: on
@@ -230,27 +252,32 @@ def read_bundle(
     path = Path(path)
     if not path.is_file():
         raise BundleError(f"{path}: no such file; give the path of a bundle")
+    with _refusing_damage(path), zipfile.ZipFile(path) as archive:
+        infos = check_members(archive, limits)
+        manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
+        if ours is not None:
+            _same_schema(manifest, ours.schema_version())
+        records = _read(archive, RECORDS, limits)
+        same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
+    pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
+    held = set() if ours is None else _held_photos(ours, pictures)
+    with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
+        rows, checked, history, same = _records(records, manifest, ours)
+        hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
+        yield Bundle(path, manifest, rows, checked, history, hashes, same, checks)
+
+
+@contextmanager
+def _refusing_damage(path: Path) -> Iterator[None]:
+    """What reading a damaged or unreadable zip raises, as a refusal of the bundle."""
     try:
-        with zipfile.ZipFile(path) as archive:
-            infos = check_members(archive, limits)
-            manifest = _manifest(_read(archive, MANIFEST, limits), {i.filename for i in infos})
-            if ours is not None:
-                _same_schema(manifest, ours.schema_version())
-            records = _read(archive, RECORDS, limits)
-            same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
-            pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
-            held = set() if ours is None else _held_photos(ours, pictures)
-            checks = PhotoChecks(path, pictures, manifest["members"], limits, staging, held)
-            with checks:
-                rows, checked, history, same = _records(records, manifest, ours)
-                photos = checks.result()
+        yield
     except (zipfile.BadZipFile, zlib.error, EOFError) as exc:
         raise BundleError(f"{path}: not a bundle, or a damaged one ({exc})") from exc
     except OSError as exc:
         raise BundleError(
             f"{path}: cannot be read or unpacked ({exc}); nothing was written"
         ) from exc
-    return Bundle(manifest, rows, checked, history, photos, same)
 
 
 def _held_photos(ours: Store, pictures: list[zipfile.ZipInfo]) -> set[str]:

@@ -15,7 +15,8 @@ The rules, per record of the bundle (theirs) against the database (ours):
 A signed inspection and what was recorded in it are never overwritten: the store
 refuses, and the record is reported as kept ours.
 
-Everything is checked before anything is written, and the write is one transaction.
+Nothing is committed before everything is checked: the write is one transaction, and
+the photos, checked on other threads meanwhile, are waited for inside it.
 """
 
 from __future__ import annotations
@@ -31,7 +32,7 @@ from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
 from inspectkit.store.photos import photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
-from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, read_bundle
+from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
 from inspectkit.sync.versions import known_versions, version_hash
 
@@ -136,23 +137,27 @@ def import_bundle(
         BundleError: the bundle is refused; nothing was written.
     """
     staging_root = store.path.parent if store.path is not None else None
-    with tempfile.TemporaryDirectory(dir=staging_root, prefix=".bundle-") as staging:
+    placed: list[str] = []
+    with (
+        tempfile.TemporaryDirectory(dir=staging_root, prefix=".bundle-") as staging,
         # A folder of its own: the staging folder itself is private (mode 0700), and
         # its photo tree may become the photo folder.
-        bundle = read_bundle(path, limits, None if dry_run else Path(staging) / "photos", store)
+        reading_bundle(path, limits, _stage(staging, dry_run), store) as bundle,
+    ):
         plan = _plan(store, bundle, prefer)
         report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
         report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
-        if dry_run:
-            report.photos_added = sum(
-                1 for sha in bundle.photos if not photo_path(store, sha).exists()
-            )
-        placed = [] if dry_run else place_photos(store, bundle.photos)
         try:
             with store.transaction():
                 _apply(store, plan, report)
+                # Checked meanwhile on other threads: a photo refused undoes the rows.
+                photos = bundle.checked_photos()
                 if dry_run:
+                    report.photos_added = sum(
+                        1 for sha in photos if not photo_path(store, sha).exists()
+                    )
                     raise _DryRun
+                placed = place_photos(store, photos)
         except _DryRun:
             pass
         finally:
@@ -162,6 +167,10 @@ def import_bundle(
         if not dry_run:
             report.photos_added = len(placed) - len(dropped)
     return report
+
+
+def _stage(staging: str, dry_run: bool) -> Path | None:
+    return None if dry_run else Path(staging) / "photos"
 
 
 def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
@@ -255,9 +264,10 @@ def _check_references(store: Store, bundle: Bundle) -> None:
 
 
 def _check_photo_files(store: Store, bundle: Bundle) -> None:
+    in_bundle = set(bundle.photo_hashes)
     for row in bundle.rows.get("photo", []):
         sha = row["sha256"]
-        if sha not in bundle.photos and not photo_path(store, sha).is_file():
+        if sha not in in_bundle and not photo_path(store, sha).is_file():
             raise BundleError(
                 f"photo {row['id']} needs the file {sha}, which is neither in the bundle nor "
                 f"in {store.photos_dir}; export the bundle again with its photos"
