@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 import sqlite3
 from datetime import UTC, date, datetime
 from pathlib import Path
@@ -251,6 +252,30 @@ def test_same_photo_is_stored_once(tmp_path: Path, db_path: Path) -> None:
         files = [p for p in store.photos_dir.rglob("*") if p.is_file()]
         assert len(files) == 1
         assert len(store.select(Photo)) == 2
+
+
+@pytest.mark.skipif(not Path("/proc/self/fd").is_dir(), reason="names open files through /proc")
+def test_a_photo_is_on_the_disk_before_its_record_is_committed(
+    tmp_path: Path, db_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """The file and the folder it was renamed into are synced before the record is saved."""
+    events: list[str] = []
+    real_fsync = os.fsync
+    monkeypatch.setattr(
+        os, "fsync", lambda fd: (events.append(os.readlink(f"/proc/self/fd/{fd}")), real_fsync(fd))
+    )
+    picture = tmp_path / "er01.jpg"
+    Image.new("RGB", (32, 24), "teal").save(picture)
+    with Store.open(db_path) as store:
+        _, joint, visit = make_site(store)
+        real_save = store.save
+        monkeypatch.setattr(store, "save", lambda r: (events.append("commit"), real_save(r))[1])
+        photo = attach_photo(store, picture, inspection_id=visit.id, component_id=joint.id)
+        stored = photo_path(store, photo.sha256)
+    commit = events.index("commit")
+    synced = [Path(name) for name in events[:commit]]
+    assert any(p.parent == stored.parent and p.name.startswith(".incoming-") for p in synced)
+    assert stored.parent in synced
 
 
 def test_a_file_that_is_not_a_photo_is_refused(tmp_path: Path, db_path: Path) -> None:

@@ -80,7 +80,11 @@ def put_file(store: Store, source: Path) -> str:
 
 
 def _place(source: Path, target: Path) -> bool:
-    """Copy `source` to `target` unless it is there; never a half-copied file under the name."""
+    """Copy `source` to `target` unless it is there; never a half-copied file under the name.
+
+    The copy is on the disk, not only in the system's cache, before its record is
+    committed: a laptop whose battery dies on the roof keeps the photo it showed saved.
+    """
     if target.exists():
         return False
     target.parent.mkdir(parents=True, exist_ok=True)
@@ -88,11 +92,34 @@ def _place(source: Path, target: Path) -> bool:
     os.close(handle)
     try:
         shutil.copyfile(source, temp)
+        sync_file(Path(temp))
         os.replace(temp, target)
     except BaseException:
         Path(temp).unlink(missing_ok=True)
         raise
+    sync_folder(target.parent)
     return True
+
+
+def sync_file(path: Path) -> None:
+    """Wait until a file's content is on the disk."""
+    with path.open("rb+") as handle:
+        os.fsync(handle.fileno())
+
+
+def sync_folder(folder: Path) -> None:
+    """Wait until the names in a folder (a file renamed into it) are on the disk.
+
+    POSIX only: elsewhere a folder cannot be opened to sync, and a rename is
+    written through by the file system itself.
+    """
+    if os.name != "posix":
+        return
+    handle = os.open(folder, os.O_RDONLY)
+    try:
+        os.fsync(handle)
+    finally:
+        os.close(handle)
 
 
 def copy_photos_for_backup(store: Store, backup: Path) -> tuple[int, list[str]]:

@@ -39,7 +39,7 @@ from pydantic import ValidationError
 from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
 from inspectkit.store import Store
 from inspectkit.store.exchange import site_photo_hashes, site_rows
-from inspectkit.store.photos import photo_path
+from inspectkit.store.photos import photo_path, sync_folder
 from inspectkit.store.rows import STORED, to_row
 from inspectkit.sync.guard import (
     DEFAULT_LIMITS,
@@ -461,15 +461,17 @@ def place_photos(store: Store, photos: dict[str, Path | None]) -> list[str]:
         by_folder.setdefault(path.parent, []).append(sha)
     added = []
     for folder, shas in by_folder.items():
-        if _move_folder(folder, photo_path(store, shas[0]).parent):
+        into = photo_path(store, shas[0]).parent
+        if _move_folder(folder, into):
             added += shas
             continue
-        for sha in shas:
-            target = photo_path(store, sha)
-            if not target.exists():
-                target.parent.mkdir(parents=True, exist_ok=True)
-                shutil.move(staged[sha], target)
-                added.append(sha)
+        moved = [sha for sha in shas if not photo_path(store, sha).exists()]
+        into.mkdir(parents=True, exist_ok=True)
+        for sha in moved:
+            shutil.move(staged[sha], photo_path(store, sha))
+        if moved:
+            sync_folder(into)
+        added += moved
     return added
 
 
@@ -482,4 +484,5 @@ def _move_folder(source: Path, target: Path) -> bool:
         os.rename(source, target)
     except OSError:  # made meanwhile by another process, or not on the same disk
         return False
+    sync_folder(target.parent)
     return True

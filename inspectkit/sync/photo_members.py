@@ -136,6 +136,10 @@ class PhotoChecks:
             for block in read_capped(source, name, limit_for(name, self._limits)):
                 digest.update(block)
                 out.write(block)
+            if target is not None:
+                # On the disk before the records naming it are committed.
+                out.flush()
+                os.fsync(out.fileno())
         if digest.hexdigest() != sha:
             raise BundleError(
                 f"photo {sha} does not match its hash (content hashes to {digest.hexdigest()}); "
