@@ -13,7 +13,8 @@ twice, and that share of the ratio is the format's, not the checks'.
 
 Creating the photo files and folders is most of the floor's time; it is system
 time, and on a shared disk it varies from run to run by a factor of two, which
-moves the ratio. User time is the Python work alone.
+moves the ratio. Each run starts after `os.sync()`, so that none pays for writing
+back what an earlier one left in the cache. User time is the Python work alone.
 
 Run: python bench/bench_sync.py [--photos 200] [--years 20] [--runs 7] [--phone-photos]
      [--profile]
@@ -24,6 +25,7 @@ from __future__ import annotations
 import argparse
 import io
 import json
+import os
 import random
 import resource
 import shutil
@@ -215,6 +217,8 @@ def floor_via_zip(source: Store, work: Path) -> None:
 def timed(fn, root: Path) -> tuple[tuple[float, float, float], dict[str, float]]:  # noqa: ANN001
     """Wall, user and system seconds of one run of fn(fresh folder), and its phases."""
     work = Path(tempfile.mkdtemp(dir=root, prefix="run-"))
+    # Every run starts with nothing left to write back from the one before it.
+    os.sync()
     before, started = resource.getrusage(resource.RUSAGE_SELF), time.perf_counter()
     parts = fn(work) or {}
     wall, after = time.perf_counter() - started, resource.getrusage(resource.RUSAGE_SELF)
