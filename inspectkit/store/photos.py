@@ -193,3 +193,51 @@ def remove_unreferenced(store: Store, shas: list[str]) -> list[str]:
     for sha in dropped:
         photo_path(store, sha).unlink(missing_ok=True)
     return dropped
+
+
+def adopt_staged(store: Store, photos: dict[str, Path | None]) -> list[str]:
+    """Move checked photo files staged in the folder's layout into the photo folder.
+
+    `photos` maps a hash to its staged file, or None for one not staged (it is
+    there already). Returns the hashes that were new.
+
+    Creating files and folders is the slow part of an import, so a staged folder
+    the photo folder lacks is moved in whole (the whole staging tree when there is
+    no photo folder yet) rather than made again and filled file by file.
+    """
+    staged = {sha: path for sha, path in photos.items() if path is not None}
+    if not staged:
+        return []
+    roots = {path.parent.parent for path in staged.values()}
+    if len(roots) == 1 and _move_folder(roots.pop(), store.photos_dir):
+        return list(staged)
+    by_folder: dict[Path, list[str]] = {}
+    for sha, path in staged.items():
+        by_folder.setdefault(path.parent, []).append(sha)
+    added = []
+    for folder, shas in by_folder.items():
+        into = photo_path(store, shas[0]).parent
+        if _move_folder(folder, into):
+            added += shas
+            continue
+        moved = [sha for sha in shas if not photo_path(store, sha).exists()]
+        into.mkdir(parents=True, exist_ok=True)
+        for sha in moved:
+            shutil.move(staged[sha], photo_path(store, sha))
+        if moved:
+            sync_folder(into)
+        added += moved
+    return added
+
+
+def _move_folder(source: Path, target: Path) -> bool:
+    """Rename a staged folder to `target` if nothing is there yet; False if something is."""
+    if target.exists():
+        return False
+    target.parent.mkdir(parents=True, exist_ok=True)
+    try:
+        os.rename(source, target)
+    except OSError:  # made meanwhile by another process, or not on the same disk
+        return False
+    sync_folder(target.parent)
+    return True

@@ -22,7 +22,6 @@ import hashlib
 import json
 import os
 import re
-import shutil
 import tempfile
 import zipfile
 import zlib
@@ -39,7 +38,7 @@ from pydantic import ValidationError
 from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
 from inspectkit.store import Store
 from inspectkit.store.exchange import site_photo_hashes, site_rows
-from inspectkit.store.photos import photo_path, sync_folder
+from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import STORED, to_row
 from inspectkit.sync.guard import (
     DEFAULT_LIMITS,
@@ -441,48 +440,3 @@ def _check_row(model: type[Record], number: int, row: Any) -> Record:
             "fields); export it again with inspectkit"
         )
     return record
-
-
-def place_photos(store: Store, photos: dict[str, Path | None]) -> list[str]:
-    """Move checked, staged photos into the photo folder; return the hashes that were new.
-
-    Creating files and folders is the slow part of an import, so a staged folder
-    the photo folder lacks is moved in whole (the whole staging tree when there is
-    no photo folder yet) rather than made again and filled file by file.
-    """
-    staged = {sha: path for sha, path in photos.items() if path is not None}
-    if not staged:
-        return []
-    roots = {path.parent.parent for path in staged.values()}
-    if len(roots) == 1 and _move_folder(roots.pop(), store.photos_dir):
-        return list(staged)
-    by_folder: dict[Path, list[str]] = {}
-    for sha, path in staged.items():
-        by_folder.setdefault(path.parent, []).append(sha)
-    added = []
-    for folder, shas in by_folder.items():
-        into = photo_path(store, shas[0]).parent
-        if _move_folder(folder, into):
-            added += shas
-            continue
-        moved = [sha for sha in shas if not photo_path(store, sha).exists()]
-        into.mkdir(parents=True, exist_ok=True)
-        for sha in moved:
-            shutil.move(staged[sha], photo_path(store, sha))
-        if moved:
-            sync_folder(into)
-        added += moved
-    return added
-
-
-def _move_folder(source: Path, target: Path) -> bool:
-    """Rename a staged folder to `target` if nothing is there yet; False if something is."""
-    if target.exists():
-        return False
-    target.parent.mkdir(parents=True, exist_ok=True)
-    try:
-        os.rename(source, target)
-    except OSError:  # made meanwhile by another process, or not on the same disk
-        return False
-    sync_folder(target.parent)
-    return True

@@ -30,9 +30,9 @@ from typing import Any, Literal
 
 from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
-from inspectkit.store.photos import photo_path, remove_unreferenced
+from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
-from inspectkit.sync.bundle import REFERENCES, Bundle, place_photos, reading_bundle
+from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
 from inspectkit.sync.versions import known_versions, version_hash
 
@@ -157,7 +157,7 @@ def import_bundle(
                         1 for sha in photos if not photo_path(store, sha).exists()
                     )
                     raise _DryRun
-                placed = place_photos(store, photos)
+                placed = adopt_staged(store, photos)
         except _DryRun:
             pass
         finally:
