@@ -357,11 +357,7 @@ def record_reading(
     except UnitError as exc:
         raise WalkdownError("value", str(exc)) from None
     now = utcnow()
-    existing = store.select(
-        Reading,
-        "inspection_id = ? AND component_id = ? AND quantity = ?",
-        [inspection_id, component_id, quantity.value],
-    )
+    existing = _saved_readings(store, inspection_id, component_id, quantity)
     data: dict[str, Any] = {
         "inspection_id": inspection_id,
         "component_id": component_id,
@@ -381,6 +377,38 @@ def record_reading(
         data["created_at"] = existing[0].created_at
     reading = _save(store, _validated(Reading, data, now=now))
     return judge_reading(store, inspection, reading, context)
+
+
+def withdraw_reading(
+    store: Store, inspection_id: str, component_id: str, quantity: Quantity | str
+) -> Reading:
+    """Take back a reading saved by mistake (the wrong joint, the wrong visit).
+
+    The reading leaves the visit, and the audit log keeps it; a bundle carries the
+    withdrawal to the other laptops. A signed inspection's readings stay: amend it.
+
+    Raises:
+        WalkdownError: the inspection is signed, or there is no such reading.
+    """
+    _open_inspection(store, inspection_id)
+    quantity = _validated_enum(Quantity, quantity, "quantity")
+    saved = _saved_readings(store, inspection_id, component_id, quantity)
+    if not saved:
+        raise WalkdownError("quantity", f"no {quantity.label} is saved for this component")
+    with store.transaction():
+        for reading in saved:
+            store.delete(Reading, reading.id)
+    return saved[0]
+
+
+def _saved_readings(
+    store: Store, inspection_id: str, component_id: str, quantity: Quantity
+) -> list[Reading]:
+    return store.select(
+        Reading,
+        "inspection_id = ? AND component_id = ? AND quantity = ?",
+        [inspection_id, component_id, quantity.value],
+    )
 
 
 def _validated_enum(enum: type[Any], value: Any, name: str) -> Any:

@@ -315,6 +315,23 @@ def test_typing_a_reading_again_corrects_it(demo: Path) -> None:
         assert [r.value for r in store.select(Reading, "inspection_id = ?", [visit])] == [4.0]
 
 
+def test_a_reading_typed_on_the_wrong_joint_is_withdrawn(demo: Path) -> None:
+    visit = start(demo)
+    assert add(demo, visit, "E-01", "earth_isolated", "4.2").exit_code == 0
+    withdraw = ("readings", "withdraw", "--inspection", visit, "--tag", "E-01",
+                "--quantity", "earth_isolated")  # fmt: skip
+    result = run(demo, *withdraw)
+    assert result.exit_code == 0, result.output
+    assert "E-01: 4.2 Ω (earth resistance, electrode isolated) withdrawn." in result.stdout
+    with Store.open(demo) as store:
+        assert store.select(Reading, "inspection_id = ?", [visit]) == []
+        assert store.verify_audit() == []
+    before = snapshot(demo)
+    again = run(demo, *withdraw)
+    assert again.exit_code == 2 and "--quantity" in again.stderr and "no earth" in again.stderr
+    assert snapshot(demo) == before
+
+
 def test_a_doubtful_reading_is_kept_but_not_a_pass(demo: Path) -> None:
     visit = start(demo)
     result = add(demo, visit, "E-01", "earth_isolated", "4.2", "--doubtful", "--json")

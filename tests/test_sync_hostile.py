@@ -186,6 +186,18 @@ def _unknown_table(tmp, members):
     return _write(tmp / "b.zip", _with_records(members, content))
 
 
+def _deleted_site(tmp, members):
+    content = _records(members)
+    content["deleted"] = {"site": {content["tables"]["site"][0]["id"]: ["ab" * 32]}}
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
+def _deleted_and_present(tmp, members):
+    content = _records(members)
+    content["deleted"] = {"reading": {content["tables"]["reading"][0]["id"]: ["ab" * 32]}}
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
 CASES = {
     "path with ..": (_escape, "leads out of the bundle"),
     "absolute path": (_absolute, "absolute path"),
@@ -206,6 +218,8 @@ CASES = {
     "photo file nowhere": (_photo_file_missing, "neither in the bundle nor in"),
     "duplicate member": (_duplicate_member, "appears twice"),
     "unknown table": (_unknown_table, "unknown table 'invoice'"),
+    "site deleted": (_deleted_site, "deleted for unknown table 'site'"),
+    "deleted yet present": (_deleted_and_present, "is both in the bundle and deleted"),
 }
 
 

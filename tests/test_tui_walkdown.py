@@ -35,6 +35,7 @@ from inspectkit.store import Store
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.tui.app import make_app
 from inspectkit.tui.commands import ActionsProvider
+from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
@@ -379,6 +380,13 @@ async def entry_at(screen: WalkdownScreen, tag: str, quantity: Quantity) -> Read
     return screen.query_one(f"#q-{quantity.value}", ReadingEntry)
 
 
+async def rod_reading_saved(pilot: Pilot[None], screen: WalkdownScreen, text: str) -> ReadingEntry:
+    """ER-01's isolated earth resistance, typed and saved."""
+    entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
+    await type_into(pilot, entry, text)
+    return entry
+
+
 def saved_reading(app: WalkHarness, visit_id: str, quantity: Quantity) -> Reading:
     [reading] = app.store.select(
         Reading, "inspection_id = ? AND quantity = ?", [visit_id, quantity.value]
@@ -389,8 +397,7 @@ def saved_reading(app: WalkHarness, visit_id: str, quantity: Quantity) -> Readin
 async def test_choosing_the_method_saves_it_at_once(walk_db: tuple[Path, str]) -> None:
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
-        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
-        await type_into(pilot, entry, "4.2")
+        entry = await rod_reading_saved(pilot, screen, "4.2")
         reading = saved_reading(app, visit_id, Quantity.EARTH_ISOLATED)
         assert reading.method is Method.FALL_OF_POTENTIAL_3P  # the usual one unless chosen
         select = entry.method_select
@@ -431,6 +438,36 @@ async def test_a_method_and_doubt_picked_before_the_value_are_saved_with_it(
         assert (reading.method, reading.unreliable) == (Method.CLAMP_ON, True)
 
 
+async def test_a_reading_on_the_wrong_joint_is_withdrawn_after_asking(
+    walk_db: tuple[Path, str],
+) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        entry = await rod_reading_saved(pilot, screen, "4.2")
+        entry.input.focus()
+        entry.input.value = ""
+        await pilot.press("enter")  # emptying a saved value does not remove it
+        assert "ctrl+t to withdraw" in status_of(entry)
+        assert len(app.store.select(Reading, "inspection_id = ?", [visit_id])) == 1
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        assert isinstance(app.screen, ConfirmDialog)
+        assert "Withdraw 4.2 Ω" in str(app.screen.query_one("#question", Static).render())
+        await pilot.press("n")  # asked, and left as it is
+        await pilot.pause()
+        assert len(app.store.select(Reading, "inspection_id = ?", [visit_id])) == 1
+        entry.input.focus()
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        await pilot.press("y")
+        await pilot.pause()
+        assert app.store.select(Reading, "inspection_id = ?", [visit_id]) == []
+        assert entry.outcome is None and entry.input.value == ""
+        assert "withdrawn" in status_of(entry)
+        await type_into(pilot, entry, "4.3")  # the right value, typed afresh
+        assert saved_reading(app, visit_id, Quantity.EARTH_ISOLATED).value == pytest.approx(4.3)
+
+
 async def test_continuity_offers_two_and_four_wire(walk_db: tuple[Path, str]) -> None:
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
@@ -454,8 +491,7 @@ async def test_marking_a_reading_doubtful_saves_it_and_the_verdict_says_so(
 ) -> None:
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
-        entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
-        await type_into(pilot, entry, "4.2")
+        entry = await rod_reading_saved(pilot, screen, "4.2")
         assert "PASS 4.2 Ω ≤ 10 Ω" in status_of(entry)
         entry.doubt_box.focus()
         await pilot.press("space")

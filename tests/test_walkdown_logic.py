@@ -38,6 +38,7 @@ from inspectkit.walkdown import (
     set_soil,
     start_inspection,
     walk_for,
+    withdraw_reading,
 )
 from tests.walkdown_factories import EARLIER, WalkSite, build_walk_site, write_photo
 
@@ -155,6 +156,33 @@ def test_typing_again_corrects_the_same_reading(
     assert first.reading.id == second.reading.id
     rows = store.select(Reading, "inspection_id = ?", [visit.id])
     assert [r.value for r in rows] == [pytest.approx(4.1)]
+
+
+def test_a_reading_withdrawn_leaves_the_visit_and_stays_in_the_audit_log(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    rod = site.tag("ER-01")
+    saved = record_reading(store, visit.id, rod.id, "earth_isolated", "4.1").reading
+    assert withdraw_reading(store, visit.id, rod.id, "earth_isolated").id == saved.id
+    assert store.select(Reading, "inspection_id = ?", [visit.id]) == []
+    logged = store.db.execute(
+        "SELECT action FROM audit WHERE row_id = ? ORDER BY seq", [saved.id]
+    ).fetchall()
+    assert logged == [("insert",), ("delete",)] and store.verify_audit() == []
+    with pytest.raises(WalkdownError, match="no earth resistance.* is saved") as refused:
+        withdraw_reading(store, visit.id, rod.id, "earth_isolated")
+    assert refused.value.field == "quantity"
+
+
+def test_a_signed_visit_keeps_its_readings(store: Store, site: WalkSite, visit: Inspection) -> None:
+    rod = site.tag("ER-01")
+    record_reading(store, visit.id, rod.id, "earth_isolated", "4.1")
+    signed = {"state": InspectionState.SIGNED, "signed_at": datetime.now(UTC)}
+    store.save(visit.model_copy(update=signed))
+    with pytest.raises(WalkdownError, match="signed") as refused:
+        withdraw_reading(store, visit.id, rod.id, "earth_isolated")
+    assert refused.value.field == "inspection"
+    assert len(store.select(Reading, "inspection_id = ?", [visit.id])) == 1
 
 
 @pytest.mark.parametrize(

@@ -29,6 +29,7 @@ from inspectkit.walkdown import (
     attach_photos,
     grade_component,
     record_reading,
+    withdraw_reading,
 )
 
 photo_app = typer.Typer(
@@ -117,8 +118,7 @@ def add_reading(
 ) -> None:
     """Save one reading and print its verdict; typing it again corrects it; exit 1 on FAIL."""
     with open_store(ctx, db) as store:
-        visit = lookups.inspection(store, inspection)
-        component = lookups.component_by_tag(store, visit.id, tag)
+        visit, component = lookups.visit_part(store, inspection, tag)
         instrument_id = (
             lookups.instrument(store, instrument).id
             if instrument is not None
@@ -152,6 +152,24 @@ def add_reading(
     raise typer.Exit(int(Exit.ACT if failed(outcome) else Exit.OK))
 
 
+def withdraw_command(
+    ctx: typer.Context,
+    inspection: InspectionOption,
+    tag: TagOption,
+    quantity: Annotated[Quantity, typer.Option("--quantity", help="What was measured.")],
+    db: DbOption = None,
+) -> None:
+    """Take back a reading saved by mistake; the audit log keeps it, bundles carry it."""
+    with open_store(ctx, db) as store:
+        visit, component = lookups.visit_part(store, inspection, tag)
+        try:
+            reading = withdraw_reading(store, visit.id, component.id, quantity)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    shown = format_value(reading.value, quantity, reading.over_range)
+    typer.echo(f"{component.tag}: {shown} ({quantity.label}) withdrawn.")
+
+
 def grade_command(
     ctx: typer.Context,
     inspection: InspectionOption,
@@ -169,8 +187,7 @@ def grade_command(
 ) -> None:
     """Grade a component for this visit; grading it again corrects the grade."""
     with open_store(ctx, db) as store:
-        visit = lookups.inspection(store, inspection)
-        component = lookups.component_by_tag(store, visit.id, tag)
+        visit, component = lookups.visit_part(store, inspection, tag)
         try:
             finding = grade_component(
                 store, visit.id, component.id, grade, text, remedy, due or None, category
@@ -220,6 +237,7 @@ def add_photo(
 def register(app: typer.Typer) -> None:
     # `readings add` beside `readings import`; `reading add` is taken too, as people type it.
     readings_app.command("add")(add_reading)
+    readings_app.command("withdraw")(withdraw_command)
     app.add_typer(readings_app, name="reading", hidden=True)
     app.command("grade")(grade_command)
     app.add_typer(photo_app, name="photo")

@@ -87,6 +87,12 @@ def inspection(store: Store, text: str, option: str = "--inspection") -> Inspect
     return by_id(store, Inspection, text, option)
 
 
+def visit_part(store: Store, text: str, tag: str) -> tuple[Inspection, Component]:
+    """The inspection a command records in, and the component of its walk by tag."""
+    visit = inspection(store, text)
+    return visit, component_by_tag(store, visit.id, tag)
+
+
 def component_by_tag(store: Store, inspection_id: str, tag: str) -> Component:
     """The component on the visit's walk with the tag painted on it (any case)."""
     try:

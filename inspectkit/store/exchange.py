@@ -124,3 +124,48 @@ def audit_versions(
             f"AND before IS NOT NULL AND row_id IN ({marks})",
             [table, *chunk],
         )
+
+
+#: Records an inspector may withdraw; a bundle carries their deletions.
+DELETABLE = ("reading", "finding", "photo")
+#: Whether a deleted record, by its last row in the audit log, was one of the site's.
+_DELETED_IN_SITE = (
+    "(json_extract(before, '$.inspection_id') IN "
+    "(SELECT id FROM inspection WHERE site_id = :site) "
+    "OR json_extract(before, '$.component_id') IN "
+    "(SELECT id FROM component WHERE site_id = :site))"
+)
+
+
+def site_deletions(store: Store, site_id: str, since: date | None = None) -> dict[str, list[str]]:
+    """Ids of the site's readings, findings and photos deleted here, and not made again."""
+    found: dict[str, list[str]] = {}
+    for table in DELETABLE:
+        sql = (
+            "SELECT DISTINCT row_id FROM audit WHERE table_name = :table AND action = 'delete' "
+            f"AND {_DELETED_IN_SITE} AND row_id NOT IN (SELECT id FROM [{table}])"
+        )
+        params: dict[str, Any] = {"table": table, "site": site_id}
+        if since is not None:
+            sql += " AND at >= :since"
+            params["since"] = since.isoformat()
+        found[table] = [row_id for (row_id,) in store.db.execute(sql + " ORDER BY row_id", params)]
+    return found
+
+
+def deleted_here(store: Store, table: str, ids: Sequence[str]) -> set[str]:
+    """Those of these ids whose records this database deleted (and has not now)."""
+    ids = list(ids)
+    found: set[str] = set()
+    for start in range(0, len(ids), _CHUNK):
+        chunk = ids[start : start + _CHUNK]
+        marks = ",".join("?" * len(chunk))
+        found.update(
+            row_id
+            for (row_id,) in store.db.execute(
+                "SELECT DISTINCT row_id FROM audit WHERE table_name = ? AND action = 'delete' "
+                f"AND row_id IN ({marks}) AND row_id NOT IN (SELECT id FROM [{table}])",
+                [table, *chunk],
+            )
+        )
+    return found

@@ -6,7 +6,9 @@ Layout (format `inspectkit-bundle`, version 1):
   site, when it was exported and from which day (`since`), record counts, and the
   sha256 of every other member.
 - `records.json`: `{"tables": {table: [row, ...]}, "history": {table: {id: [sha256,
-  ...]}}}`; rows are in the stored form (`store.rows.to_row`), history lists the
+  ...]}}, "deleted": {table: {id: [sha256, ...]}}}`; rows are in the stored form
+  (`store.rows.to_row`), deleted lists the readings, findings and photos the
+  exporting database deleted with every version of each it saw, history lists the
   earlier versions of a record the exporting database has seen (see `versions`).
 - `photos/<sha256>`: photo files, named by their content hash.
 
@@ -31,13 +33,13 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import date
 from pathlib import Path
-from typing import Any
+from typing import Any, NamedTuple
 
 from pydantic import ValidationError
 
 from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
 from inspectkit.store import Store
-from inspectkit.store.exchange import site_photo_hashes, site_rows
+from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import STORED, to_row
 from inspectkit.sync.guard import (
@@ -99,6 +101,8 @@ class Bundle:
         rows: Stored-form rows by table, in `RECORD_TYPES` order.
         records: The same rows as checked records, by table and id.
         history: Earlier version hashes by table and record id.
+        deleted: Records the exporting database deleted, by table and id → every
+            version of each it had seen.
         photo_hashes: Hashes of the photo files in the bundle, in its order.
         same: Ids of rows equal to the importing database's own, by table; they are
             not in `records`, since they are rows that database already holds.
@@ -109,8 +113,9 @@ class Bundle:
     rows: dict[str, list[dict[str, Any]]]
     records: dict[str, dict[str, Record]]
     history: dict[str, dict[str, set[str]]]
-    photo_hashes: list[str]
+    deleted: dict[str, dict[str, set[str]]]
     same: dict[str, set[str]]
+    photo_hashes: list[str]
     checks: PhotoChecks | None = field(default=None, repr=False)
     _photos: dict[str, Path | None] | None = field(default=None, repr=False)
 
@@ -186,7 +191,11 @@ def _fill(
         if not rows["site"]:
             raise BundleError(f"no site with id {site_id}")
         records = json.dumps(
-            {"tables": rows, "history": _history(store, rows)},
+            {
+                "tables": rows,
+                "history": _history(store, rows),
+                "deleted": _deleted(store, site_id, since),
+            },
             ensure_ascii=False,
             separators=(",", ":"),
         ).encode("utf-8")
@@ -211,6 +220,15 @@ def _fill(
         MANIFEST, json.dumps(manifest, indent=2, ensure_ascii=False), zipfile.ZIP_DEFLATED
     )
     return counts
+
+
+def _deleted(store: Store, site_id: str, since: date | None) -> dict[str, dict[str, list[str]]]:
+    """The site's records deleted here, each with every version of it this database saw."""
+    deleted = {}
+    for table, ids in site_deletions(store, site_id, since).items():
+        known = known_versions(store, table, ids)
+        deleted[table] = {row_id: sorted(known.get(row_id, ())) for row_id in ids}
+    return deleted
 
 
 def _history(
@@ -261,9 +279,9 @@ def reading_bundle(
     pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
     held = set() if ours is None else _held_photos(ours, pictures)
     with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
-        rows, checked, history, same = _records(records, manifest, ours)
+        found = _records(records, manifest, ours)
         hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
-        yield Bundle(path, manifest, rows, checked, history, hashes, same, checks)
+        yield Bundle(path, manifest, *found, photo_hashes=hashes, checks=checks)
 
 
 @contextmanager
@@ -338,20 +356,22 @@ def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
     return manifest
 
 
-def _records(
-    data: bytes, manifest: dict[str, Any], ours: Store | None
-) -> tuple[
-    dict[str, list[dict[str, Any]]],
-    dict[str, dict[str, Record]],
-    dict[str, dict[str, set[str]]],
-    dict[str, set[str]],
-]:
+class _Checked(NamedTuple):
+    rows: dict[str, list[dict[str, Any]]]
+    records: dict[str, dict[str, Record]]
+    history: dict[str, dict[str, set[str]]]
+    deleted: dict[str, dict[str, set[str]]]
+    same: dict[str, set[str]]
+
+
+def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Checked:
     """Every row checked through its model and found in the stored form, or equal to ours."""
     content = _json(data, RECORDS)
     tables = content.get("tables") if isinstance(content, dict) else None
     raw_history = content.get("history", {}) if isinstance(content, dict) else None
-    if not isinstance(tables, dict) or not isinstance(raw_history, dict):
-        raise BundleError(f"{RECORDS} must hold 'tables' and 'history' objects")
+    raw_deleted = content.get("deleted", {}) if isinstance(content, dict) else None
+    if not all(isinstance(part, dict) for part in (tables, raw_history, raw_deleted)):
+        raise BundleError(f"{RECORDS} must hold 'tables', 'history' and 'deleted' objects")
     unknown = sorted(set(tables) - set(MODEL_FOR_TABLE))
     if unknown:
         raise BundleError(f"{RECORDS}: unknown table {unknown[0]!r}; the bundle is not for this")
@@ -383,17 +403,30 @@ def _records(
         rows[model.table] = table_rows
         checked[model.table] = seen
         same[model.table] = equal
-    history: dict[str, dict[str, set[str]]] = {}
-    for table, by_id in raw_history.items():
-        if table not in MODEL_FOR_TABLE or not isinstance(by_id, dict):
-            raise BundleError(f"{RECORDS}: history for unknown table {table!r}")
+    deleted = _version_lists(raw_deleted, "deleted", DELETABLE)
+    for table, by_id in deleted.items():
+        both = sorted(set(by_id) & {row["id"] for row in rows[table]})
+        if both:
+            raise BundleError(f"{RECORDS}: {table} {both[0]} is both in the bundle and deleted")
+    history = _version_lists(raw_history, "history", tuple(MODEL_FOR_TABLE))
+    return _Checked(rows, checked, history, deleted, same)
+
+
+def _version_lists(
+    raw: dict[str, Any], what: str, tables: tuple[str, ...]
+) -> dict[str, dict[str, set[str]]]:
+    """`{table: {id: [sha256, ...]}}` as read, checked: known tables, hashes in hex."""
+    lists: dict[str, dict[str, set[str]]] = {}
+    for table, by_id in raw.items():
+        if table not in tables or not isinstance(by_id, dict):
+            raise BundleError(f"{RECORDS}: {what} for unknown table {table!r}")
         for row_id, hashes in by_id.items():
             if not isinstance(hashes, list) or not all(
                 isinstance(h, str) and _SHA.match(h) for h in hashes
             ):
-                raise BundleError(f"{RECORDS}: history of {table} {row_id} must list sha256s")
-        history[table] = {row_id: set(hashes) for row_id, hashes in by_id.items()}
-    return rows, checked, history, same
+                raise BundleError(f"{RECORDS}: {what} of {table} {row_id} must list sha256s")
+        lists[table] = {row_id: set(hashes) for row_id, hashes in by_id.items()}
+    return lists
 
 
 def _held_rows(ours: Store | None, table: str, rows: list[Any]) -> dict[str, dict[str, Any]]:

@@ -12,8 +12,16 @@ The rules, per record of the bundle (theirs) against the database (ours):
   audit log, so the losing one is never lost, and the conflict is reported once
   (the next exchange sees that both sides know both versions).
 
-A signed inspection and what was recorded in it are never overwritten: the store
-refuses, and the record is reported as kept ours.
+A reading, finding or photo withdrawn on one side travels as a deletion:
+
+- withdrawn there, ours is a version they saw: deleted here too (the audit log
+  keeps it);
+- withdrawn here, theirs is a version we saw: it stays withdrawn;
+- withdrawn on one side after an edit on the other: the edited one is kept, and
+  comes back on the side that withdrew it; nothing edited is ever lost.
+
+A signed inspection and what was recorded in it are never overwritten or deleted:
+the store refuses, and the record is reported as kept ours.
 
 Nothing is committed before everything is checked: the write is one transaction, and
 the photos, checked on other threads meanwhile, are waited for inside it.
@@ -30,6 +38,7 @@ from typing import Any, Literal
 
 from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
+from inspectkit.store.exchange import DELETABLE, deleted_here
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
 from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
@@ -72,10 +81,18 @@ class ImportReport:
     kept_signed: list[str] = field(default_factory=list)
     conflicts: list[Conflict] = field(default_factory=list)
     photos_added: int = 0
+    #: Records deleted here because they were deleted there, by table.
+    removed: Counter[str] = field(default_factory=Counter)
+    #: Records deleted here that the bundle still holds, as deleted: left deleted.
+    kept_deleted: int = 0
+    #: Records deleted on one side after an edit on the other: the edited one is kept.
+    kept_edited: list[str] = field(default_factory=list)
 
     @property
     def changed(self) -> bool:
-        return bool(self.added or self.updated or self.conflicts or self.photos_added)
+        return bool(
+            self.added or self.updated or self.conflicts or self.photos_added or self.removed
+        )
 
     def lines(self) -> list[str]:
         """The report as sentences, one per line."""
@@ -88,6 +105,18 @@ class ImportReport:
         lines.append(f"  {self.unchanged} records already the same")
         if self.kept_newer:
             lines.append(f"  {self.kept_newer} records kept ours: ours is the later version")
+        if self.removed:
+            parts = ", ".join(f"{table} {n}" for table, n in sorted(self.removed.items()))
+            lines.append(
+                f"  {sum(self.removed.values())} records {verb} removed, as withdrawn on the "
+                f"other side ({parts}); they are in the audit log"
+            )
+        if self.kept_deleted:
+            lines.append(f"  {self.kept_deleted} records stay withdrawn here")
+        lines.extend(
+            f"  kept: {label} was withdrawn on one side and edited on the other"
+            for label in self.kept_edited
+        )
         if self.photos_added:
             lines.append(f"  {self.photos_added} photo files {verb} added")
         lines.extend(f"  kept ours: signed — {message}" for message in self.kept_signed)
@@ -110,6 +139,10 @@ class _Plan:
     kept_newer: int = 0
     #: The bundle's checked records, by table and id.
     records: dict[str, dict[str, Record]] = field(default_factory=dict)
+    #: Our rows to delete, as withdrawn in the bundle's database: (table, row).
+    removals: list[tuple[str, dict[str, Any]]] = field(default_factory=list)
+    kept_deleted: int = 0
+    kept_edited: list[str] = field(default_factory=list)
 
 
 class _DryRun(Exception):
@@ -147,6 +180,7 @@ def import_bundle(
         plan = _plan(store, bundle, prefer)
         report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
         report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
+        report.kept_deleted, report.kept_edited = plan.kept_deleted, plan.kept_edited
         try:
             with store.transaction():
                 _apply(store, plan, report)
@@ -162,8 +196,9 @@ def import_bundle(
             pass
         finally:
             # Files of photo records that were refused (signed), or of a write that
-            # failed, are taken out again: the folder holds what the records name.
+            # failed, or withdrawn, are taken out: the folder holds what the records name.
             dropped = remove_unreferenced(store, placed)
+            remove_unreferenced(store, [row["sha256"] for t, row in plan.removals if t == "photo"])
         if not dry_run:
             report.photos_added = len(placed) - len(dropped)
     return report
@@ -184,10 +219,15 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
         plan.unchanged += len(same)
         rows = [r for r in table_rows if r["id"] not in same]
         ours_by_id = store.rows_by_id(table, [r["id"] for r in rows])
+        withdrawn = _withdrawn_versions(store, table, [r["id"] for r in rows], ours_by_id)
         differing = []
         for theirs in rows:
             ours = ours_by_id.get(theirs["id"])
-            if ours is None:
+            if ours is None and version_hash(theirs) in withdrawn.get(theirs["id"], ()):
+                plan.kept_deleted += 1  # a version we withdrew: it stays withdrawn
+            elif ours is None:
+                if theirs["id"] in withdrawn:
+                    plan.kept_edited.append(_label(table, theirs))
                 plan.writes.append((table, theirs, "added"))
             elif canonical(ours) == canonical(theirs):
                 plan.unchanged += 1
@@ -214,7 +254,33 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
             plan.conflicts.append((conflict, ours, theirs))
             if kept == "theirs":
                 plan.writes.append((table, theirs, "updated"))
+    _plan_removals(store, bundle, plan)
     return plan
+
+
+def _withdrawn_versions(
+    store: Store, table: str, ids: list[str], ours_by_id: dict[str, dict[str, Any]]
+) -> dict[str, set[str]]:
+    """Of the ids we do not hold, those we deleted, with every version of each we saw."""
+    if table not in DELETABLE:
+        return {}
+    gone = deleted_here(store, table, [i for i in ids if i not in ours_by_id])
+    known = known_versions(store, table, sorted(gone))
+    return {row_id: known.get(row_id, set()) for row_id in gone}
+
+
+def _plan_removals(store: Store, bundle: Bundle, plan: _Plan) -> None:
+    """Ours to delete where the bundle's database withdrew the very version we hold.
+
+    A record withdrawn there after we edited it is kept: the edit is newer than
+    what was withdrawn, and the next exchange takes it back there.
+    """
+    for table, by_id in bundle.deleted.items():
+        for row_id, ours in store.rows_by_id(table, sorted(by_id)).items():
+            if version_hash(ours) in by_id[row_id]:
+                plan.removals.append((table, ours))
+            else:
+                plan.kept_edited.append(_label(table, ours))
 
 
 def _winner(table: str, ours: dict[str, Any], theirs: dict[str, Any], prefer: Side | None) -> Side:
@@ -335,6 +401,14 @@ def _apply(store: Store, plan: _Plan, report: ImportReport) -> None:
     for table, row, what in writes:
         if row["id"] not in refused:
             (report.added if what == "added" else report.updated)[table] += 1
+    # Parts withdrawn there: a signed inspection's stay, the store refuses to delete them.
+    for table, ours in plan.removals:
+        try:
+            store.delete(MODEL_FOR_TABLE[table], ours["id"])
+        except FrozenRecordError as exc:
+            report.kept_signed.append(str(exc))
+        else:
+            report.removed[table] += 1
     logged = []
     for conflict, ours, theirs in plan.conflicts:
         if conflict.kept == "theirs" and conflict.record_id in refused:

@@ -29,6 +29,7 @@ from inspectkit.tui.widgets.finding_form import FindingForm
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.saving_field import SavingField
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
+from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
     Missing,
@@ -46,6 +47,7 @@ from inspectkit.walkdown import (
     set_soil,
     site_context,
     walk_for,
+    withdraw_reading,
 )
 
 #: Setting that remembers the instrument in use, shared with the settings screen.
@@ -125,6 +127,15 @@ class WalkdownScreen(Screen[None]):
             priority=True,
             show=False,
             tooltip="Weather, what could not be inspected, who came along, alterations, notes",
+        ),
+        Binding(
+            "ctrl+t",
+            "withdraw",
+            "Withdraw reading",
+            id="walkdown.withdraw",
+            priority=True,
+            show=False,
+            tooltip="Take back the saved reading the cursor is on (typed on the wrong joint)",
         ),
         Binding(
             "escape",
@@ -512,6 +523,39 @@ class WalkdownScreen(Screen[None]):
                 self.notify("Visit details saved")
 
         self.app.push_screen(VisitDetailsDialog(self.inspection, save), done)
+
+    def action_withdraw(self) -> None:
+        """Take back the reading of the entry in focus, after asking."""
+        entry = next(
+            (w for w in (self.focused, *(self.focused.ancestors if self.focused else ()))
+             if isinstance(w, ReadingEntry)),
+            None,
+        )  # fmt: skip
+        if entry is None or entry.outcome is None:
+            self.notify("Put the cursor in a saved reading to withdraw it", severity="warning")
+            return
+        tag, reading = self.stop.component.tag, entry.outcome.reading
+        shown = format_value(reading.value, entry.quantity, reading.over_range)
+
+        def done(confirmed: bool | None) -> None:
+            if not confirmed:
+                return
+            try:
+                withdraw_reading(self.store, self.inspection_id, reading.component_id,
+                                 entry.quantity)  # fmt: skip
+            except WalkdownError as exc:
+                self.notify(str(exc), severity="error")
+                return
+            self.saved.readings.pop((reading.component_id, entry.quantity), None)
+            entry.withdrawn()
+            self._refresh_mark()
+            self.notify(f"{tag}: {shown} ({entry.quantity.label}) withdrawn")
+
+        question = (
+            f"Withdraw {shown} ({entry.quantity.label}) saved for {tag}?\n"
+            "It leaves this visit; the audit log keeps it."
+        )
+        self.app.push_screen(ConfirmDialog(question, yes_label="Withdraw"), done)
 
     def action_leave(self) -> None:
         if self.stops:

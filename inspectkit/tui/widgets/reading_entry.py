@@ -101,6 +101,8 @@ class ReadingEntry(SavingField):
         doubtful: Whether the inspector doubts it (`Reading.unreliable`).
     """
 
+    blank_refusal = "type the right value, or press ctrl+t to withdraw the reading"
+
     DEFAULT_CSS = """
     ReadingEntry > .reading-row { height: auto; }
     ReadingEntry > .reading-row > Input { width: 1fr; }
@@ -177,6 +179,17 @@ class ReadingEntry(SavingField):
         ):
             return self.method, self.doubtful
         return None
+
+    def withdrawn(self) -> None:
+        """The saved reading was taken back: the field is empty, the choices the usual."""
+        self.outcome = None
+        self.saved_value = ""
+        self.input.value = ""
+        self.method, self.doubtful = DEFAULT_METHOD[self.quantity], False
+        if (select := self.method_select) is not None:
+            select.value = self.method.value
+        self.doubt_box.value = False
+        self.show_status(Text("withdrawn: nothing recorded", style="dim"))
 
     def _save(self, text: str) -> Text:
         self.outcome = self._record(text, self.method, self.doubtful)

@@ -49,6 +49,9 @@ class SavingField(Vertical):
             self.field = field
             self.text = text
 
+    #: Said when a saved value is emptied, which does not remove it.
+    blank_refusal = "a saved value is corrected, not removed; type the right value"
+
     def __init__(
         self,
         label: str,
@@ -104,7 +107,7 @@ class SavingField(Vertical):
             if not self.saved_value:
                 self.show_status("")
                 return True
-            self.show_error("a saved value is corrected, not removed; type the right value")
+            self.show_error(self.blank_refusal)
             return False
         try:
             status = self.saver(text)
