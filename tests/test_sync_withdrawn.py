@@ -92,6 +92,19 @@ def test_a_signed_inspections_reading_is_not_removed_by_a_withdrawal(pair, tmp_p
     assert office.verify_audit() == []
 
 
+def test_a_reading_withdrawn_here_comes_back_when_its_inspection_was_signed_there(
+    pair, tmp_path
+):
+    """The signed copy is final: both sides hold what the signed report recorded."""
+    office, laptop, records = pair
+    gone = _withdraw(laptop, records)
+    sign(office, office.get(Inspection, records.inspection.id))
+    report = _send(office, laptop, records.site.id, tmp_path / "o.zip")
+    assert laptop.get(Reading, gone.id) is not None
+    assert report.kept_deleted == 0 and len(report.kept_edited) == 1
+    assert record_rows(office) == record_rows(laptop)
+
+
 def test_a_dry_run_reports_the_removal_and_removes_nothing(pair, tmp_path):
     office, laptop, records = pair
     gone = _withdraw(laptop, records)

@@ -17,8 +17,9 @@ A reading, finding or photo withdrawn on one side travels as a deletion:
 - withdrawn there, ours is a version they saw: deleted here too (the audit log
   keeps it);
 - withdrawn here, theirs is a version we saw: it stays withdrawn;
-- withdrawn on one side after an edit on the other: the edited one is kept, and
-  comes back on the side that withdrew it; nothing edited is ever lost.
+- withdrawn on one side after an edit on the other, or in an inspection signed
+  there: it is kept, and comes back on the side that withdrew it; nothing edited
+  or signed is ever lost.
 
 A signed inspection and what was recorded in it are never overwritten or deleted:
 the store refuses, and the record is reported as kept ours.
@@ -85,7 +86,7 @@ class ImportReport:
     removed: Counter[str] = field(default_factory=Counter)
     #: Records deleted here that the bundle still holds, as deleted: left deleted.
     kept_deleted: int = 0
-    #: Records deleted on one side after an edit on the other: the edited one is kept.
+    #: Records withdrawn on one side, edited or signed on the other: they are kept.
     kept_edited: list[str] = field(default_factory=list)
 
     @property
@@ -114,7 +115,7 @@ class ImportReport:
         if self.kept_deleted:
             lines.append(f"  {self.kept_deleted} records stay withdrawn here")
         lines.extend(
-            f"  kept: {label} was withdrawn on one side and edited on the other"
+            f"  kept: {label} was withdrawn on one side, edited or signed on the other"
             for label in self.kept_edited
         )
         if self.photos_added:
@@ -223,7 +224,11 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
         differing = []
         for theirs in rows:
             ours = ours_by_id.get(theirs["id"])
-            if ours is None and version_hash(theirs) in withdrawn.get(theirs["id"], ()):
+            # What a signed inspection recorded is final: the signed copy wins here too.
+            final = table in _PARTS and theirs.get("inspection_id") in signed_there
+            if ours is None and not final and version_hash(theirs) in withdrawn.get(
+                theirs["id"], ()
+            ):
                 plan.kept_deleted += 1  # a version we withdrew: it stays withdrawn
             elif ours is None:
                 if theirs["id"] in withdrawn:
@@ -234,14 +239,12 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
             elif version_hash(ours) in bundle.history.get(table, {}).get(theirs["id"], set()):
                 plan.writes.append((table, theirs, "updated"))
             else:
-                differing.append((ours, theirs))
-        seen = known_versions(store, table, [theirs["id"] for _, theirs in differing])
-        for ours, theirs in differing:
-            final = table in _PARTS and theirs.get("inspection_id") in signed_there
+                differing.append((ours, theirs, final))
+        seen = known_versions(store, table, [theirs["id"] for _, theirs, _ in differing])
+        for ours, theirs, final in differing:
             if not final and version_hash(theirs) in seen.get(theirs["id"], set()):
                 plan.kept_newer += 1
                 continue
-            # What a signed inspection recorded is final: the signed copy wins here too.
             kept = "theirs" if final else _winner(table, ours, theirs, prefer)
             conflict = Conflict(
                 table,
