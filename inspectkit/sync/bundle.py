@@ -116,7 +116,7 @@ class Bundle:
     deleted: dict[str, dict[str, set[str]]]
     same: dict[str, set[str]]
     photo_hashes: list[str]
-    checks: PhotoChecks | None = field(default=None, repr=False)
+    checks: PhotoChecks = field(repr=False)
     _photos: dict[str, Path | None] | None = field(default=None, repr=False)
 
     def checked_photos(self) -> dict[str, Path | None]:
@@ -128,8 +128,6 @@ class Bundle:
             BundleError: the first photo in the bundle's order that was refused.
         """
         if self._photos is None:
-            if self.checks is None:
-                raise BundleError("the bundle was closed before its photos were checked")
             with _refusing_damage(self.path):
                 self._photos = self.checks.result()
         return self._photos
