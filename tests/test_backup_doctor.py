@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import shutil
 import sqlite3
 import subprocess
 import sys
@@ -12,7 +13,7 @@ from pathlib import Path
 
 import pytest
 import sqlite_utils
-from sync_factories import build_site, jpeg
+from sync_factories import build_site, file_hash, jpeg, photo_files
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
@@ -167,10 +168,8 @@ def test_doctor_finds_each_problem_and_says_how_to_fix_it(tmp_path):
     assert "inspectkit import BUNDLE" in text
 
 
-def test_integrity_check_reports_a_damaged_index_page(tmp_path):
-    db = tmp_path / "broken.sqlite"
+def _damage_an_index(db: Path) -> None:
     with Store.open(db) as store:
-        build_site(store, tmp_path / "in", joints=40)
         page_size = store.db.execute("PRAGMA page_size").fetchone()[0]
         root = store.db.execute(
             "SELECT rootpage FROM sqlite_master WHERE name = 'component_site'"
@@ -178,16 +177,38 @@ def test_integrity_check_reports_a_damaged_index_page(tmp_path):
     data = bytearray(db.read_bytes())
     data[(root - 1) * page_size : root * page_size] = bytes(page_size)
     db.write_bytes(bytes(data))
+
+
+def test_integrity_check_reports_a_damaged_index_page(tmp_path):
+    db = tmp_path / "broken.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in", joints=40)
+    _damage_an_index(db)
     with Store.open(db) as store:
         problems = check_health(store, hash_photos=False)
-    assert any(p.check == "integrity" and "restore the latest backup" in p.fix for p in problems)
+    assert any(p.check == "integrity" and "inspectkit restore" in p.fix for p in problems)
+
+
+def test_a_damaged_database_is_restored_from_its_backup(tmp_path):
+    db = tmp_path / "office.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in", joints=40)
+    backup = tmp_path / "monday.bak"
+    assert CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(backup)]).exit_code == 0
+    _damage_an_index(db)
+    result = CliRunner().invoke(app, ["restore", "--db", str(db), str(backup)])
+    assert result.exit_code == 0, result.output
+    assert "fails its check" in result.output  # what was replaced is kept anyway
+    with Store.open(db) as store:
+        assert check_health(store) == []
+    assert list(tmp_path.glob("office.sqlite.before-restore-*.bak"))
 
 
 def test_a_backup_carries_its_photos_and_opens_with_them(tmp_path):
     db = tmp_path / "inspect.sqlite"
     with Store.open(db) as store:
         build_site(store, tmp_path / "in")
-        names = sorted(p.name for p in store.photos_dir.rglob("*") if p.is_file())
+        names = photo_files(store)
     target = tmp_path / "safe" / "monday.bak"
     result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target)])
     assert result.exit_code == 0, result.output
@@ -195,7 +216,7 @@ def test_a_backup_carries_its_photos_and_opens_with_them(tmp_path):
     with Store.open(target, create=False) as copy:
         assert copy.photos_dir == tmp_path / "safe" / "monday-photos"
         assert check_health(copy) == []  # every photo present, and each matches its hash
-        assert sorted(p.name for p in copy.photos_dir.rglob("*") if p.is_file()) == names
+        assert photo_files(copy) == names
 
 
 def test_a_backup_says_which_photos_it_could_not_carry(tmp_path):
@@ -218,3 +239,38 @@ def test_a_backup_without_photos_says_to_copy_them(tmp_path):
     result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target), "--no-photos"])
     assert result.exit_code == 0 and "copy the folder" in result.output
     assert not (tmp_path / "b-photos").exists()
+
+
+def test_a_restore_puts_the_backup_and_its_photos_back_and_keeps_what_it_replaced(tmp_path):
+    db = tmp_path / "office.sqlite"
+    with Store.open(db) as store:
+        records = build_site(store, tmp_path / "in")
+        names = photo_files(store)
+    backup = tmp_path / "safe" / "monday.bak"
+    assert CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(backup)]).exit_code == 0
+    # Later work, then the photo folder lost.
+    with Store.open(db) as store:
+        store.save(store.get(Site, records.site.id).model_copy(update={"notes": "later"}))
+        shutil.rmtree(store.photos_dir)
+    result = CliRunner().invoke(app, ["restore", "--db", str(db), str(backup)])
+    assert result.exit_code == 0, result.output
+    assert f"{len(names)} photo file(s) brought back" in result.output
+    with Store.open(db) as store:
+        assert store.get(Site, records.site.id).notes == ""
+        assert photo_files(store) == names and check_health(store) == []
+    (kept,) = tmp_path.glob("office.sqlite.before-restore-*.bak")
+    with Store.open(kept, create=False) as replaced:
+        assert replaced.get(Site, records.site.id).notes == "later"
+
+
+def test_a_damaged_backup_is_refused_and_nothing_is_replaced(tmp_path):
+    db = tmp_path / "office.sqlite"
+    with Store.open(db) as store:
+        build_site(store, tmp_path / "in")
+    before = file_hash(db)
+    broken = tmp_path / "broken.bak"
+    broken.write_bytes(b"SQLite format 3\x00" + b"\x00" * 200)
+    result = CliRunner().invoke(app, ["restore", "--db", str(db), str(broken)])
+    assert result.exit_code == 2 and "broken.bak" in result.output
+    assert file_hash(db) == before
+    assert not list(tmp_path.glob("*.before-restore-*.bak"))

@@ -11,7 +11,7 @@ import typer
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.store import StoreError
 from inspectkit.store.database import photos_dir_of
-from inspectkit.store.photos import copy_photos_for_backup
+from inspectkit.store.photos import copy_photos_for_backup, restore_photos
 
 
 def default_backup_path(db_path: Path, now: datetime) -> Path:
@@ -61,6 +61,46 @@ def backup(
         )
 
 
+def restore(
+    ctx: typer.Context,
+    backup: Annotated[
+        Path, typer.Argument(help="The backup file (NAME.bak) to put in place.", dir_okay=False)
+    ],
+    db: DbOption = None,
+) -> None:
+    """Put a backup in place of the database and bring back its photos.
+
+    What it replaces is backed up first, beside the database
+    (NAME.before-restore-TIME.bak), so a restore can be undone. Exit 1 when photo
+    files the backup names are in neither folder.
+    """
+    with open_store(ctx, db) as store:
+        if backup.resolve() == store.path.resolve():
+            fail("the backup named is the database itself; give a NAME.bak file")
+        kept = store.path.with_name(
+            f"{store.path.name}.before-restore-{datetime.now():%Y%m%d-%H%M%S}.bak"
+        )
+        try:
+            store.backup(kept)
+        except StoreError:
+            # Damaged, which is why one restores: kept all the same, as it was.
+            typer.echo(f"The database replaced fails its check; it is kept as it was in {kept}.")
+        try:
+            store.restore(backup)
+        except StoreError as exc:
+            kept.unlink()  # nothing was replaced
+            fail(str(exc))
+        copied, missing = restore_photos(store, backup)
+    typer.echo(f"Restored {backup} into {store.path} (checked: ok).")
+    typer.echo(f"{copied} photo file(s) brought back; what was replaced is kept in {kept}.")
+    if missing:
+        fail(
+            f"{len(missing)} photo file(s) the backup names are in neither photo folder (first "
+            f"{missing[0]}); run `inspectkit doctor`",
+            Exit.ACT,
+        )
+
+
 def doctor(
     ctx: typer.Context,
     quick: Annotated[
@@ -91,4 +131,5 @@ def doctor(
 
 def register(app: typer.Typer) -> None:
     app.command("backup")(backup)
+    app.command("restore")(restore)
     app.command("doctor")(doctor)

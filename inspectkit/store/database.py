@@ -158,6 +158,36 @@ class Store:
             )
         return target
 
+    def restore(self, source: Path) -> None:
+        """Put a backup's content in place of this database's, through the backup API.
+
+        Page by page through this connection, so the database's own journal stays
+        right (copying the file over it would not). The caller keeps a backup of
+        what is replaced first.
+
+        Raises:
+            StoreError: the file is not a sound inspectkit database of a schema this
+                version reads.
+        """
+        if not source.is_file():
+            raise StoreError(f"{source}: no such backup; give the path of a NAME.bak file")
+        conn = sqlite3.connect(f"file:{source}?mode=ro", uri=True)
+        try:
+            status = conn.execute("PRAGMA quick_check").fetchone()[0]
+            row = conn.execute("SELECT value FROM meta WHERE key = 'schema_version'").fetchone()
+            if status != "ok" or row is None:
+                raise StoreError(f"{source}: not a sound inspectkit backup ({status})")
+            if int(row[0]) > SCHEMA_VERSION:
+                raise NewerSchemaError(
+                    f"{source}: made by a newer inspectkit (schema {row[0]}); upgrade first"
+                )
+            conn.backup(self.db.conn)
+        except sqlite3.DatabaseError as exc:
+            raise StoreError(f"{source}: not an inspectkit backup ({exc})") from exc
+        finally:
+            conn.close()
+        self._migrate()
+
     # ------------------------------------------------------------ transactions
 
     @contextmanager

@@ -67,9 +67,9 @@ def integrity_problems(store: Store) -> list[HealthProblem]:
             "integrity",
             str(store.path or "database"),
             message,
-            "the database file is damaged: stop writing to it, keep a copy, and restore the "
-            "latest backup (`inspectkit backup` files or the .before-schema-N.bak files beside "
-            "it); then import the bundles made since that backup",
+            "the database file is damaged: stop writing to it, keep a copy, and put the "
+            "latest backup back with `inspectkit restore NAME.bak` (a file `inspectkit backup` "
+            "made, or a .before-schema-N.bak beside it); then import the bundles made since",
         )
         for message in rows
         if message != "ok"
@@ -100,8 +100,8 @@ def photo_problems(store: Store, *, hash_photos: bool = True) -> list[HealthProb
     for path, photo_id in expected.items():
         restore = (
             f"import a bundle that holds this photo (`inspectkit import BUNDLE` puts back missing "
-            f"files), or copy {path.name} to {path} from the NAME-photos folder that "
-            f"`inspectkit backup` writes beside a backup NAME.bak, or from a copy of {folder}"
+            f"files), or `inspectkit restore NAME.bak` (it brings back photos from the "
+            f"NAME-photos folder beside it), or copy {path.name} to {path} from a copy of {folder}"
         )
         if not path.is_file():
             problems.append(

@@ -134,18 +134,34 @@ def copy_photos_for_backup(store: Store, backup: Path) -> tuple[int, list[str]]:
         How many files were copied, and the hashes of files missing from this
         database's photo folder (`inspectkit doctor` says how to restore them).
     """
-    conn = sqlite3.connect(f"file:{backup}?mode=ro", uri=True)
+    return _copy_named(backup, store.photos_dir, photos_dir_of(backup))
+
+
+def restore_photos(store: Store, backup: Path) -> tuple[int, list[str]]:
+    """Copy the photo files the restored records name back from the backup's folder.
+
+    Returns:
+        How many files were copied, and the hashes found in neither folder.
+    """
+    if store.path is None:
+        raise StoreError("an in-memory database has no photos to restore")
+    copied, missing = _copy_named(store.path, photos_dir_of(backup), store.photos_dir)
+    return copied, [sha for sha in missing if not photo_path(store, sha).is_file()]
+
+
+def _copy_named(db_file: Path, source: Path, target: Path) -> tuple[int, list[str]]:
+    """Copy the photo files `db_file`'s records name from one photo folder to another."""
+    conn = sqlite3.connect(f"file:{db_file}?mode=ro", uri=True)
     try:
         shas = [sha for (sha,) in conn.execute("SELECT DISTINCT sha256 FROM photo ORDER BY 1")]
     finally:
         conn.close()
-    folder = photos_dir_of(backup)
     copied, missing = 0, []
     for sha in shas:
-        source = photo_path(store, sha)
-        if not source.is_file():
+        found = _in_folder(source, sha)
+        if not found.is_file():
             missing.append(sha)
-        elif _place(source, _in_folder(folder, sha)):
+        elif _place(found, _in_folder(target, sha)):
             copied += 1
     return copied, missing
 
