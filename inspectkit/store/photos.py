@@ -35,11 +35,14 @@ def file_sha256(path: Path) -> str:
 
 def photo_path(store: Store, sha256: str) -> Path:
     """Where the file of that hash lives."""
-    return _in_folder(store.photos_dir, sha256)
+    return in_folder(store.photos_dir, sha256)
 
 
-def _in_folder(folder: Path, sha256: str) -> Path:
-    """A two-letter fan-out keeps folders small."""
+def in_folder(folder: Path, sha256: str) -> Path:
+    """Where the file of that hash lives in a photo folder's layout (staging ones too).
+
+    A two-letter fan-out keeps folders small.
+    """
     return folder / sha256[:2] / sha256
 
 
@@ -158,10 +161,10 @@ def _copy_named(db_file: Path, source: Path, target: Path) -> tuple[int, list[st
         conn.close()
     copied, missing = 0, []
     for sha in shas:
-        found = _in_folder(source, sha)
+        found = in_folder(source, sha)
         if not found.is_file():
             missing.append(sha)
-        elif _place(found, _in_folder(target, sha)):
+        elif _place(found, in_folder(target, sha)):
             copied += 1
     return copied, missing
 

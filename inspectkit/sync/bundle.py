@@ -62,7 +62,6 @@ VERSION = 1
 #: Setting naming this database in the bundles it writes.
 DATABASE_ID_SETTING = "sync.database_id"
 _SHA = re.compile(r"^[0-9a-f]{64}$")
-_BLOCK = 1 << 20
 
 #: Fields that name another record, by table: field → table it points into.
 REFERENCES: dict[str, dict[str, str]] = {
@@ -275,10 +274,10 @@ def reading_bundle(
         records = _read(archive, RECORDS, limits)
         same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
     pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
-    held = set() if ours is None else _held_photos(ours, pictures)
+    hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
+    held = {sha for sha in hashes if ours is not None and photo_path(ours, sha).is_file()}
     with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
         found = _records(records, manifest, ours)
-        hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
         yield Bundle(path, manifest, *found, photo_hashes=hashes, checks=checks)
 
 
@@ -293,11 +292,6 @@ def _refusing_damage(path: Path) -> Iterator[None]:
         raise BundleError(
             f"{path}: cannot be read or unpacked ({exc}); nothing was written"
         ) from exc
-
-
-def _held_photos(ours: Store, pictures: list[zipfile.ZipInfo]) -> set[str]:
-    shas = (info.filename.removeprefix(PHOTO_PREFIX) for info in pictures)
-    return {sha for sha in shas if photo_path(ours, sha).is_file()}
 
 
 def _same_schema(manifest: dict[str, Any], ours: int) -> None:

@@ -19,7 +19,8 @@ MANIFEST = "manifest.json"
 RECORDS = "records.json"
 PHOTO_PREFIX = "photos/"
 _PHOTO_NAME = re.compile(r"^photos/[0-9a-f]{64}$")
-_BLOCK = 1 << 20
+#: Bytes read or written at a time when a member is copied.
+BLOCK = 1 << 20
 
 
 class BundleError(Exception):
@@ -121,7 +122,7 @@ def limit_for(name: str, limits: Limits) -> int:
 def read_capped(handle: IO[bytes], name: str, cap: int) -> Iterator[bytes]:
     """The member's bytes in blocks, stopping with an error past `cap` whatever the header said."""
     seen = 0
-    while block := handle.read(_BLOCK):
+    while block := handle.read(BLOCK):
         seen += len(block)
         if seen > cap:
             raise BundleError(

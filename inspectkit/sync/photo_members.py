@@ -18,7 +18,9 @@ from collections.abc import Sequence
 from concurrent.futures import Future, ThreadPoolExecutor
 from pathlib import Path
 
+from inspectkit.store.photos import in_folder
 from inspectkit.sync.guard import (
+    BLOCK,
     PHOTO_PREFIX,
     BundleError,
     Limits,
@@ -29,7 +31,8 @@ from inspectkit.sync.guard import (
 
 #: Threads that check photos at import; more than the cores only adds switching.
 WORKERS = max(1, min(4, os.cpu_count() or 1))
-_BLOCK = 1 << 20
+#: One worker's photos: hash → staged file, and the first refusal it met (with its number).
+_Share = tuple[dict[str, Path | None], tuple[int, Exception] | None]
 #: What reading a member of a damaged zip may raise, besides our own refusals.
 _DAMAGE = (BundleError, zipfile.BadZipFile, zlib.error, EOFError, OSError)
 
@@ -42,7 +45,7 @@ def add_photos(archive: zipfile.ZipFile, files: Sequence[tuple[Path, str]]) -> N
         info.external_attr = (stat.S_IFREG | 0o644) << 16
         info.file_size = source.stat().st_size
         with source.open("rb") as src, archive.open(info, "w") as dest:
-            while block := src.read(_BLOCK):
+            while block := src.read(BLOCK):
                 dest.write(block)
 
 
@@ -80,8 +83,9 @@ class PhotoChecks:
         numbered = list(enumerate(infos))
         shares = [numbered[n::WORKERS] for n in range(WORKERS) if numbered[n::WORKERS]]
         self._pool = ThreadPoolExecutor(max(1, len(shares)), thread_name_prefix="photo-check")
-        self._futures: list[Future[tuple[dict[str, Path | None], tuple[int, Exception] | None]]]
-        self._futures = [self._pool.submit(self._check_share, share) for share in shares]
+        self._futures: list[Future[_Share]] = [
+            self._pool.submit(self._check_share, share) for share in shares
+        ]
 
     def __enter__(self) -> PhotoChecks:
         return self
@@ -108,9 +112,7 @@ class PhotoChecks:
             raise min(refusals, key=lambda refusal: refusal[0])[1]
         return {sha: done[sha] for sha in self._order}
 
-    def _check_share(
-        self, share: list[tuple[int, zipfile.ZipInfo]]
-    ) -> tuple[dict[str, Path | None], tuple[int, Exception] | None]:
+    def _check_share(self, share: list[tuple[int, zipfile.ZipInfo]]) -> _Share:
         staged: dict[str, Path | None] = {}
         with zipfile.ZipFile(self._path) as archive:
             for number, info in share:
@@ -129,7 +131,7 @@ class PhotoChecks:
         target = None
         if self._staging is not None and sha not in self._held:
             # Staged in the photo folder's own layout, so that whole folders move into place.
-            target = self._staging / sha[:2] / sha
+            target = in_folder(self._staging, sha)
             target.parent.mkdir(parents=True, exist_ok=True)
         digest = hashlib.sha256()
         with archive.open(info) as source, open(target or os.devnull, "wb") as out:
