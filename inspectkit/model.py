@@ -387,6 +387,9 @@ class Site(Record):
     #: e.g. "mesh on flat roof with rods on plant".
     air_termination: str = Field(default="", max_length=300)
     earthing_arrangement: EarthingArrangement | None = None
+    #: When the site can be visited, e.g. "weekdays 08:00-15:00; not school_term"
+    #: (read by the planner, `inspectkit.plan.access`); empty for any working day.
+    access: str = Field(default="", max_length=200)
 
     @field_validator("name")
     @classmethod

@@ -10,10 +10,11 @@ import tomllib
 from pathlib import Path
 from typing import Literal
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
+from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from inspectkit.model import ElectrodeType, Grade, ProtectionLevel
 from inspectkit.paths import demo_dir
+from inspectkit.plan.geo import parse_point
 
 #: Names an inspection can be referred to by in the scenario file.
 InspectionRef = str
@@ -30,6 +31,15 @@ class _Data(BaseModel):
 class Contractor(_Data):
     name: str
     address: str = ""
+    #: The depot rounds are planned from, "LAT,LON".
+    depot: str | None = None
+
+    @field_validator("depot")
+    @classmethod
+    def _position(cls, value: str | None) -> str | None:
+        if value is not None:
+            parse_point(value, "depot")  # a PointError is a ValueError: named by pydantic
+        return value
 
 
 class InspectorSpec(_Data):
@@ -108,6 +118,8 @@ class SiteSpec(_Data):
     roofing: str = ""
     design_standard: str = ""
     air_termination: str = ""
+    #: When the site can be visited, as the planner reads it.
+    access: str = ""
     years: int = Field(ge=2, le=15)
     air_terminals: int = Field(ge=1)
     mesh_conductors: int = Field(ge=0)

@@ -92,6 +92,7 @@ _SITE_FIELDS = {
     "roofing",
     "design_standard",
     "air_termination",
+    "access",
 }
 #: Scenario keys that are set on the latest complete inspection.
 _LATEST_FIELDS = {"not_inspected", "accompanied_by", "changes_since_last"}

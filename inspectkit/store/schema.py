@@ -193,11 +193,24 @@ def _v3(db: sqlite_utils.Database) -> None:
     """The report's general and structure details on sites; who came along and what changed.
 
     Every existing row gains the new columns with their defaults, so each gets an
-    audit row saying so; otherwise the audit check would take the new columns for
-    an edit made behind the tool's back.
+    audit row saying so (`_add_columns`).
+    """
+    _add_columns(db, _V3_COLUMNS)
+
+
+def _site_access(db: sqlite_utils.Database) -> None:
+    """When each site can be visited (its access rule), for planning rounds."""
+    _add_columns(db, {"site": ("access TEXT NOT NULL DEFAULT ''",)})
+
+
+def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
+    """Add columns with defaults, and an audit row for every row that gains them.
+
+    Without the audit rows the audit check would take the new columns for an edit
+    made behind the tool's back.
     """
     at = utcnow().isoformat()
-    for table, columns in _V3_COLUMNS.items():
+    for table, columns in columns_by_table.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -221,5 +234,10 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
 
 
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _site_access,
+)
 SCHEMA_VERSION = len(MIGRATIONS)

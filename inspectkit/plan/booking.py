@@ -1,0 +1,100 @@
+"""Putting cut days on the calendar, and moving a visit from one day to another by hand.
+
+A day goes on the first date, from the window's first day and the day's earliest
+allowed date (a remedy's due date), on which the office works and every site in it
+can be visited; days are placed most urgent first, one crew, one day each.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from datetime import date, timedelta
+
+from inspectkit.plan.access import Access
+from inspectkit.plan.calendar import WorkCalendar
+from inspectkit.plan.days import DayRules, DaySplit, Leg, Roads, time_day
+
+#: How far past the window a day is looked for before it is called unbookable (our default).
+HORIZON_DAYS = 366
+
+
+def book_dates(
+    splits: Sequence[DaySplit],
+    first: date,
+    earliest: Callable[[DaySplit], date | None],
+    accesses: Callable[[DaySplit], list[Access]],
+    calendar: WorkCalendar,
+    taken: set[date] | None = None,
+) -> list[date | None]:
+    """A date for each day, in the order given (most urgent first); None where none is found.
+
+    Args:
+        splits: the cut days, most urgent first.
+        first: the window's first day.
+        earliest: a day's earliest allowed date, if any.
+        accesses: the access rules of a day's sites.
+        calendar: working days and holidays.
+        taken: dates already used (filled in as days are booked).
+    """
+    used = set() if taken is None else taken
+    out: list[date | None] = []
+    for split in splits:
+        start = max(first, earliest(split) or first)
+        rules = accesses(split)
+        found = None
+        day = start
+        last = first + timedelta(days=HORIZON_DAYS)
+        while day <= last:
+            if day not in used and calendar.bookable(day, rules):
+                found = day
+                break
+            day += timedelta(days=1)
+        if found is not None:
+            used.add(found)
+        out.append(found)
+    return out
+
+
+def insert_cheapest(nodes: Sequence[int], node: int, roads: Roads, depot: int = 0) -> list[int]:
+    """The day's nodes with `node` put where it adds the least driving time."""
+    stops = [depot, *nodes, depot]
+    best = min(
+        range(len(stops) - 1),
+        key=lambda k: (
+            roads.minutes[stops[k]][node]
+            + roads.minutes[node][stops[k + 1]]
+            - roads.minutes[stops[k]][stops[k + 1]]
+        ),
+    )
+    return [*nodes[:best], node, *nodes[best:]]
+
+
+def moved_days(
+    days: dict[date, DaySplit],
+    node: int,
+    target: date,
+    onsite: Callable[[int], float],
+    roads: Roads,
+    rules: DayRules,
+) -> dict[date, DaySplit]:
+    """The days after moving the visit at `node` to `target`: both days timed again.
+
+    The day it leaves keeps its order (and is gone if it was its only visit); on
+    the day it joins it goes where it adds the least driving.
+    """
+    out = dict(days)
+    for day, split in days.items():
+        rest = [leg.node for leg in split.legs if leg.node != node]
+        if len(rest) == len(split.legs):
+            continue
+        if rest:
+            out[day] = time_day(rest, onsite, roads, rules)
+        else:
+            del out[day]
+    joined: list[int] = [leg.node for leg in _legs(out.get(target))]
+    out[target] = time_day(insert_cheapest(joined, node, roads), onsite, roads, rules)
+    return out
+
+
+def _legs(split: DaySplit | None) -> tuple[Leg, ...]:
+    return () if split is None else split.legs
