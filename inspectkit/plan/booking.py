@@ -55,6 +55,38 @@ def book_dates(
     return out
 
 
+def day_masks(
+    accesses: Sequence[Access],
+    earliest: Sequence[date | None],
+    window_first: date,
+    window_days: int,
+    calendar: WorkCalendar,
+) -> list[int]:
+    """For each site, a bit mask of the days it can be booked on (bit k: window_first + k).
+
+    The days inside the window are what count; a site with none there gets its days
+    up to the horizon, so it is put with others that must wait as well, never with
+    sites that could be visited sooner.
+    """
+    span = window_days + HORIZON_DAYS
+    days = [window_first + timedelta(days=k) for k in range(span)]
+    office = sum(1 << k for k, d in enumerate(days) if calendar.closed_why(d) is None)
+    inside = (1 << window_days) - 1
+    masks = []
+    for access, first in zip(accesses, earliest, strict=True):
+        mask = office
+        if access.weekdays is not None or access.not_spans or access.not_periods:
+            mask = sum(
+                1 << k
+                for k, d in enumerate(days)
+                if office >> k & 1 and calendar.site_closed_why(d, access) is None
+            )
+        if first is not None and first > window_first:
+            mask &= ~((1 << (first - window_first).days) - 1)
+        masks.append(mask & inside or mask)
+    return masks
+
+
 def insert_cheapest(nodes: Sequence[int], node: int, roads: Roads, depot: int = 0) -> list[int]:
     """The day's nodes with `node` put where it adds the least driving time."""
     stops = [depot, *nodes, depot]

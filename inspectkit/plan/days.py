@@ -18,8 +18,8 @@ from inspectkit.plan.route import Matrix
 #: Entry points into a closed tour tried when cutting it into days (our default):
 #: all of them for rounds up to this size, evenly spread ones above.
 ROTATIONS = 64
-#: Every weekday, as a bit mask (Monday is bit 0).
-ALL_DAYS = 0b1111111
+#: Every day, as a bit mask of days (any number of bits).
+ALL_DAYS = -1
 
 
 @dataclass(frozen=True)
@@ -39,16 +39,17 @@ class Roads:
 
 @dataclass(frozen=True)
 class Slot:
-    """When a site can be visited: a window in minutes after the day's start, and weekdays.
+    """When a site can be visited: a window in minutes after the day's start, and which days.
 
     Attributes:
         opens, closes: the visit may start no earlier and must end no later.
-        weekdays: bit mask of the weekdays it allows (Monday bit 0).
+        days: bit mask of the days it can be visited on (bit k: the k-th day of the
+            planning calendar); sites share a day only when their masks meet.
     """
 
     opens: float = -math.inf
     closes: float = math.inf
-    weekdays: int = ALL_DAYS
+    days: int = ALL_DAYS
 
 
 ANY_TIME = Slot()
@@ -129,47 +130,93 @@ class DaySplit:
 
 
 class _Clock:
-    """A day's running clock, one stop at a time; shared by the cut and the final timing."""
+    """A day's running clock, one stop at a time; shared by the cut and the final timing.
+
+    Each node's minutes on site and slot are looked up once, as the cut steps
+    through them many times.
+    """
 
     def __init__(self, onsite: Callable[[int], float], roads: Roads, rules: DayRules) -> None:
-        self.onsite, self.roads, self.rules = onsite, roads, rules
-
-    def _due(self, t: float, brk: float | None, until: float) -> bool:
-        """A break is owed before time runs from `t` to `until`."""
-        rules = self.rules
-        return brk is None and rules.break_minutes > 0 and t <= rules.break_by < until
+        nodes = range(len(roads.minutes))
+        self.minutes, self.rules = roads.minutes, rules
+        self.onsite = [onsite(k) if k else 0.0 for k in nodes]
+        slots = [rules.slot(k) for k in nodes]
+        self.opens = [s.opens for s in slots]
+        self.closes = [s.closes for s in slots]
+        self.days = [s.days for s in slots]
+        self.pause = rules.break_minutes if rules.break_minutes > 0 else 0.0
+        self.by = rules.break_by
 
     def step(
         self, t: float, brk: float | None, here: int, node: int
-    ) -> tuple[float, float | None, Leg]:
-        """Drive from `here` at `t` and visit `node`: the clock after, the break, the leg."""
-        rules, slot = self.rules, self.rules.slot(node)
-        drive = self.roads.minutes[here][node]
-        if self._due(t, brk, t + drive):
-            brk, t = t, t + rules.break_minutes
+    ) -> tuple[float, float, float, float | None]:
+        """Drive from `here` at `t` and visit `node`: arrival, visit start and end, the break.
+
+        The break is taken at the last stop from which going on would pass its
+        latest start: before the drive, or on arrival before the visit.
+        """
+        drive = self.minutes[here][node]
+        owed = brk is None and self.pause > 0
+        if owed and t <= self.by < t + drive:
+            brk, t, owed = t, t + self.pause, False
         arrive = t + drive
-        start = max(arrive, slot.opens)
-        if self._due(arrive, brk, start + self.onsite(node)):
+        start = arrive if arrive >= self.opens[node] else self.opens[node]
+        if owed and arrive <= self.by < start + self.onsite[node]:
             brk = arrive
-            start = max(arrive + rules.break_minutes, slot.opens)
-        leave = start + self.onsite(node)
-        leg = Leg(
-            node, self.roads.km[here][node], drive, arrive, start, leave, leave <= slot.closes
-        )
-        return leave, brk, leg
+            start = max(arrive + self.pause, self.opens[node])
+        return arrive, start, start + self.onsite[node], brk
 
     def home(
         self, t: float, brk: float | None, here: int, depot: int
     ) -> tuple[float, float | None]:
         """Back at the depot: the clock then, and the break (taken before the drive if owed)."""
-        drive = self.roads.minutes[here][depot]
-        if self._due(t, brk, t + drive):
-            brk, t = t, t + self.rules.break_minutes
+        drive = self.minutes[here][depot]
+        if brk is None and self.pause > 0 and t <= self.by < t + drive:
+            brk, t = t, t + self.pause
         return t + drive, brk
 
     def working(self, end: float, brk: float | None) -> float:
         """Working time of a day ending at `end`: its length less the break."""
-        return end - (self.rules.break_minutes if brk is not None else 0.0)
+        return end - (self.pause if brk is not None else 0.0)
+
+
+def _cut(
+    route: Sequence[int], clock: _Clock, day_minutes: float, depot: int
+) -> tuple[list[tuple[int, int]], tuple[int, float]]:
+    """The cut points of the best split (see `split_days`), and its (days, minutes)."""
+    n = len(route)
+    # best[j]: (days, minutes) to cover route[:j]; cut[j]: where its last day starts.
+    best: list[tuple[int, float] | None] = [(0, 0.0)] + [None] * n
+    cut = [0] * (n + 1)
+    for i in range(n):
+        done = best[i]
+        if done is None:
+            continue
+        t, brk, here, mask = 0.0, None, depot, ALL_DAYS
+        for j in range(i, n):
+            node = route[j]
+            _, _, t, brk = clock.step(t, brk, here, node)
+            here, mask = node, mask & clock.days[node]
+            end, end_brk = clock.home(t, brk, here, depot)
+            fits = (
+                t <= clock.closes[node] and mask != 0 and clock.working(end, end_brk) <= day_minutes
+            )
+            if not fits and j > i:
+                break
+            option = (done[0] + 1, done[1] + end)
+            known = best[j + 1]
+            if known is None or option < known:
+                best[j + 1], cut[j + 1] = option, i
+            if not fits:
+                break
+    bounds = []
+    j = n
+    while j > 0:
+        bounds.append((cut[j], j))
+        j = cut[j]
+    total = best[n]
+    assert total is not None
+    return bounds[::-1], total
 
 
 def split_days(
@@ -184,7 +231,7 @@ def split_days(
     Every way of cutting the route into runs that fit a day is weighed (dynamic
     programming over the cut points, as in route-first cluster-second planning).
     A run fits when its working time is within the day, every visit lies inside its
-    site's access window, and its sites share a weekday they can all be visited on.
+    site's access window, and its sites share a day they can all be visited on.
     A run only grows longer as it takes the next site, and a site that does not fit
     stays in every longer run, so each run is extended only until it no longer fits.
 
@@ -196,34 +243,8 @@ def split_days(
         depot: the depot's node.
     """
     clock = _Clock(onsite, roads, rules)
-    n = len(route)
-    # best[j]: (days, minutes) to cover route[:j]; cut[j]: where its last day starts.
-    best: list[tuple[int, float] | None] = [(0, 0.0)] + [None] * n
-    cut = [0] * (n + 1)
-    for i in range(n):
-        done = best[i]
-        if done is None:
-            continue
-        t, brk, here, mask = 0.0, None, depot, ALL_DAYS
-        for j in range(i, n):
-            t, brk, leg = clock.step(t, brk, here, route[j])
-            here, mask = route[j], mask & rules.slot(route[j]).weekdays
-            end, end_brk = clock.home(t, brk, here, depot)
-            fits = leg.fits and mask != 0 and clock.working(end, end_brk) <= rules.day_minutes
-            if not fits and j > i:
-                break
-            option = (done[0] + 1, done[1] + end)
-            known = best[j + 1]
-            if known is None or option < known:
-                best[j + 1], cut[j + 1] = option, i
-            if not fits:
-                break
-    bounds = []
-    j = n
-    while j > 0:
-        bounds.append((cut[j], j))
-        j = cut[j]
-    return [time_day(route[i:j], onsite, roads, rules, depot) for i, j in reversed(bounds)]
+    bounds, _ = _cut(route, clock, rules.day_minutes, depot)
+    return [_timed(route[i:j], clock, roads, depot) for i, j in bounds]
 
 
 def time_day(
@@ -237,21 +258,34 @@ def time_day(
 
     Used for the cut and again when a visit is moved to another day by hand.
     """
-    clock = _Clock(onsite, roads, rules)
+    return _timed(nodes, _Clock(onsite, roads, rules), roads, depot)
+
+
+def _timed(nodes: Sequence[int], clock: _Clock, roads: Roads, depot: int) -> DaySplit:
     legs: list[Leg] = []
     t, brk, here = 0.0, None, depot
     for node in nodes:
-        t, brk, leg = clock.step(t, brk, here, node)
-        legs.append(leg)
+        arrive, start, t, brk = clock.step(t, brk, here, node)
+        legs.append(
+            Leg(
+                node,
+                roads.km[here][node],
+                roads.minutes[here][node],
+                arrive,
+                start,
+                t,
+                t <= clock.closes[node],
+            )
+        )
         here = node
     end, brk = clock.home(t, brk, here, depot)
-    over = clock.working(end, brk) > rules.day_minutes
+    over = clock.working(end, brk) > clock.rules.day_minutes
     return DaySplit(
         tuple(legs),
         roads.km[here][depot],
         roads.minutes[here][depot],
         brk,
-        rules.break_minutes if brk is not None else 0.0,
+        clock.pause if brk is not None else 0.0,
         over and len(legs) == 1,
         not all(leg.fits for leg in legs),
     )
@@ -274,12 +308,14 @@ def split_cycle(
     n = len(cycle)
     if n == 0:
         return []
-    best: list[DaySplit] | None = None
+    clock = _Clock(onsite, roads, rules)
+    best: tuple[list[int], list[tuple[int, int]]] | None = None
     best_key: tuple[int, float] | None = None
     for k in sorted({i * n // min(n, starts) for i in range(min(n, starts))}):
-        days = split_days([*cycle[k:], *cycle[:k]], onsite, roads, rules, depot)
-        key = (len(days), sum(d.minutes for d in days))
+        route = [*cycle[k:], *cycle[:k]]
+        bounds, key = _cut(route, clock, rules.day_minutes, depot)
         if best_key is None or key < best_key:
-            best, best_key = days, key
+            best, best_key = (route, bounds), key
     assert best is not None
-    return best
+    route, bounds = best
+    return [_timed(route[i:j], clock, roads, depot) for i, j in bounds]

@@ -11,7 +11,7 @@ from zoneinfo import ZoneInfo
 from inspectkit.engine.schedule import schedule_site
 from inspectkit.model import SiteRecords
 from inspectkit.plan.access import Access, AccessError, parse_access
-from inspectkit.plan.booking import HORIZON_DAYS, book_dates, moved_days
+from inspectkit.plan.booking import HORIZON_DAYS, book_dates, day_masks, moved_days
 from inspectkit.plan.calendar import WorkCalendar
 from inspectkit.plan.days import (
     ANY_TIME,
@@ -216,14 +216,13 @@ def _access_of(c: Candidate, calendar: WorkCalendar) -> Access | str:
     return access
 
 
-def _slot(access: Access, settings: PlanSettings) -> Slot:
-    """The access rule as a slot in minutes after the day's start."""
+def _slot(access: Access, days: int, settings: PlanSettings) -> Slot:
+    """The access rule as a slot in minutes after the day's start, on the given days."""
     start = settings.day_start.hour * 60 + settings.day_start.minute
-    days = settings.weekday_numbers & (access.weekdays or settings.weekday_numbers)
     return Slot(
         access.opens_minute - start if access.opens else -math.inf,
         access.closes_minute - start if access.closes else math.inf,
-        sum(1 << d for d in days),
+        days,
     )
 
 
@@ -275,7 +274,8 @@ def plan_round(
             accesses.append(access)
     points = [depot] + [c.point for c in kept if c.point is not None]
     roads, notes = build_roads(points, [c.site.name for c in kept], settings)
-    slots = [ANY_TIME] + [_slot(a, settings) for a in accesses]
+    masks = day_masks(accesses, [c.earliest for c in kept], window.first, window.days, calendar)
+    slots = [ANY_TIME] + [_slot(a, m, settings) for a, m in zip(accesses, masks, strict=True)]
     rules = DayRules(
         settings.hours_per_day * 60,
         settings.break_minutes,

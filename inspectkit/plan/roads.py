@@ -30,7 +30,8 @@ def build_roads(
     """
     gc = distance_matrix(list(points))
     km = [[d * settings.road_factor for d in row] for row in gc]
-    minutes = [[travel_minutes(d, settings) for d in row] for row in gc]
+    per_km = travel_minutes(1.0, settings)  # minutes per great-circle km
+    minutes = [[d * per_km for d in row] for row in gc]
     node = {DEPOT_PLACE: 0} | {n.strip().lower(): i for i, n in enumerate(names, start=1)}
     known: set[tuple[int, int]] = set()
     notes = []
