@@ -12,7 +12,7 @@ from datetime import date, timedelta
 
 from inspectkit.plan.access import Access
 from inspectkit.plan.calendar import WorkCalendar
-from inspectkit.plan.days import DayRules, DaySplit, Leg, Roads, time_day
+from inspectkit.plan.days import DayRules, DaySplit, Roads, time_day
 
 #: How far past the window a day is looked for before it is called unbookable (our default).
 HORIZON_DAYS = 366
@@ -87,18 +87,22 @@ def day_masks(
     return masks
 
 
-def insert_cheapest(nodes: Sequence[int], node: int, roads: Roads, depot: int = 0) -> list[int]:
-    """The day's nodes with `node` put where it adds the least driving time."""
-    stops = [depot, *nodes, depot]
-    best = min(
-        range(len(stops) - 1),
-        key=lambda k: (
-            roads.minutes[stops[k]][node]
-            + roads.minutes[node][stops[k + 1]]
-            - roads.minutes[stops[k]][stops[k + 1]]
-        ),
-    )
-    return [*nodes[:best], node, *nodes[best:]]
+def best_insertion(
+    nodes: Sequence[int],
+    node: int,
+    onsite: Callable[[int], float],
+    roads: Roads,
+    rules: DayRules,
+) -> DaySplit:
+    """The day with `node` put where every visit keeps its access window, then the day is shortest.
+
+    Every place in the day's order is tried (a day holds a handful of visits).
+    """
+    options = [
+        time_day([*nodes[:k], node, *nodes[k:]], onsite, roads, rules)
+        for k in range(len(nodes) + 1)
+    ]
+    return min(options, key=lambda d: (d.outside_window, d.minutes))
 
 
 def moved_days(
@@ -112,7 +116,8 @@ def moved_days(
     """The days after moving the visit at `node` to `target`: both days timed again.
 
     The day it leaves keeps its order (and is gone if it was its only visit); on
-    the day it joins it goes where it adds the least driving.
+    the day it joins it goes where every visit keeps its window and the day is
+    shortest.
     """
     out = dict(days)
     for day, split in days.items():
@@ -123,10 +128,7 @@ def moved_days(
             out[day] = time_day(rest, onsite, roads, rules)
         else:
             del out[day]
-    joined: list[int] = [leg.node for leg in _legs(out.get(target))]
-    out[target] = time_day(insert_cheapest(joined, node, roads), onsite, roads, rules)
+    joined = out.get(target)
+    nodes = [] if joined is None else [leg.node for leg in joined.legs]
+    out[target] = best_insertion(nodes, node, onsite, roads, rules)
     return out
-
-
-def _legs(split: DaySplit | None) -> tuple[Leg, ...]:
-    return () if split is None else split.legs
