@@ -48,6 +48,7 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("height_m", "Height (m)", "metres, e.g. 18.5", optional=True),
         Field("latitude", "Latitude", "degrees, e.g. 51.48", optional=True),
         Field("longitude", "Longitude", "degrees, e.g. -0.61", optional=True),
+        Field("access", "Access", "when it can be visited, e.g. weekdays 08:00-15:00"),
         Field("altered_on", "Altered on", DATE_HINT, optional=True),
         Field("use", "Use", "what it is used for, e.g. offices, fuel depot"),
         Field("construction", "Construction", "e.g. steel frame, brick cladding"),
