@@ -20,7 +20,8 @@ from inspectkit.cli.common import (
     open_store,
     today_option,
 )
-from inspectkit.engine.check import SiteCheck, check_all, worst_first
+from inspectkit.engine.check import SiteCheck, check_all
+from inspectkit.engine.standing import worst_first
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_all_profiles
 from inspectkit.store import Store
