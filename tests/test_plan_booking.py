@@ -309,3 +309,66 @@ def test_a_day_that_ends_before_the_latest_start_has_no_break(iec: Profile) -> N
     plan = _plan(iec, _ring(1), Window(date(2027, 1, 4), 30), _settings(break_by_hours=8))
     assert [d.break_start for d in plan.days] == [None]
     assert datetime(2027, 1, 4, 16, tzinfo=UTC) > plan.days[0].back
+
+
+# ------------------------------------------------------------------ settings and store
+
+
+def test_user_file_sets_periods_closed_days_and_roads(tmp_path: Path) -> None:
+    path = tmp_path / "plan.toml"
+    path.write_text(
+        'closed_days = [2027-01-04, "2027-08-02..2027-08-13"]\n'
+        '[periods]\n"School term" = ["2027-01-05..2027-02-12"]\n'
+        '[[roads]]\na = "depot"\nb = "Hall"\nkm = 4.5\n',
+        encoding="utf-8",
+    )
+    loaded = load_plan_settings(path)
+    assert [(s.first, s.last) for s in loaded.closed_days] == [
+        (date(2027, 1, 4), date(2027, 1, 4)),
+        (date(2027, 8, 2), date(2027, 8, 13)),
+    ]
+    assert list(loaded.periods) == ["school_term"]
+    assert loaded.roads[0].km == 4.5 and loaded.roads[0].minutes is None
+
+
+def test_saving_the_holiday_calendar_keeps_the_rest_of_the_file(tmp_path: Path) -> None:
+    from inspectkit.plan.settings import save_plan_values
+
+    path = tmp_path / "plan.toml"
+    path.write_text("# my figures\nspeed_kmh = 60  # motorway\n[minutes.visual]\nspd = 5\n")
+    saved = save_plan_values({"holiday_country": "DE", "holiday_region": "BY"}, path)
+    assert (saved.holiday_country, saved.holiday_region, saved.speed_kmh) == ("DE", "BY", 60)
+    text = path.read_text()
+    assert "# my figures" in text and "spd = 5" in text
+    assert text.index('holiday_country = "DE"') < text.index("[minutes.visual]")
+    again = save_plan_values({"holiday_region": "BE"}, path)
+    assert again.holiday_region == "BE" and text.count("holiday_region") == 1
+    before = path.read_text()
+    with pytest.raises(PlanSettingsError, match="holiday_region"):
+        save_plan_values({"holiday_region": "Atlantis"}, path)
+    assert path.read_text() == before
+
+
+def test_a_database_before_access_rules_migrates_with_empty_access(tmp_path: Path) -> None:
+    import sqlite_utils
+    from test_store import save_in_old_schema
+
+    from inspectkit.model import Site
+    from inspectkit.store import Store
+    from inspectkit.store.database import apply_migrations
+    from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION
+
+    path = tmp_path / "old.sqlite"
+    db = sqlite_utils.Database(path)
+    apply_migrations(db, upto=[m.__name__ for m in MIGRATIONS].index("_site_access"))
+    assert "access" not in {c.name for c in db["site"].columns}
+    site = Site(name="Old Hall", protection_level="II")
+    save_in_old_schema(db, site)
+    db.close()
+    with Store.open(path) as store:
+        assert store.schema_version() == SCHEMA_VERSION
+        assert store.get(Site, site.id).access == ""
+        assert store.verify_audit() == [], "the new column is logged, not taken for an edit"
+        store.save(store.get(Site, site.id).model_copy(update={"access": "tue, thu"}))
+        assert store.get(Site, site.id).access == "tue, thu"
+        assert store.verify_audit() == []

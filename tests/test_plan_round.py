@@ -226,6 +226,13 @@ def test_user_plan_file_overrides_key_by_key() -> None:
         ('working_days = ["mon", "funday"]\n', "funday"),
         ("[minutes.visual]\nspd = -1\n", "minutes"),
         ("speed_kmh = \n", "not valid TOML"),
+        ('closed_days = ["1 May"]\n', "closed_days"),
+        ('closed_days = ["2027-05-09..2027-05-01"]\n', "ends before it starts"),
+        ('time_zone = "Mars/Olympus"\n', "time_zone"),
+        ('holiday_country = "XX"\n', "holiday_country"),
+        ("break_minutes = -5\n", "break_minutes"),
+        ('[periods]\nschool_term = ["next term"]\n', "periods"),
+        ('[[roads]]\na = "depot"\nb = "Hall"\nkm = 0\n', "roads"),
     ],
 )
 def test_bad_user_plan_file_names_file_and_key(tmp_path: Path, text: str, words: str) -> None:

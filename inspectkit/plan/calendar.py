@@ -67,3 +67,20 @@ class WorkCalendar:
     def unknown_periods(self, access: Access) -> list[str]:
         """Periods the rule names that the settings do not define."""
         return [p for p in access.not_periods if p not in self.settings.periods]
+
+
+def holiday_countries() -> list[tuple[str, str]]:
+    """(ISO code, name) of every country the holidays library keeps, by name."""
+    from holidays.registry import COUNTRIES
+
+    named = {entry[1]: module.replace("_", " ").title() for module, entry in COUNTRIES.items()}
+    return sorted(named.items(), key=lambda item: item[1])
+
+
+def holiday_regions(country: str) -> list[tuple[str, str]]:
+    """(code, name) of the country's regions whose holidays the library keeps."""
+    import holidays
+
+    calendar = holidays.country_holidays(country.upper())
+    names = {code: name for name, code in getattr(calendar, "subdivisions_aliases", {}).items()}
+    return [(code, names.get(code, code)) for code in calendar.subdivisions]

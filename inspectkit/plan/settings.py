@@ -8,7 +8,9 @@ and key.
 
 from __future__ import annotations
 
+import json
 import os
+import re
 from datetime import time
 from functools import cache
 from pathlib import Path
@@ -262,6 +264,40 @@ def load_plan_settings(user_file: Path | None = None) -> PlanSettings:
         data = _merged(data, _read(user))
         sources = f"{user} (over {builtin_settings_path()})"
     return validated(PlanSettings, data, PlanSettingsError, sources)
+
+
+def save_plan_values(values: dict[str, str], user_file: Path | None = None) -> PlanSettings:
+    """Set top-level keys in the user's `plan.toml`, keeping the rest of it as written.
+
+    A key's line is replaced where the file has one, otherwise added before the first
+    table; the file is made if there is none. The result is loaded and checked first:
+    a wrong value raises and leaves the file as it was.
+
+    Raises:
+        PlanSettingsError: a value the settings refuse (file and key named).
+    """
+    path = user_settings_path() if user_file is None else user_file
+    old = path.read_text(encoding="utf-8") if path.is_file() else ""
+    lines = old.splitlines()
+    for key, value in values.items():
+        line = f"{key} = {json.dumps(value)}"
+        at = next((i for i, t in enumerate(lines) if re.match(rf"\s*{key}\s*=", t)), None)
+        if at is None:
+            at = next((i for i, t in enumerate(lines) if t.lstrip().startswith("[")), len(lines))
+            lines.insert(at, line)
+        else:
+            lines[at] = line
+    new = "\n".join(lines) + "\n"
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(new, encoding="utf-8")
+    try:
+        return load_plan_settings(path)
+    except PlanSettingsError:
+        if old:
+            path.write_text(old, encoding="utf-8")
+        else:
+            path.unlink()
+        raise
 
 
 def _read(path: Path) -> dict[str, Any]:
