@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from datetime import date
+from datetime import date, timedelta
 from pathlib import Path
 from typing import Any
 
@@ -10,6 +10,7 @@ import pytest
 from engine_factories import SiteBuilder
 
 from inspectkit.model import ComponentKind, Grade, Inspection, InspectionKind, InspectionState
+from inspectkit.plan.calendar import WorkCalendar
 from inspectkit.plan.drafts import create_drafts
 from inspectkit.plan.geo import Point, PointError
 from inspectkit.plan.planner import (
@@ -19,7 +20,6 @@ from inspectkit.plan.planner import (
     plan_round,
     save_depot,
     saved_depot,
-    working_days,
 )
 from inspectkit.plan.round import by_priority
 from inspectkit.plan.settings import (
@@ -188,8 +188,14 @@ def test_days_are_dated_on_working_days_most_urgent_first(iec: Profile) -> None:
 
 
 def test_working_days_skip_the_weekend() -> None:
-    days = working_days(date(2026, 3, 6), 3, load_plan_settings())
-    assert days == [date(2026, 3, 6), date(2026, 3, 9), date(2026, 3, 10)]
+    calendar = WorkCalendar(load_plan_settings())
+    days = [date(2026, 3, 6) + timedelta(days=k) for k in range(5)]
+    assert [d for d in days if calendar.closed_why(d) is None] == [
+        date(2026, 3, 6),
+        date(2026, 3, 9),
+        date(2026, 3, 10),
+    ]
+    assert calendar.closed_why(date(2026, 3, 7)) == "Saturday: not a working day"
 
 
 def test_travel_time_is_distance_times_road_factor_over_speed() -> None:

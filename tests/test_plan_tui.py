@@ -193,3 +193,30 @@ async def test_earlier_day_stops_at_the_window(round_db: Path) -> None:
         await _press_on(screen, pilot, name, "[")
         assert screen.moved == {}
         assert first_day.day == FIRST
+
+
+async def test_h_chooses_the_holiday_calendar_and_replans(round_db: Path) -> None:
+    from inspectkit.plan.settings import load_plan_settings, user_settings_path
+    from inspectkit.tui.dialogs.choice import ChoiceDialog
+
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        await pilot.press("h")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)
+        app.screen.dismiss("DE")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)  # now the regions of Germany
+        assert "BY" in [key for key, _ in app.screen.items]
+        app.screen.dismiss("BY")
+        await pilot.pause()
+        assert app.screen is screen
+        assert screen.plan is not None
+        assert (screen.plan.settings.holiday_country, screen.plan.settings.holiday_region) == (
+            "DE",
+            "BY",
+        )
+    loaded = load_plan_settings()
+    assert (loaded.holiday_country, loaded.holiday_region) == ("DE", "BY")
+    assert user_settings_path().is_file()

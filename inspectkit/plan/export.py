@@ -87,7 +87,7 @@ def plan_data(plan: RoundPlan) -> dict[str, Any]:
         "depot": {"latitude": plan.depot.lat, "longitude": plan.depot.lon},
         "hours_per_day": plan.settings.hours_per_day,
         "time_zone": plan.settings.zone,
-        "road_km": estimate_label(plan.settings),
+        "road_km_estimate": estimate_label(plan.settings),
         "total_km": round(plan.km, 1),
         "days": [
             {

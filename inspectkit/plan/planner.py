@@ -312,8 +312,8 @@ def plan_round(
     node_of = {c.site.id: k for k, c in enumerate(kept, start=1)}
     for site_id, target in (moved or {}).items():
         k = node_of.get(site_id)
-        if k is None:
-            continue
+        if k is None or not any(g.node == k for split in booked.values() for g in split.legs):
+            continue  # not on any day (dropped, unplaced or unbookable): nothing to move
         why = calendar.site_closed_why(target, accesses[k - 1])
         if why is not None:
             notes.append(f"{kept[k - 1].site.name} not moved to {target.isoformat()}: {why}")
@@ -344,18 +344,6 @@ def _no_day_why(window: Window) -> str:
         f"no day from {window.first.isoformat()} within {HORIZON_DAYS} days on which the "
         "office works and the site can be visited"
     )
-
-
-def working_days(first: date, count: int, settings: PlanSettings) -> list[date]:
-    """The first `count` days from `first` on that the office works (holidays left out)."""
-    calendar = WorkCalendar(settings)
-    days: list[date] = []
-    day = first
-    while len(days) < count:
-        if calendar.closed_why(day) is None:
-            days.append(day)
-        day += timedelta(days=1)
-    return days
 
 
 def _dated(

@@ -27,6 +27,7 @@ from inspectkit.plan.planner import (
 from inspectkit.plan.round import Candidate
 from inspectkit.plan.settings import PlanSettingsError, load_plan_settings
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.holiday_calendar import choose_holiday_calendar
 
 #: Window lengths `w` steps through, in days.
 WINDOWS = (14, 30, 60, 90)
@@ -89,6 +90,10 @@ class PlanScreen(Screen[None]):
         Binding(
             "x", "export", "Export", id="plan.export", show=False,
             tooltip="Write the round as CSV and iCalendar beside the database",
+        ),
+        Binding(
+            "h", "holidays", "Holidays", id="plan.holidays", show=False,
+            tooltip="Choose the country and region whose public holidays are not booked",
         ),
     ]
 
@@ -210,7 +215,8 @@ class PlanScreen(Screen[None]):
         )
         self.query_one("#status", Static).update(
             f"{len(plan.no_position)} no position · {len(plan.dropped)} dropped · "
-            f"{len(plan.unbookable)} no day · [ ] move a visit · x export"
+            f"{len(plan.unbookable)} no day · [ ] move · x export · h holidays "
+            f"({plan.settings.holiday_country or 'none'})"
         )
 
     def _break_row(self, day: PlannedDay) -> None:
@@ -291,6 +297,10 @@ class PlanScreen(Screen[None]):
             self.notify(f"Cannot write {exc.filename}: {exc.strerror}", severity="error")
             return
         self.notify(f"Written: {csv_path.name} and {ics_path.name} in {csv_path.parent}")
+
+    def action_holidays(self) -> None:
+        current = self.plan.settings if self.plan else None
+        choose_holiday_calendar(self.app, current, lambda _: self.replan())
 
     def action_window(self) -> None:
         self.days = WINDOWS[(WINDOWS.index(self.days) + 1) % len(WINDOWS)]
