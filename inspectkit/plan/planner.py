@@ -257,8 +257,7 @@ def plan_round(
     """
     calendar = WorkCalendar(settings)
     dropped_ids, pinned_ids = set(dropped), set(pinned)
-    kept: list[Candidate] = []
-    accesses: list[Access] = []
+    kept: list[tuple[Candidate, Access]] = []
     out, no_position, unbookable = [], [], []
     for c in candidates:
         c = replace(c, pinned=c.site.id in pinned_ids)
@@ -270,57 +269,29 @@ def plan_round(
         elif isinstance(access, str):
             unbookable.append((c, access))
         else:
-            kept.append(c)
-            accesses.append(access)
-    points = [depot] + [c.point for c in kept if c.point is not None]
-    roads, notes = build_roads(points, [c.site.name for c in kept], settings)
-    masks = day_masks(accesses, [c.earliest for c in kept], window.first, window.days, calendar)
-    slots = [ANY_TIME] + [_slot(a, m, settings) for a, m in zip(accesses, masks, strict=True)]
-    rules = DayRules(
-        settings.hours_per_day * 60,
-        settings.break_minutes,
-        settings.break_by_hours * 60,
-        slots.__getitem__,
-    )
-
-    def onsite(node: int) -> float:
-        return kept[node - 1].onsite_minutes
-
-    # A site too long for a day with nothing else gets a day of its own; routing it
-    # with the others would only cut the days either side of it short.
-    n = len(kept) + 1
-    alone = {k for k in range(1, n) if _single(k, onsite, roads, rules)}
-    routed = [0] + [k for k in range(1, n) if k not in alone]
-    tour = plan_route([[roads.km[i][j] for j in routed] for i in routed])
-    splits = split_cycle([routed[i] for i in tour[1:]], onsite, roads, rules)
-    splits += [d for k in sorted(alone) for d in split_days([k], onsite, roads, rules)]
-    splits.sort(key=lambda s: min(priority_key(kept[leg.node - 1]) for leg in s.legs))
+            kept.append((c, access))
+    routed = _Routed([c for c, _ in kept], [a for _, a in kept], window, depot, calendar)
+    splits = routed.cut()
     dates = book_dates(
         splits,
         window.first,
-        lambda s: max(kept[g.node - 1].earliest or window.first for g in s.legs),
-        lambda s: [accesses[g.node - 1] for g in s.legs],
+        lambda s: max(routed.sites[g.node - 1].earliest or window.first for g in s.legs),
+        lambda s: [routed.accesses[g.node - 1] for g in s.legs],
         calendar,
     )
     booked: dict[date, DaySplit] = {}
     for split, day in zip(splits, dates, strict=True):
         if day is None:
-            unbookable += [(kept[g.node - 1], _no_day_why(window)) for g in split.legs]
+            unbookable += [(routed.sites[g.node - 1], _no_day_why(window)) for g in split.legs]
         else:
             booked[day] = split
     touched: set[date] = set()
-    node_of = {c.site.id: k for k, c in enumerate(kept, start=1)}
     for site_id, target in (moved or {}).items():
-        k = node_of.get(site_id)
-        if k is None or not any(g.node == k for split in booked.values() for g in split.legs):
-            continue  # not on any day (dropped, unplaced or unbookable): nothing to move
-        why = calendar.site_closed_why(target, accesses[k - 1])
-        if why is not None:
-            notes.append(f"{kept[k - 1].site.name} not moved to {target.isoformat()}: {why}")
-            continue
-        touched |= {d for d, s in booked.items() if any(g.node == k for g in s.legs)} | {target}
-        booked = moved_days(booked, k, target, onsite, roads, rules)
-    days = tuple(_dated(booked[d], d, kept, roads, settings, d in touched) for d in sorted(booked))
+        booked, touched = routed.move(booked, site_id, target, touched)
+    days = tuple(
+        _dated(booked[d], d, routed.sites, routed.roads, settings, d in touched)
+        for d in sorted(booked)
+    )
     return RoundPlan(
         window,
         depot,
@@ -329,8 +300,74 @@ def plan_round(
         tuple(by_priority(no_position)),
         tuple(by_priority(out)),
         unbookable=tuple(unbookable),
-        notes=tuple(notes),
+        notes=tuple(routed.notes),
     )
+
+
+class _Routed:
+    """The sites that go on days, as nodes 1… of one road matrix (the depot is 0)."""
+
+    def __init__(
+        self,
+        sites: list[Candidate],
+        accesses: list[Access],
+        window: Window,
+        depot: Point,
+        calendar: WorkCalendar,
+    ) -> None:
+        settings = calendar.settings
+        self.sites, self.accesses, self.calendar = sites, accesses, calendar
+        points = [depot] + [c.point for c in sites if c.point is not None]
+        self.roads, self.notes = build_roads(points, [c.site.name for c in sites], settings)
+        masks = day_masks(
+            accesses, [c.earliest for c in sites], window.first, window.days, calendar
+        )
+        slots = [ANY_TIME] + [_slot(a, m, settings) for a, m in zip(accesses, masks, strict=True)]
+        self.rules = DayRules(
+            settings.hours_per_day * 60,
+            settings.break_minutes,
+            settings.break_by_hours * 60,
+            slots.__getitem__,
+        )
+
+    def onsite(self, node: int) -> float:
+        return self.sites[node - 1].onsite_minutes
+
+    def cut(self) -> list[DaySplit]:
+        """The days, most urgent first: the tour cut into days, and the sites alone.
+
+        A site too long for a day with nothing else gets a day of its own; routing it
+        with the others would only cut the days either side of it short.
+        """
+        roads, rules, onsite = self.roads, self.rules, self.onsite
+        n = len(self.sites) + 1
+        alone = {k for k in range(1, n) if _single(k, onsite, roads, rules)}
+        routed = [0] + [k for k in range(1, n) if k not in alone]
+        tour = plan_route([[roads.km[i][j] for j in routed] for i in routed])
+        splits = split_cycle([routed[i] for i in tour[1:]], onsite, roads, rules)
+        splits += [d for k in sorted(alone) for d in split_days([k], onsite, roads, rules)]
+        splits.sort(key=lambda s: min(priority_key(self.sites[g.node - 1]) for g in s.legs))
+        return splits
+
+    def move(
+        self, booked: dict[date, DaySplit], site_id: str, target: date, touched: set[date]
+    ) -> tuple[dict[date, DaySplit], set[date]]:
+        """The days after moving a site's visit to `target`, and the days changed so far.
+
+        A site on no day (dropped, unplaced, unbookable) is left alone; a target day
+        the site cannot be visited on is refused with a note.
+        """
+        k = next((i for i, c in enumerate(self.sites, start=1) if c.site.id == site_id), None)
+        held = {d for d, s in booked.items() if any(g.node == k for g in s.legs)}
+        if k is None or not held:
+            return booked, touched
+        why = self.calendar.site_closed_why(target, self.accesses[k - 1])
+        if why is not None:
+            name = self.sites[k - 1].site.name
+            self.notes.append(f"{name} not moved to {target.isoformat()}: {why}")
+            return booked, touched
+        moved = moved_days(booked, k, target, self.onsite, self.roads, self.rules)
+        return moved, touched | held | {target}
 
 
 def _single(node: int, onsite: Callable[[int], float], roads: Roads, rules: DayRules) -> bool:
