@@ -1,4 +1,4 @@
-"""Putting cut days on the calendar, and moving a visit from one day to another by hand.
+"""The sites of a round put on days: cut, dated on bookable days, and moved by hand.
 
 A day goes on the first date, from the window's first day and the day's earliest
 allowed date (a remedy's due date), on which the office works and every site in it
@@ -7,12 +7,27 @@ can be visited; days are placed most urgent first, one crew, one day each.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Sequence
 from datetime import date, timedelta
 
 from inspectkit.plan.access import Access
 from inspectkit.plan.calendar import WorkCalendar
-from inspectkit.plan.days import DayRules, DaySplit, Roads, time_day
+from inspectkit.plan.days import (
+    ANY_TIME,
+    DayRules,
+    DaySplit,
+    Roads,
+    Slot,
+    split_cycle,
+    split_days,
+    time_day,
+)
+from inspectkit.plan.geo import Point
+from inspectkit.plan.roads import build_roads
+from inspectkit.plan.round import Candidate, priority_key
+from inspectkit.plan.route import plan_route
+from inspectkit.plan.settings import PlanSettings
 
 #: How far past the window a day is looked for before it is called unbookable (our default).
 HORIZON_DAYS = 366
@@ -132,3 +147,90 @@ def moved_days(
     nodes = [] if joined is None else [leg.node for leg in joined.legs]
     out[target] = best_insertion(nodes, node, onsite, roads, rules)
     return out
+
+
+def _slot(access: Access, days: int, settings: PlanSettings) -> Slot:
+    """The access rule as a slot in minutes after the day's start, on the given days."""
+    start = settings.day_start.hour * 60 + settings.day_start.minute
+    return Slot(
+        access.opens_minute - start if access.opens else -math.inf,
+        access.closes_minute - start if access.closes else math.inf,
+        days,
+    )
+
+
+class RoutedSites:
+    """The sites that go on days, as nodes 1… of one road matrix (the depot is 0)."""
+
+    def __init__(
+        self,
+        sites: list[Candidate],
+        accesses: list[Access],
+        first: date,
+        days: int,
+        depot: Point,
+        calendar: WorkCalendar,
+    ) -> None:
+        """Args:
+        sites: the candidates to put on days, with `accesses` their access rules.
+        first, days: the window; what can be booked is judged from `first`.
+        depot: where each day starts and ends.
+        calendar: working days and holidays.
+        """
+        settings = calendar.settings
+        self.sites, self.accesses, self.calendar = sites, accesses, calendar
+        points = [depot] + [c.point for c in sites if c.point is not None]
+        self.roads, self.notes = build_roads(points, [c.site.name for c in sites], settings)
+        masks = day_masks(accesses, [c.earliest for c in sites], first, days, calendar)
+        slots = [ANY_TIME] + [_slot(a, m, settings) for a, m in zip(accesses, masks, strict=True)]
+        self.rules = DayRules(
+            settings.hours_per_day * 60,
+            settings.break_minutes,
+            settings.break_by_hours * 60,
+            slots.__getitem__,
+        )
+
+    def onsite(self, node: int) -> float:
+        return self.sites[node - 1].onsite_minutes
+
+    def cut(self) -> list[DaySplit]:
+        """The days, most urgent first: the tour cut into days, and the sites alone.
+
+        A site too long for a day with nothing else gets a day of its own; routing it
+        with the others would only cut the days either side of it short.
+        """
+        roads, rules, onsite = self.roads, self.rules, self.onsite
+        n = len(self.sites) + 1
+        alone = {k for k in range(1, n) if _single(k, onsite, roads, rules)}
+        routed = [0] + [k for k in range(1, n) if k not in alone]
+        tour = plan_route([[roads.km[i][j] for j in routed] for i in routed])
+        splits = split_cycle([routed[i] for i in tour[1:]], onsite, roads, rules)
+        splits += [d for k in sorted(alone) for d in split_days([k], onsite, roads, rules)]
+        splits.sort(key=lambda s: min(priority_key(self.sites[g.node - 1]) for g in s.legs))
+        return splits
+
+    def move(
+        self, booked: dict[date, DaySplit], site_id: str, target: date, touched: set[date]
+    ) -> tuple[dict[date, DaySplit], set[date]]:
+        """The days after moving a site's visit to `target`, and the days changed so far.
+
+        A site on no day (dropped, unplaced, unbookable) is left alone; a target day
+        the site cannot be visited on is refused with a note.
+        """
+        k = next((i for i, c in enumerate(self.sites, start=1) if c.site.id == site_id), None)
+        held = {d for d, s in booked.items() if any(g.node == k for g in s.legs)}
+        if k is None or not held:
+            return booked, touched
+        why = self.calendar.site_closed_why(target, self.accesses[k - 1])
+        if why is not None:
+            name = self.sites[k - 1].site.name
+            self.notes.append(f"{name} not moved to {target.isoformat()}: {why}")
+            return booked, touched
+        moved = moved_days(booked, k, target, self.onsite, self.roads, self.rules)
+        return moved, touched | held | {target}
+
+
+def _single(node: int, onsite: Callable[[int], float], roads: Roads, rules: DayRules) -> bool:
+    """The site does not fit a day even with nothing else in it."""
+    day = time_day([node], onsite, roads, rules)
+    return day.too_long or day.outside_window

@@ -2,8 +2,7 @@
 
 from __future__ import annotations
 
-import math
-from collections.abc import Callable, Iterable, Mapping
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, replace
 from datetime import UTC, date, datetime, timedelta
 from zoneinfo import ZoneInfo
@@ -11,31 +10,22 @@ from zoneinfo import ZoneInfo
 from inspectkit.engine.schedule import schedule_site
 from inspectkit.model import SiteRecords
 from inspectkit.plan.access import Access, AccessError, parse_access
-from inspectkit.plan.booking import HORIZON_DAYS, book_dates, day_masks, moved_days
+from inspectkit.plan.booking import HORIZON_DAYS, RoutedSites, book_dates
 from inspectkit.plan.calendar import WorkCalendar
 from inspectkit.plan.days import (
-    ANY_TIME,
-    DayRules,
     DaySplit,
     Roads,
-    Slot,
-    split_cycle,
-    split_days,
-    time_day,
 )
 from inspectkit.plan.geo import Point, PointError, format_point, parse_point
-from inspectkit.plan.roads import build_roads
 from inspectkit.plan.round import (
     Candidate,
     by_priority,
     defects_to_recheck,
     held_back,
-    priority_key,
     reasons_for,
     return_reasons,
     visit_kinds,
 )
-from inspectkit.plan.route import plan_route
 from inspectkit.plan.settings import PlanSettings
 from inspectkit.plan.timing import component_counts, onsite_minutes
 from inspectkit.profiles import Profile, ProfileError, load_profile
@@ -216,16 +206,6 @@ def _access_of(c: Candidate, calendar: WorkCalendar) -> Access | str:
     return access
 
 
-def _slot(access: Access, days: int, settings: PlanSettings) -> Slot:
-    """The access rule as a slot in minutes after the day's start, on the given days."""
-    start = settings.day_start.hour * 60 + settings.day_start.minute
-    return Slot(
-        access.opens_minute - start if access.opens else -math.inf,
-        access.closes_minute - start if access.closes else math.inf,
-        days,
-    )
-
-
 def plan_round(
     candidates: Iterable[Candidate],
     window: Window,
@@ -270,7 +250,9 @@ def plan_round(
             unbookable.append((c, access))
         else:
             kept.append((c, access))
-    routed = _Routed([c for c, _ in kept], [a for _, a in kept], window, depot, calendar)
+    routed = RoutedSites(
+        [c for c, _ in kept], [a for _, a in kept], window.first, window.days, depot, calendar
+    )
     splits = routed.cut()
     dates = book_dates(
         splits,
@@ -302,78 +284,6 @@ def plan_round(
         unbookable=tuple(unbookable),
         notes=tuple(routed.notes),
     )
-
-
-class _Routed:
-    """The sites that go on days, as nodes 1… of one road matrix (the depot is 0)."""
-
-    def __init__(
-        self,
-        sites: list[Candidate],
-        accesses: list[Access],
-        window: Window,
-        depot: Point,
-        calendar: WorkCalendar,
-    ) -> None:
-        settings = calendar.settings
-        self.sites, self.accesses, self.calendar = sites, accesses, calendar
-        points = [depot] + [c.point for c in sites if c.point is not None]
-        self.roads, self.notes = build_roads(points, [c.site.name for c in sites], settings)
-        masks = day_masks(
-            accesses, [c.earliest for c in sites], window.first, window.days, calendar
-        )
-        slots = [ANY_TIME] + [_slot(a, m, settings) for a, m in zip(accesses, masks, strict=True)]
-        self.rules = DayRules(
-            settings.hours_per_day * 60,
-            settings.break_minutes,
-            settings.break_by_hours * 60,
-            slots.__getitem__,
-        )
-
-    def onsite(self, node: int) -> float:
-        return self.sites[node - 1].onsite_minutes
-
-    def cut(self) -> list[DaySplit]:
-        """The days, most urgent first: the tour cut into days, and the sites alone.
-
-        A site too long for a day with nothing else gets a day of its own; routing it
-        with the others would only cut the days either side of it short.
-        """
-        roads, rules, onsite = self.roads, self.rules, self.onsite
-        n = len(self.sites) + 1
-        alone = {k for k in range(1, n) if _single(k, onsite, roads, rules)}
-        routed = [0] + [k for k in range(1, n) if k not in alone]
-        tour = plan_route([[roads.km[i][j] for j in routed] for i in routed])
-        splits = split_cycle([routed[i] for i in tour[1:]], onsite, roads, rules)
-        splits += [d for k in sorted(alone) for d in split_days([k], onsite, roads, rules)]
-        splits.sort(key=lambda s: min(priority_key(self.sites[g.node - 1]) for g in s.legs))
-        return splits
-
-    def move(
-        self, booked: dict[date, DaySplit], site_id: str, target: date, touched: set[date]
-    ) -> tuple[dict[date, DaySplit], set[date]]:
-        """The days after moving a site's visit to `target`, and the days changed so far.
-
-        A site on no day (dropped, unplaced, unbookable) is left alone; a target day
-        the site cannot be visited on is refused with a note.
-        """
-        k = next((i for i, c in enumerate(self.sites, start=1) if c.site.id == site_id), None)
-        held = {d for d, s in booked.items() if any(g.node == k for g in s.legs)}
-        if k is None or not held:
-            return booked, touched
-        why = self.calendar.site_closed_why(target, self.accesses[k - 1])
-        if why is not None:
-            name = self.sites[k - 1].site.name
-            self.notes.append(f"{name} not moved to {target.isoformat()}: {why}")
-            return booked, touched
-        moved = moved_days(booked, k, target, self.onsite, self.roads, self.rules)
-        return moved, touched | held | {target}
-
-
-def _single(node: int, onsite: Callable[[int], float], roads: Roads, rules: DayRules) -> bool:
-    """The site does not fit a day even with nothing else in it."""
-    day = time_day([node], onsite, roads, rules)
-    return day.too_long or day.outside_window
 
 
 def _no_day_why(window: Window) -> str:

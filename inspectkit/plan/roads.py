@@ -28,10 +28,12 @@ def build_roads(
     Returns:
         the roads, and a note for each known road naming a place not in the round.
     """
-    gc = distance_matrix(list(points))
-    km = [[d * settings.road_factor for d in row] for row in gc]
+    km = distance_matrix(list(points))  # great-circle, stretched in place below
     per_km = travel_minutes(1.0, settings)  # minutes per great-circle km
-    minutes = [[d * per_km for d in row] for row in gc]
+    minutes = [[d * per_km for d in row] for row in km]
+    factor = settings.road_factor
+    for row in km:
+        row[:] = [d * factor for d in row]
     node = {DEPOT_PLACE: 0} | {n.strip().lower(): i for i, n in enumerate(names, start=1)}
     known: set[tuple[int, int]] = set()
     notes = []
