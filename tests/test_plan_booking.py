@@ -372,3 +372,19 @@ def test_a_database_before_access_rules_migrates_with_empty_access(tmp_path: Pat
         store.save(store.get(Site, site.id).model_copy(update={"access": "tue, thu"}))
         assert store.get(Site, site.id).access == "tue, thu"
         assert store.verify_audit() == []
+
+
+def test_the_time_zone_defaults_to_the_systems(monkeypatch: pytest.MonkeyPatch) -> None:
+    from inspectkit.plan.settings import system_zone
+
+    monkeypatch.setenv("TZ", "America/New_York")
+    system_zone.cache_clear()
+    try:
+        assert load_plan_settings().time_zone == ""
+        assert load_plan_settings().zone == "America/New_York"
+        assert _settings().zone == "Europe/London"
+        monkeypatch.setenv("TZ", "Nowhere/Special")
+        system_zone.cache_clear()
+        assert load_plan_settings().zone == "UTC"
+    finally:
+        system_zone.cache_clear()

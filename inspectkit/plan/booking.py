@@ -19,6 +19,7 @@ from inspectkit.plan.days import (
     DaySplit,
     Roads,
     Slot,
+    misfits,
     split_cycle,
     split_days,
     time_day,
@@ -201,7 +202,7 @@ class RoutedSites:
         """
         roads, rules, onsite = self.roads, self.rules, self.onsite
         n = len(self.sites) + 1
-        alone = {k for k in range(1, n) if _single(k, onsite, roads, rules)}
+        alone = misfits(range(1, n), onsite, roads, rules)
         routed = [0] + [k for k in range(1, n) if k not in alone]
         tour = plan_route([[roads.km[i][j] for j in routed] for i in routed])
         splits = split_cycle([routed[i] for i in tour[1:]], onsite, roads, rules)
@@ -228,9 +229,3 @@ class RoutedSites:
             return booked, touched
         moved = moved_days(booked, k, target, self.onsite, self.roads, self.rules)
         return moved, touched | held | {target}
-
-
-def _single(node: int, onsite: Callable[[int], float], roads: Roads, rules: DayRules) -> bool:
-    """The site does not fit a day even with nothing else in it."""
-    day = time_day([node], onsite, roads, rules)
-    return day.too_long or day.outside_window

@@ -10,7 +10,7 @@ site whose round trip alone does not fit a day gets a day of its own and is flag
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 
 from inspectkit.plan.route import Matrix
@@ -289,6 +289,23 @@ def _timed(nodes: Sequence[int], clock: _Clock, roads: Roads, depot: int) -> Day
         over and len(legs) == 1,
         not all(leg.fits for leg in legs),
     )
+
+
+def misfits(
+    nodes: Iterable[int],
+    onsite: Callable[[int], float],
+    roads: Roads,
+    rules: DayRules,
+    depot: int = 0,
+) -> set[int]:
+    """The nodes that do not fit a day even alone: too long, or outside their window."""
+    clock = _Clock(onsite, roads, rules)
+    out = set()
+    for node in nodes:
+        day = _timed([node], clock, roads, depot)
+        if day.too_long or day.outside_window:
+            out.add(node)
+    return out
 
 
 def split_cycle(
