@@ -169,12 +169,25 @@ def test_moving_a_visit_retimes_both_days(iec: Profile, tmp_path: Path) -> None:
     assert event.decoded("DTSTART") == moved_visit.start
 
 
-def test_a_move_onto_a_holiday_is_refused_with_a_note(iec: Profile) -> None:
-    # Monday 31 May 2027 is England's Spring Bank Holiday (holidays library, GB/ENG).
-    b = _site("Hall", date(2024, 1, 10))
-    plan = _plan(iec, [b], moved={b.site.id: date(2027, 5, 31)})
-    assert [d.day for d in plan.days] == [FIRST]
-    assert any("Spring Bank Holiday" in n for n in plan.notes)
+@pytest.mark.parametrize(
+    ("target", "words"),
+    [
+        # Monday 31 May 2027 is England's Spring Bank Holiday (holidays library, GB/ENG).
+        (date(2027, 5, 31), "Spring Bank Holiday"),
+        (date(2027, 1, 16), "Saturday"),
+        (date(2026, 12, 30), "before the round's first day"),
+        (date(2027, 1, 12), "before the remedy it re-checks is due, 2027-01-14"),
+    ],
+)
+def test_a_move_to_a_day_it_cannot_be_made_is_refused_with_a_note(
+    iec: Profile, target: date, words: str
+) -> None:
+    b = _site("Hall", date(2026, 6, 1))
+    b.finding(b.inspections[0], None, Grade.DEFECT, "bond missing", due_by=date(2027, 1, 14))
+    plan = _plan(iec, [b], moved={b.site.id: target})
+    assert [d.day for d in plan.days] == [date(2027, 1, 14)]
+    assert not plan.days[0].moved
+    assert any(words in n for n in plan.notes)
 
 
 def test_plan_command_moves_a_visit(tmp_path: Path, iec: Profile) -> None:

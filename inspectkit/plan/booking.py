@@ -179,7 +179,7 @@ class RoutedSites:
         calendar: working days and holidays.
         """
         settings = calendar.settings
-        self.sites, self.accesses, self.calendar = sites, accesses, calendar
+        self.sites, self.accesses, self.calendar, self.first = sites, accesses, calendar, first
         points = [depot] + [c.point for c in sites if c.point is not None]
         self.roads, self.notes = build_roads(points, [c.site.name for c in sites], settings)
         masks = day_masks(accesses, [c.earliest for c in sites], first, days, calendar)
@@ -216,13 +216,19 @@ class RoutedSites:
         """The days after moving a site's visit to `target`, and the days changed so far.
 
         A site on no day (dropped, unplaced, unbookable) is left alone; a target day
-        the site cannot be visited on is refused with a note.
+        the site cannot be visited on, before the round or before a remedy it
+        re-checks is due, is refused with a note.
         """
         k = next((i for i, c in enumerate(self.sites, start=1) if c.site.id == site_id), None)
         held = {d for d, s in booked.items() if any(g.node == k for g in s.legs)}
         if k is None or not held:
             return booked, touched
+        earliest = self.sites[k - 1].earliest
         why = self.calendar.site_closed_why(target, self.accesses[k - 1])
+        if target < self.first:
+            why = f"before the round's first day, {self.first.isoformat()}"
+        elif earliest is not None and target < earliest:
+            why = f"before the remedy it re-checks is due, {earliest.isoformat()}"
         if why is not None:
             name = self.sites[k - 1].site.name
             self.notes.append(f"{name} not moved to {target.isoformat()}: {why}")

@@ -201,7 +201,8 @@ def _access_of(c: Candidate, calendar: WorkCalendar) -> Access | str:
     if access.weekdays is not None and not access.weekdays & office:
         return (
             f"access {access.text!r} allows none of the working days "
-            f"({', '.join(calendar.settings.working_days)}); book it by hand"
+            f"({', '.join(calendar.settings.working_days)}); add its days to working_days "
+            "in plan.toml or book it by hand"
         )
     return access
 
