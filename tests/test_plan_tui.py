@@ -220,3 +220,19 @@ async def test_h_chooses_the_holiday_calendar_and_replans(round_db: Path) -> Non
     loaded = load_plan_settings()
     assert (loaded.holiday_country, loaded.holiday_region) == ("DE", "BY")
     assert user_settings_path().is_file()
+
+
+async def test_the_highlighted_visit_says_why_it_is_in_the_round(round_db: Path) -> None:
+    from textual.widgets import Static
+
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is not None
+        _, visit = screen.plan.visits[-1]
+        table = screen.query_one("#round", DataTable)
+        table.move_cursor(row=table.get_row_index(visit.candidate.site.id))
+        await pilot.pause()
+        why = str(screen.query_one("#why", Static).render())
+        assert why.startswith("why: ")
+        assert visit.candidate.reasons[0].text[:30] in why.replace("\n", " ")

@@ -104,6 +104,7 @@ class PlanScreen(Screen[None]):
         self.pinned: set[str] = set()
         self.moved: dict[str, date] = {}
         self.plan: RoundPlan | None = None
+        self.told: set[str] = set()
 
     @property
     def table(self) -> DataTable[object]:
@@ -114,6 +115,7 @@ class PlanScreen(Screen[None]):
         yield Static("", id="summary", classes="section-title")
         yield Input(placeholder="Depot LAT,LON, Enter to save", id="depot")
         yield DataTable(id="round", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="why")
         yield Static("", id="status", classes="hint")
         yield Footer()
 
@@ -168,6 +170,10 @@ class PlanScreen(Screen[None]):
             )
             return
         self._show(self.plan)
+        for note in self.plan.notes:
+            if note not in self.told:
+                self.told.add(note)
+                self.notify(note, severity="warning", timeout=8)
 
     def _show(self, plan: RoundPlan) -> None:
         table = self.table
@@ -218,6 +224,23 @@ class PlanScreen(Screen[None]):
             f"{len(plan.unbookable)} no day · [ ] move · x export · h holidays "
             f"({plan.settings.holiday_country or 'none'})"
         )
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        """Say why the highlighted site is in the round, and what waits for later."""
+        plan, key = self.plan, event.row_key.value
+        found = None
+        if plan is not None:
+            groups = (
+                [v.candidate for _, v in plan.visits],
+                plan.no_position,
+                plan.dropped,
+                [c for c, _ in plan.unbookable],
+            )
+            found = next((c for g in groups for c in g if c.site.id == key), None)
+        text = "" if found is None else "; ".join(
+            [r.text for r in found.reasons] + list(found.waiting)
+        )
+        self.query_one("#why", Static).update(f"why: {text}" if text else "")
 
     def _break_row(self, day: PlannedDay) -> None:
         assert day.break_start is not None and day.break_end is not None
