@@ -388,3 +388,39 @@ def test_the_time_zone_defaults_to_the_systems(monkeypatch: pytest.MonkeyPatch) 
         assert load_plan_settings().zone == "UTC"
     finally:
         system_zone.cache_clear()
+
+
+@given(
+    st.lists(
+        st.tuples(
+            st.floats(-0.3, 0.3),
+            st.floats(-0.5, 0.5),
+            st.sampled_from(["", "weekdays", "tue, thu", "mon-wed", "fri"]),
+            st.integers(7, 12),
+            st.integers(2, 8),
+        ),
+        min_size=1,
+        max_size=10,
+    )
+)
+@settings(max_examples=30, deadline=None)
+def test_every_visit_keeps_its_sites_access(
+    sites: list[tuple[float, float, str, int, int]],
+) -> None:
+    iec = load_profile("iec-62305-3")
+    builders = [
+        _site(f"A{i}", DEPOT.lat + a, DEPOT.lon + b, access=f"{days} {h:02d}:00-{h + span:02d}:00")
+        for i, (a, b, days, h, span) in enumerate(sites)
+    ]
+    plan = _plan(iec, builders, Window(date(2027, 1, 4), 30), _settings())
+    assert len(plan.visits) + len(plan.unbookable) == len(sites)
+    rules = {b.site.id: parse_access(b.site.access) for b in builders}
+    for day, visit in plan.visits:
+        access = rules[visit.candidate.site.id]
+        if access.weekdays is not None:
+            assert day.day.weekday() in access.weekdays
+        if visit.fits:
+            assert access.opens is not None and access.closes is not None
+            assert visit.start.time() >= access.opens and visit.leave.time() <= access.closes
+        else:
+            assert day.outside_window and len(day.visits) == 1
