@@ -111,10 +111,9 @@ def plan_data(plan: RoundPlan) -> dict[str, Any]:
         "dropped": [_candidate_row(c) for c in plan.dropped],
         "unbookable": [{**_candidate_row(c), "why": why} for c, why in plan.unbookable],
         "waiting": [
-            {"site": c.site.name, "why": w}
+            {"site": v.candidate.site.name, "why": w}
             for _, v in plan.visits
-            for c in (v.candidate,)
-            for w in c.waiting
+            for w in v.candidate.waiting
         ],
         "skipped": [{"site": name, "reason": why} for name, why in plan.skipped],
         "notes": list(plan.notes),
