@@ -219,3 +219,17 @@ def test_plan_command_moves_a_visit(tmp_path: Path, iec: Profile) -> None:
     assert any(u.endswith("-20270113@inspectkit") and not u.startswith("break") for u in uids)
     bad = runner.invoke(app, ["plan", "--db", str(db), "--move", "Hall 2 on Friday"])
     assert bad.exit_code == 2 and "--move" in bad.output
+
+
+def test_moving_a_site_that_is_on_no_day_says_so(iec: Profile) -> None:
+    placed = _site("Hall", date(2024, 1, 10))
+    dropped = _site("Dropped", date(2024, 1, 10), lat=52.9)
+    plan = _plan(
+        iec,
+        [placed, dropped],
+        dropped=[dropped.site.id],
+        moved={dropped.site.id: date(2027, 1, 12)},
+    )
+    assert [c.site.name for c in plan.dropped] == ["Dropped"]
+    assert "Dropped is on no day of this round; nothing moved" in plan.notes
+    assert all(not d.moved for d in plan.days)

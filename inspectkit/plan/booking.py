@@ -84,7 +84,7 @@ def day_masks(
     up to the horizon, so it is put with others that must wait as well, never with
     sites that could be visited sooner.
     """
-    span = window_days + HORIZON_DAYS
+    span = HORIZON_DAYS + 1  # the days `book_dates` looks at
     days = [window_first + timedelta(days=k) for k in range(span)]
     office = sum(1 << k for k, d in enumerate(days) if calendar.closed_why(d) is None)
     inside = (1 << window_days) - 1
@@ -211,7 +211,12 @@ class RoutedSites:
         return splits
 
     def move(
-        self, booked: dict[date, DaySplit], site_id: str, target: date, touched: set[date]
+        self,
+        booked: dict[date, DaySplit],
+        site_id: str,
+        target: date,
+        touched: set[date],
+        name: str = "",
     ) -> tuple[dict[date, DaySplit], set[date]]:
         """The days after moving a site's visit to `target`, and the days changed so far.
 
@@ -222,6 +227,7 @@ class RoutedSites:
         k = next((i for i, c in enumerate(self.sites, start=1) if c.site.id == site_id), None)
         held = {d for d, s in booked.items() if any(g.node == k for g in s.legs)}
         if k is None or not held:
+            self.notes.append(f"{name or site_id} is on no day of this round; nothing moved")
             return booked, touched
         earliest = self.sites[k - 1].earliest
         why = self.calendar.site_closed_why(target, self.accesses[k - 1])

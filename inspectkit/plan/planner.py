@@ -240,8 +240,10 @@ def plan_round(
     dropped_ids, pinned_ids = set(dropped), set(pinned)
     kept: list[tuple[Candidate, Access]] = []
     out, no_position, unbookable = [], [], []
+    names: dict[str, str] = {}
     for c in candidates:
         c = replace(c, pinned=c.site.id in pinned_ids)
+        names[c.site.id] = c.site.name
         access = _access_of(c, calendar)
         if c.site.id in dropped_ids:
             out.append(c)
@@ -270,7 +272,7 @@ def plan_round(
             booked[day] = split
     touched: set[date] = set()
     for site_id, target in (moved or {}).items():
-        booked, touched = routed.move(booked, site_id, target, touched)
+        booked, touched = routed.move(booked, site_id, target, touched, names.get(site_id, ""))
     days = tuple(
         _dated(booked[d], d, routed.sites, routed.roads, settings, d in touched)
         for d in sorted(booked)
