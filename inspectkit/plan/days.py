@@ -188,6 +188,14 @@ def _cut(
     # best[j]: (days, minutes) to cover route[:j]; cut[j]: where its last day starts.
     best: list[tuple[int, float] | None] = [(0, 0.0)] + [None] * n
     cut = [0] * (n + 1)
+    # Looked up once: the loop below runs some n × (sites per day) times per entry point.
+    step, home, working, days, closes = (
+        clock.step,
+        clock.home,
+        clock.working,
+        clock.days,
+        clock.closes,
+    )
     for i in range(n):
         done = best[i]
         if done is None:
@@ -195,12 +203,10 @@ def _cut(
         t, brk, here, mask = 0.0, None, depot, ALL_DAYS
         for j in range(i, n):
             node = route[j]
-            _, _, t, brk = clock.step(t, brk, here, node)
-            here, mask = node, mask & clock.days[node]
-            end, end_brk = clock.home(t, brk, here, depot)
-            fits = (
-                t <= clock.closes[node] and mask != 0 and clock.working(end, end_brk) <= day_minutes
-            )
+            _, _, t, brk = step(t, brk, here, node)
+            here, mask = node, mask & days[node]
+            end, end_brk = home(t, brk, here, depot)
+            fits = t <= closes[node] and mask != 0 and working(end, end_brk) <= day_minutes
             if not fits and j > i:
                 break
             option = (done[0] + 1, done[1] + end)
