@@ -129,3 +129,17 @@ def test_a_closed_tour_is_entered_where_it_gives_fewest_days() -> None:
     assert len(split_days([1, 2, 3, 4], onsite.__getitem__, _roads(dist), DayRules(230))) == 3
     days = split_cycle([1, 2, 3, 4], onsite.__getitem__, _roads(dist), DayRules(230))
     assert sorted(sorted(leg.node for leg in d.legs) for d in days) == [[1, 4], [2, 3]]
+
+
+def test_a_break_before_the_drive_home_makes_the_day_longer() -> None:
+    # Depot, one site 60 minutes away; 120 minutes on site. Leaving at 180, the drive
+    # home would pass the break's latest start (200), so the break comes first.
+    dist = [[0.0, 60.0], [60.0, 0.0]]
+    rules = DayRules(480, break_minutes=30, break_by=200)
+    (day,) = split_days([1], {1: 120.0}.__getitem__, _roads(dist), rules)
+    assert day.break_at == 180
+    assert day.minutes == 180 + 30 + 60
+    (on_arrival,) = split_days([1], {1: 150.0}.__getitem__, _roads(dist), rules)
+    # Arriving at 60 the visit would run past 200: the break is taken on arrival.
+    assert on_arrival.break_at == 60 and on_arrival.legs[0].start == 90
+    assert on_arrival.minutes == 90 + 150 + 60

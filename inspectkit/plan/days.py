@@ -121,8 +121,12 @@ class DaySplit:
 
     @property
     def minutes(self) -> float:
-        """Length of the day, depot to depot, break included."""
-        return self.legs[-1].leave + self.home_drive
+        """Length of the day, depot to depot, break included (also one taken before
+        the drive home)."""
+        end = self.legs[-1].leave + self.home_drive
+        if self.break_at is not None and self.break_at >= self.legs[-1].leave:
+            end += self.break_minutes
+        return end
 
     @property
     def km(self) -> float:

@@ -165,14 +165,14 @@ class PlanSettings(BaseModel):
             return self
         import holidays
 
-        known = holidays.list_supported_countries()
         country = self.holiday_country.upper()
-        if country not in known:
+        try:
+            regions = holidays.country_holidays(country).subdivisions
+        except NotImplementedError:
             raise ValueError(
                 f"holiday_country: {self.holiday_country!r} is not a country the holidays "
                 "library knows; use an ISO 3166 code such as GB, DE or US"
-            )
-        regions = known[country]
+            ) from None
         if self.holiday_region and self.holiday_region.upper() not in regions:
             raise ValueError(
                 f"holiday_region: {self.holiday_region!r} is not a region of {country}; "
