@@ -7,7 +7,12 @@ from collections.abc import Callable
 from textual.app import App
 
 from inspectkit.plan.calendar import holiday_countries, holiday_regions
-from inspectkit.plan.settings import PlanSettings, PlanSettingsError, save_plan_values
+from inspectkit.plan.settings import (
+    PlanSettings,
+    PlanSettingsError,
+    load_plan_settings,
+    save_plan_values,
+)
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 
 #: The region choice that keeps only the country's nationwide holidays.
@@ -15,11 +20,20 @@ WHOLE_COUNTRY = "*"
 
 
 def calendar_label(settings: PlanSettings) -> str:
-    """E.g. "GB · ENG (public holidays)", or "none" when no country is set."""
+    """E.g. "GB · ENG public holidays", or what is left when no country is set."""
     if not settings.holiday_country:
         return "none: only the weekdays and closed days in plan.toml"
     region = f" · {settings.holiday_region}" if settings.holiday_region else ""
-    return f"{settings.holiday_country}{region} (public holidays, holidays library)"
+    return f"{settings.holiday_country}{region} public holidays"
+
+
+def holiday_text() -> str:
+    """The calendar in force and the time zone, from the planning settings, for a screen."""
+    try:
+        settings = load_plan_settings()
+    except PlanSettingsError as exc:
+        return str(exc)
+    return f"{calendar_label(settings)}; times in {settings.zone}"
 
 
 def choose_holiday_calendar(

@@ -11,8 +11,10 @@ from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
 from inspectkit.model import Inspector, Instrument, Record, Site
+from inspectkit.plan.settings import PlanSettingsError, load_plan_settings
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
+from inspectkit.tui.dialogs.holiday_calendar import choose_holiday_calendar, holiday_text
 
 
 def _instrument_label(instrument: Instrument, today: date) -> str:
@@ -43,6 +45,10 @@ class SettingsScreen(Screen[None]):
             "p", "pick_profile", "Site profile", id="settings.profile",
             tooltip="Choose the rule set the highlighted site is held to",
         ),
+        Binding(
+            "h", "holidays", "Holidays", id="settings.holidays", show=False,
+            tooltip="Choose the country and region whose public holidays rounds leave out",
+        ),
     ]
 
     @property
@@ -63,6 +69,10 @@ class SettingsScreen(Screen[None]):
             with Horizontal(classes="setting"):
                 yield Label("Data folder", classes="setting-label")
                 yield Static("", id="data-folder")
+            with Horizontal(classes="setting"):
+                yield Label("Holidays", classes="setting-label")
+                yield Static("", id="holidays")
+                yield Button("Change…", id="change-holidays", compact=True)
         yield Static("Profile per site (p to change)", classes="section-title")
         yield DataTable(id="profiles", cursor_type="row", zebra_stripes=True)
         yield Footer()
@@ -93,6 +103,7 @@ class SettingsScreen(Screen[None]):
              for i in store.select(Instrument, order_by="description")],
             prefs.instrument_id,
         )
+        self.query_one("#holidays", Static).update(holiday_text())
         table = self.profiles_table
         table.clear()
         for site in store.select(Site, order_by="name COLLATE NOCASE"):
@@ -121,6 +132,15 @@ class SettingsScreen(Screen[None]):
             self.action_add_inspector()
         elif event.button.id == "add-instrument":
             self.action_add_instrument()
+        elif event.button.id == "change-holidays":
+            self.action_holidays()
+
+    def action_holidays(self) -> None:
+        try:
+            current = load_plan_settings()
+        except PlanSettingsError:
+            current = None
+        choose_holiday_calendar(self.app, current, lambda _: self.reload())
 
     def _add(self, dialog: object, setting: str) -> None:
         def saved(record: Record | None) -> None:
