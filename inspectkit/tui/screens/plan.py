@@ -237,9 +237,11 @@ class PlanScreen(Screen[None]):
                 [c for c, _ in plan.unbookable],
             )
             found = next((c for g in groups for c in g if c.site.id == key), None)
-        text = "" if found is None else "; ".join(
-            [r.text for r in found.reasons] + list(found.waiting)
-        )
+        blocked = [] if plan is None else [w for c, w in plan.unbookable if c.site.id == key]
+        parts = [f"no day: {w}" for w in blocked]
+        if found is not None:
+            parts += [r.text for r in found.reasons] + list(found.waiting)
+        text = "; ".join(parts)
         self.query_one("#why", Static).update(f"why: {text}" if text else "")
 
     def _break_row(self, day: PlannedDay) -> None:
