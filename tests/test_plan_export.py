@@ -198,6 +198,8 @@ def test_ics_events_carry_their_zone_and_the_right_instants(
     rows = list(csv.DictReader(write_csv(plan, tmp_path / "r.csv").open(encoding="utf-8")))
     cal = Calendar.from_ical(to_ical(plan, STAMP))
     assert [str(tz["TZID"]) for tz in cal.walk("VTIMEZONE")] == [zone]
+    # The VTIMEZONE's own rules, as a calendar without a zone database reads them.
+    written = cal.walk("VTIMEZONE")[0].to_tz()
     events = {str(e["UID"]): e for e in cal.walk("VEVENT")}
     for (day, visit), row in zip(plan.visits, rows, strict=True):
         event = events[visit_uid(visit.candidate.site.id, day.day)]
@@ -206,6 +208,7 @@ def test_ics_events_carry_their_zone_and_the_right_instants(
         wall = datetime.combine(day.day, datetime.strptime(row["start"], "%H:%M").time())
         expected = (wall - timedelta(hours=utc_offset_hours)).replace(tzinfo=UTC)
         assert event.decoded("DTSTART").astimezone(UTC) == expected
+        assert wall.replace(tzinfo=written).utcoffset() == timedelta(hours=utc_offset_hours)
     breaks = [e for e in events.values() if str(e["SUMMARY"]) == "Break"]
     assert len(breaks) == sum(d.break_start is not None for d in plan.days)
 

@@ -301,7 +301,10 @@ def to_ical(plan: RoundPlan, stamp: datetime) -> bytes:
         event.add("summary", "Break")
         event.add("transp", "OPAQUE")
         cal.add_component(event)
-    cal.add_missing_timezones()
+    if plan.days:
+        # The zone's rules for the years the round spans, not the library's 1970-2038.
+        first, last = plan.days[0].day, plan.days[-1].day
+        cal.add_missing_timezones(date(first.year - 1, 1, 1), date(last.year + 1, 12, 31))
     return cal.to_ical()
 
 
