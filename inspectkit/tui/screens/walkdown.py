@@ -165,11 +165,11 @@ class WalkdownScreen(Screen[None]):
 
     @property
     def stop_list(self) -> StopList:
-        return self.query_one("#stops", StopList)
+        return self._stop_list
 
     @property
     def pane(self) -> StopPane:
-        return self.query_one("#detail", StopPane)
+        return self._pane
 
     @property
     def inspection(self) -> Inspection:
@@ -190,7 +190,8 @@ class WalkdownScreen(Screen[None]):
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
         with Horizontal(id="bar"):
-            yield Static(id="where")
+            self._where = Static(id="where")
+            yield self._where
             yield PickList(
                 self._instrument_options(),
                 prompt="instrument…",
@@ -204,12 +205,13 @@ class WalkdownScreen(Screen[None]):
                 id="soil",
             )
         with Horizontal(id="body"):
-            stops = StopList(*self._options(), id="stops")
-            stops.on_go = self.move_now
-            yield stops
+            self._stop_list = StopList(*self._options(), id="stops")
+            self._stop_list.on_go = self.move_now
+            yield self._stop_list
+            self._pane = StopPane(self._save_reading, self._save_finding, self._save_photo,
+                                  id="detail")  # fmt: skip
             if self.stops:
-                yield StopPane(self._save_reading, self._save_finding, self._save_photo,
-                               id="detail")  # fmt: skip
+                yield self._pane
             else:
                 yield Static("This site has no components in service to inspect.", id="detail")
         yield SteadyFooter()
@@ -322,7 +324,7 @@ class WalkdownScreen(Screen[None]):
         """The position on the walk, and how many components are done (counted after a save)."""
         if count or self._done is None:
             self._done = sum(1 for s in self.stops if self._complete(s))
-        self.query_one("#where", Static).update(
+        self._where.update(
             Text.assemble(
                 (f" {self.index + 1} of {len(self.stops)} ", "bold reverse"),
                 f"  {self._done} done",

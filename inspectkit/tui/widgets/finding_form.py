@@ -69,6 +69,7 @@ class FindingForm(Vertical):
         self.chosen: Grade | None = None
         """The grade whose button is on, saved or not."""
         self._grade_shown = self._grade_text()
+        self._fields: dict[str, SavingField] = {}
 
     def compose(self) -> ComposeResult:
         yield Label("grade")
@@ -93,9 +94,10 @@ class FindingForm(Vertical):
         self.component_id = component_id
         self.finding = finding
         self.chosen = finding.grade if finding else None
-        self.query_one(GradeButtons).show_pressed(
-            _GRADES.index(self.chosen) if self.chosen else None
-        )
+        buttons = self.query_one(GradeButtons)
+        pressed = _GRADES.index(self.chosen) if self.chosen else None
+        if buttons.pressed_index != (-1 if pressed is None else pressed):
+            buttons.show_pressed(pressed)
         self._show_grade()
         saved = {
             "text": finding.text if finding else "",
@@ -119,7 +121,9 @@ class FindingForm(Vertical):
         return text.append_text(SAVED)
 
     def _field(self, key: str) -> SavingField:
-        return self.query_one(f"#finding-{key}", SavingField)
+        if key not in self._fields:
+            self._fields[key] = self.query_one(f"#finding-{key}", SavingField)
+        return self._fields[key]
 
     def _save(self, changed: str, text: str) -> Text:
         """Save the finding with `text` in the field `changed`; the status for that field."""

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Callable
+from functools import cache
 
 from rich.text import Text
 from textual import on
@@ -86,6 +87,7 @@ def format_unit(quantity: Quantity) -> str:
     return "count" if quantity is Quantity.STRIKE_COUNT else quantity.unit
 
 
+@cache
 def method_options(quantity: Quantity) -> list[tuple[str, str]]:
     """The pick list's choices for a quantity's methods, in the order of `Method`."""
     return [(METHOD_NAMES[m], m.value) for m in Method if m in METHODS_FOR[quantity]]
@@ -197,15 +199,18 @@ class ReadingEntry(SavingField):
 
     def _measure(self, quantity: Quantity) -> None:
         """Make the entry one for another quantity: label, example and methods."""
+        before = method_options(self.quantity)
         self.quantity = quantity
         self.set_label(entry_label(quantity))
         self.input.placeholder = PLACEHOLDERS[quantity]
         select = self._method_list()
         options = method_options(quantity)
-        with select.prevent(Select.Changed):
-            select.set_options(options)
-            select.value = DEFAULT_METHOD[quantity].value
-        select.display = len(options) > 1
+        if options != before:
+            with select.prevent(Select.Changed):
+                select.set_options(options)
+                select.value = DEFAULT_METHOD[quantity].value
+        if select.display != (len(options) > 1):
+            select.display = len(options) > 1
 
     def _show_choices(self) -> None:
         select = self.method_select

@@ -105,6 +105,8 @@ class StopPane(VerticalScroll):
         self._quantities: tuple[Quantity, ...] = ()
         self._texts: dict[str, Text] = {}
         self._entries: list[ReadingEntry] = []
+        self._finding: FindingForm | None = None
+        self._photo_field: SavingField | None = None
 
     def compose(self) -> ComposeResult:
         yield Static(id="heading")
@@ -146,11 +148,15 @@ class StopPane(VerticalScroll):
 
     @property
     def finding(self) -> FindingForm:
-        return self.query_one(FindingForm)
+        if self._finding is None:
+            self._finding = self.query_one(FindingForm)
+        return self._finding
 
     @property
     def photo(self) -> SavingField:
-        return self.query_one("#photo", SavingField)
+        if self._photo_field is None:
+            self._photo_field = self.query_one("#photo", SavingField)
+        return self._photo_field
 
     def fields(self) -> list[SavingField]:
         """Every field of the component in view that saves text."""
@@ -196,4 +202,5 @@ class StopPane(VerticalScroll):
         photo = self.photo
         photo.set_label(photo_label(view.photos))
         photo.load("", typed=view.typed.get("photo"))
-        self.scroll_home(animate=False, immediate=True)
+        if self.scroll_y:
+            self.scroll_home(animate=False, immediate=True)
