@@ -96,8 +96,7 @@ class FindingForm(Vertical):
         self.chosen = finding.grade if finding else None
         buttons = self.query_one(GradeButtons)
         pressed = _GRADES.index(self.chosen) if self.chosen else None
-        if buttons.pressed_index != (-1 if pressed is None else pressed):
-            buttons.show_pressed(pressed)
+        buttons.show_pressed(pressed)
         self._show_grade()
         saved = {
             "text": finding.text if finding else "",

@@ -131,18 +131,19 @@ class GradeButtons(HeldKeys, RadioSet):
     def pick(self, index: int) -> None:
         """The inspector chose the button at `index`: show it on and save it."""
         self.show_pressed(index)
+        self._selected = index
         if self.on_pick is not None:
             self.on_pick(index)
 
     def show_pressed(self, index: int | None) -> None:
-        """Switch on one button (None: none) without a message: the caller saves it."""
+        """Switch on one button (None: none) without a message, nothing highlighted yet."""
         buttons = list(self.query(RadioButton))
         with self.prevent(RadioButton.Changed, RadioSet.Changed):
             for n, button in enumerate(buttons):
                 if button.value != (n == index):
                     button.value = n == index
         self._pressed_button = buttons[index] if index is not None else None
-        self._selected = index
+        self._selected = None
 
 
 class GradeButton(RadioButton):
