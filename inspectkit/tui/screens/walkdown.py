@@ -40,8 +40,12 @@ from inspectkit.walkdown import (
     Stop,
     WalkdownError,
     attach_photos,
+    drafts_for,
+    drafts_told,
     finish_inspection,
+    forget_drafts,
     grade_component,
+    keep_drafts,
     missing_for_completion,
     record_reading,
     saved_entries,
@@ -59,6 +63,8 @@ _UNGRADED_SHOWN = 20
 
 #: How long a move waits at most for keys sent to the field being left (seconds).
 _SETTLE_TIMEOUT = 0.5
+#: How often what is typed and not saved is kept in the database (seconds).
+_DRAFT_EVERY = 0.5
 
 
 class WalkdownScreen(Screen[None]):
@@ -152,6 +158,9 @@ class WalkdownScreen(Screen[None]):
         self.choices: dict[tuple[str, Quantity], tuple[Method, bool]] = {}
         self._by_id: dict[str, Stop] = {}
         self._done: int | None = None
+        self._place: str | None = None
+        #: What `keep_typing` last kept: the unsaved texts and the component in view.
+        self._kept: tuple[dict[tuple[str, str], str], str] = ({}, "")
 
     # ------------------------------------------------------------ accessors
 
@@ -186,6 +195,9 @@ class WalkdownScreen(Screen[None]):
         self.stops = walk_for(self.store, self.inspection_id)
         self._by_id = {s.component.id: s for s in self.stops}
         self.saved = saved_entries(self.store, self.inspection_id)
+        kept = drafts_for(self.store, self.inspection_id)
+        self.drafts = {key: text for key, text in kept.texts.items() if key[0] in self._by_id}
+        self._place = kept.place
         self.title = site.name
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
@@ -237,8 +249,41 @@ class WalkdownScreen(Screen[None]):
         self.context = site_context(self.store, self.context.site.id)
 
     def on_mount(self) -> None:
-        if self.stops:
-            self.move_now(0)
+        if not self.stops:
+            return
+        where = next((i for i, s in enumerate(self.stops) if s.component.id == self._place), 0)
+        self.move_now(where)
+        self._kept = self._unsaved()
+        if self.drafts:
+            tags = {cid: stop.component.tag for cid, stop in self._by_id.items()}
+            self.notify(
+                drafts_told(self.drafts, tags) + ". Save them with Enter, or clear the field.",
+                title="Typed before the walkdown closed",
+                severity="warning",
+                timeout=30,
+            )
+        self.set_interval(_DRAFT_EVERY, self.keep_typing)
+
+    # ---------------------------------------------------- what is not saved
+
+    def _unsaved(self) -> tuple[dict[tuple[str, str], str], str]:
+        """Everything typed and not saved (on every component), and the component in view."""
+        pane = self.pane
+        cid = pane.component_id
+        texts = {key: text for key, text in self.drafts.items() if key[0] != cid}
+        for field in pane.fields():
+            if field.dirty and field.value.strip():
+                texts[(cid, field.draft_key)] = field.value
+        return texts, cid
+
+    def keep_typing(self) -> None:
+        """Keep in the database what is typed and not saved, if it changed since last time."""
+        if not self.stops or not self.pane.component_id:
+            return
+        unsaved = self._unsaved()
+        if unsaved != self._kept:
+            keep_drafts(self.store, self.inspection_id, *unsaved)
+            self._kept = unsaved
 
     # ---------------------------------------------------------- the stop list
 
@@ -464,6 +509,7 @@ class WalkdownScreen(Screen[None]):
             except WalkdownError as exc:
                 self.notify(str(exc), severity="error")
                 return
+            forget_drafts(self.store, self.inspection_id)
             self.notify("Inspection marked complete")
             self.dismiss()
 
@@ -519,6 +565,7 @@ class WalkdownScreen(Screen[None]):
     def action_leave(self) -> None:
         if self.stops:
             self.keep_unsaved()
+            self.keep_typing()
         self.dismiss()
 
 
