@@ -76,7 +76,7 @@ def test_demo_rechecks_come_on_or_after_their_remedy_dates(demo) -> None:  # typ
 def test_the_demo_site_without_position_is_left_for_placing_by_hand(demo) -> None:  # type: ignore[no-untyped-def]
     plan, _ = demo
     (unplaced,) = plan.no_position
-    assert "return" in unplaced.kind_label
+    assert "return visit" in unplaced.kind_label
     assert any(r.text.startswith("return: not inspected") for r in unplaced.reasons)
 
 

@@ -123,7 +123,7 @@ def test_components_not_inspected_get_a_short_return_visit(iec: Profile) -> None
     ((_, visit),) = plan.visits
     c = visit.candidate
     assert c.site.name == "Missed roof"
-    assert c.kind_label == "return"
+    assert c.kind_label == "return visit"
     assert c.onsite_minutes == plan_settings.setup_minutes + plan_settings.return_minutes
     assert "return: not inspected on 2026-10-01: east roof: no access, ladder locked" in (
         c.reason_text

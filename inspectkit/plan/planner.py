@@ -23,7 +23,7 @@ from inspectkit.plan.round import (
     defects_to_recheck,
     held_back,
     reasons_for,
-    return_reasons,
+    return_visits,
     visit_kinds,
 )
 from inspectkit.plan.settings import PlanSettings
@@ -162,7 +162,7 @@ def make_candidates(
         defects, waiting = held_back(
             schedule, defects_to_recheck(records, window.first, window.last), window.last
         )
-        returns = return_reasons(records, window.first)
+        returns = return_visits(records, window.first)
         reasons = reasons_for(schedule, defects, window.first, window.last, returns)
         if not reasons:
             continue

@@ -96,12 +96,12 @@ class Candidate:
 
     @property
     def kind_label(self) -> str:
-        """E.g. "complete", "visual + post-strike", "re-check"."""
+        """E.g. "complete", "visual + post-strike", "re-check + return visit"."""
         words = [k.value.replace("_", "-") for k in self.kinds]
         if self.rechecks:
             words.append("re-check")
-        if not self.kinds and any(r.what == RETURN for r in self.reasons):
-            words.append("return")
+        if any(r.what == RETURN for r in self.reasons):
+            words.append("return visit")
         return " + ".join(words)
 
     @property
@@ -169,7 +169,7 @@ def _action(f: Finding) -> str:
     return f.remedial_action.strip() or f.text.strip()
 
 
-def return_reasons(records: SiteRecords, first_day: date) -> list[Reason]:
+def return_visits(records: SiteRecords, first_day: date) -> list[Reason]:
     """A return visit owed to what the latest counted visit could not inspect.
 
     Only the latest visit counts: a later one looked at the site again. The return

@@ -49,7 +49,7 @@ def _free_widths(width: int) -> tuple[int, int]:
 
 def _short(kind_label: str) -> str:
     """A visit's kinds in few columns: "complete+recheck"."""
-    return kind_label.replace(" + ", "+").replace("re-check", "recheck")
+    return kind_label.replace(" + ", "+").replace("re-check", "recheck").replace(" visit", "")
 
 
 def _hhmm(minutes: float) -> str:
