@@ -24,6 +24,9 @@ class Exit(IntEnum):
     BAD_INPUT = 2
 
 
+#: At most this many lines of problems are printed, then how many more there are.
+MAX_LINES = 20
+
 DbOption = Annotated[
     Path | None,
     typer.Option(

@@ -190,14 +190,29 @@ def _v2(db: sqlite_utils.Database) -> None:
 
 
 def _v3(db: sqlite_utils.Database) -> None:
-    """The report's general and structure details on sites; who came along and what changed.
+    """The report's general and structure details on sites; who came along and what changed."""
+    _add_columns(db, _V3_COLUMNS)
 
-    Every existing row gains the new columns with their defaults, so each gets an
-    audit row saying so; otherwise the audit check would take the new columns for
-    an edit made behind the tool's back.
+
+def _trust(db: sqlite_utils.Database) -> None:
+    """A seal on each signed inspection; a keyed check on each audit row written from now on.
+
+    The seal is what lets another database take an inspection as signed (see
+    `store.seal`); the key check is what a rewrite of the audit log without the
+    user's secret cannot forge (see `store.audit`). Rows written before have none.
+    """
+    _add_columns(db, {"inspection": ("seal TEXT NOT NULL DEFAULT ''",)})
+    db.execute("ALTER TABLE audit ADD COLUMN mac TEXT")
+
+
+def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
+    """New columns with their defaults, and an audit row for every row they change.
+
+    Otherwise the audit check would take the new columns for an edit made behind
+    the tool's back.
     """
     at = utcnow().isoformat()
-    for table, columns in _V3_COLUMNS.items():
+    for table, columns in columns_by_table.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -221,5 +236,5 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
 
 
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3, _trust)
 SCHEMA_VERSION = len(MIGRATIONS)

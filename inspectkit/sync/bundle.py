@@ -37,7 +37,15 @@ from typing import Any, NamedTuple
 
 from pydantic import ValidationError
 
-from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
+from inspectkit.model import (
+    MODEL_FOR_TABLE,
+    NAME_MAX,
+    RECORD_TYPES,
+    Record,
+    explain,
+    new_id,
+    utcnow,
+)
 from inspectkit.store import Store
 from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
@@ -345,6 +353,11 @@ def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
         raise BundleError(f"member {odd!r} is {where}; the bundle is damaged or altered")
     if not isinstance(manifest.get("counts", {}), dict):
         raise BundleError(f"{MANIFEST}: 'counts' must map each table to a number")
+    name = manifest.get("site_name")
+    cap = NAME_MAX
+    if not isinstance(name, str) or len(name) > cap:
+        size = f"{len(name):,} characters" if isinstance(name, str) else "not text"
+        raise BundleError(f"{MANIFEST}: 'site_name' is {size}; a site's name has at most {cap}")
     return manifest
 
 

@@ -34,6 +34,7 @@ class Limits:
     Attributes:
         member_bytes: Most a photo may hold uncompressed (phone photos are 2–15 MB).
         records_bytes: Most `records.json` may hold uncompressed.
+        manifest_bytes: Most `manifest.json` may hold: counts and one hash per photo.
         total_bytes: Most the whole bundle may unpack to.
         ratio: Highest uncompressed/compressed ratio for a member over `ratio_floor`
             bytes; record JSON packs about 5–15 to 1, photos about 1 to 1.
@@ -42,6 +43,7 @@ class Limits:
 
     member_bytes: int = 64 << 20
     records_bytes: int = 128 << 20
+    manifest_bytes: int = 16 << 20
     total_bytes: int = 16 << 30
     ratio: float = 200.0
     ratio_floor: int = 1 << 20
@@ -116,7 +118,15 @@ def _check_name(name: str) -> None:
 
 def limit_for(name: str, limits: Limits) -> int:
     """The most bytes a member of that name may unpack to."""
+    if name == MANIFEST:
+        return limits.manifest_bytes
     return limits.member_bytes if name.startswith(PHOTO_PREFIX) else limits.records_bytes
+
+
+def site_label(manifest: dict[str, object]) -> str:
+    """The site's name as the manifest gives it (checked to be a name's length when read)."""
+    name = manifest.get("site_name")
+    return name if isinstance(name, str) else "?"
 
 
 def read_capped(handle: IO[bytes], name: str, cap: int) -> Iterator[bytes]:
