@@ -12,6 +12,7 @@ from pathlib import Path
 
 from inspectkit.store.database import Store
 from inspectkit.store.photos import file_sha256, photo_path
+from inspectkit.store.seal import SealError, check_signed, stored_parts
 
 
 @dataclass(frozen=True)
@@ -45,6 +46,7 @@ def check_health(store: Store, *, hash_photos: bool = True) -> list[HealthProble
         # A damaged file makes the later checks fail half-way or say nonsense.
         return problems
     problems += audit_problems(store)
+    problems += seal_problems(store)
     if store.path is not None:
         problems += photo_problems(store, hash_photos=hash_photos)
     return problems
@@ -88,6 +90,34 @@ def audit_problems(store: Store) -> list[HealthProblem]:
         )
         for p in store.verify_audit()
     ]
+
+
+def seal_problems(store: Store) -> list[HealthProblem]:
+    """Signed inspections whose records are no longer those their seal signed.
+
+    The seal is signed with the inspector's key, which the database does not
+    hold, so an edit made with the audit log rewritten to match still shows here.
+    Inspections signed before seals existed carry none and are not checked.
+    """
+    problems = []
+    for (inspection_id,) in store.db.execute(
+        "SELECT id FROM inspection WHERE state = 'signed' AND seal != '' ORDER BY date, id"
+    ):
+        parts = stored_parts(store, inspection_id)
+        try:
+            check_signed(parts[0][1], parts[1:], require_trust=False)
+        except SealError as exc:
+            problems.append(
+                HealthProblem(
+                    "signature",
+                    f"inspection {inspection_id}",
+                    f"signed inspection {inspection_id}: {exc}",
+                    "the signed records were changed outside inspectkit: put the signed "
+                    "content back from a backup or from the other laptop's bundle; the signed "
+                    "report the client holds is the reference (`inspectkit verify FILE --db`)",
+                )
+            )
+    return problems
 
 
 def photo_problems(store: Store, *, hash_photos: bool = True) -> list[HealthProblem]:
