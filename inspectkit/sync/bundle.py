@@ -31,13 +31,14 @@ from collections.abc import Iterator
 from concurrent.futures import ThreadPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, field
-from datetime import date
+from datetime import date, datetime
 from pathlib import Path
 from typing import Any, NamedTuple
 
 from pydantic import ValidationError
 
 from inspectkit.model import (
+    CLOCK_SKEW,
     MODEL_FOR_TABLE,
     NAME_MAX,
     RECORD_TYPES,
@@ -49,7 +50,7 @@ from inspectkit.model import (
 from inspectkit.store import Store
 from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
-from inspectkit.store.rows import STORED, to_row
+from inspectkit.store.rows import to_row
 from inspectkit.sync.guard import (
     DEFAULT_LIMITS,
     MANIFEST,
@@ -70,6 +71,8 @@ VERSION = 1
 #: Setting naming this database in the bundles it writes.
 DATABASE_ID_SETTING = "sync.database_id"
 _SHA = re.compile(r"^[0-9a-f]{64}$")
+#: Days that are meant to lie ahead: when a defect must be put right, when calibration is due.
+_FUTURE_DAYS = frozenset({"due_by", "calibration_due"})
 
 #: Fields that name another record, by table: field → table it points into.
 REFERENCES: dict[str, dict[str, str]] = {
@@ -87,7 +90,6 @@ REFERENCES: dict[str, dict[str, str]] = {
     },
     "photo": {"inspection_id": "inspection", "component_id": "component"},
 }
-
 
 
 @dataclass(frozen=True)
@@ -281,11 +283,13 @@ def reading_bundle(
             _same_schema(manifest, ours.schema_version())
         records = _read(archive, RECORDS, limits)
         same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
+    content = _json(records, RECORDS)
     pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
     hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
     held = {sha for sha in hashes if ours is not None and photo_path(ours, sha).is_file()}
+    _bounded_photos(content, pictures, held, limits)
     with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
-        found = _records(records, manifest, ours)
+        found = _records(content, manifest, ours)
         yield Bundle(path, manifest, *found, photo_hashes=hashes, checks=checks)
 
 
@@ -369,9 +373,38 @@ class _Checked(NamedTuple):
     same: dict[str, set[str]]
 
 
-def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Checked:
+def _bounded_photos(
+    content: Any, pictures: list[zipfile.ZipInfo], held: set[str], limits: Limits
+) -> None:
+    """Refuse photo files no record of the bundle names, and more than one import may write.
+
+    Checked before a byte is staged: a bundle otherwise makes the disk hold what
+    it likes (files packed just under the ratio limit, all of them unwanted).
+    """
+    tables = content.get("tables") if isinstance(content, dict) else None
+    photo_rows = tables.get("photo", []) if isinstance(tables, dict) else []
+    if not isinstance(photo_rows, list):
+        photo_rows = []
+    named = {row.get("sha256") for row in photo_rows if isinstance(row, dict)}
+    for info in pictures:
+        if info.filename.removeprefix(PHOTO_PREFIX) not in named:
+            raise BundleError(
+                f"member {info.filename!r} is a photo file no record of the bundle names; "
+                "a bundle carries only the photos of its records, so it is refused"
+            )
+    writing = sum(
+        info.file_size for info in pictures if info.filename.removeprefix(PHOTO_PREFIX) not in held
+    )
+    if writing > limits.write_bytes:
+        raise BundleError(
+            f"the bundle would write {writing:,} bytes of photos, more than the "
+            f"{limits.write_bytes:,} bytes one import may write; export fewer records "
+            "(--since) and import them in turns"
+        )
+
+
+def _records(content: Any, manifest: dict[str, Any], ours: Store | None) -> _Checked:
     """Every row checked through its model and found in the stored form, or equal to ours."""
-    content = _json(data, RECORDS)
     tables = content.get("tables") if isinstance(content, dict) else None
     raw_history = content.get("history", {}) if isinstance(content, dict) else None
     raw_deleted = content.get("deleted", {}) if isinstance(content, dict) else None
@@ -383,6 +416,7 @@ def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Chec
     rows: dict[str, list[dict[str, Any]]] = {}
     checked: dict[str, dict[str, Record]] = {}
     same: dict[str, set[str]] = {}
+    now = utcnow()
     for model in RECORD_TYPES:
         table_rows = tables.get(model.table, [])
         if not isinstance(table_rows, list):
@@ -391,7 +425,7 @@ def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Chec
         seen: dict[str, Record] = {}
         equal: set[str] = set()
         for number, row in enumerate(table_rows, start=1):
-            record = None if _same_row(held, row) else _check_row(model, number, row)
+            record = None if _same_row(held, row) else _check_row(model, number, row, now)
             row_id = row["id"] if record is None else record.id
             if row_id in seen or row_id in equal:
                 raise BundleError(f"{model.table} {row_id} appears twice in the bundle")
@@ -458,18 +492,19 @@ def _same_row(held: dict[str, dict[str, Any]], row: Any) -> bool:
     )
 
 
-def _check_row(model: type[Record], number: int, row: Any) -> Record:
-    """A bundle row must validate and be exactly the row the store would hold.
+def _check_row(model: type[Record], number: int, row: Any, now: datetime) -> Record:
+    """A bundle row must validate, clock rules included, and be exactly the row the store holds.
 
-    Records are checked with every rule but the clock: they were entered on another
-    laptop, whose clock may run ahead of this one.
+    The other laptop's clock may run ahead of this one by `CLOCK_SKEW`, not more:
+    a time beyond that would win every later comparison, and show as a visit
+    or a reading that has not happened yet.
     """
     where = f"{model.table} record {number}"
     if not isinstance(row, dict):
         raise BundleError(f"{RECORDS}: {where} is not an object")
     where += f" (id {row.get('id')!r})"
     try:
-        record = model.model_validate(row, context=STORED)
+        record = model.model_validate(row, context={"now": now})
     except ValidationError as exc:
         raise BundleError(f"{RECORDS}: {where} is refused:\n{explain(exc)}") from None
     if to_row(record) != row:
@@ -477,4 +512,26 @@ def _check_row(model: type[Record], number: int, row: Any) -> Record:
             f"{RECORDS}: {where} is not in the stored form (extra, missing or reworded "
             "fields); export it again with inspectkit"
         )
+    _not_ahead(record, where, now)
     return record
+
+
+def _not_ahead(record: Record, where: str, now: datetime) -> None:
+    """Refuse a time or day later than this computer's clock allows, naming the field."""
+    latest = now + CLOCK_SKEW
+    for name, value in record:
+        if name in _FUTURE_DAYS:
+            continue
+        if isinstance(value, datetime):
+            ahead = value > latest
+        elif isinstance(value, date):
+            ahead = value > latest.date()
+        else:
+            continue
+        if ahead:
+            raise BundleError(
+                f"{RECORDS}: {where}: {name} {value.isoformat()} is in the future (this "
+                f"computer's clock says {now.isoformat(timespec='minutes')}, and allows "
+                f"{CLOCK_SKEW.total_seconds() / 3600:g} h ahead); set the other laptop's clock "
+                "right, correct the record there and export again"
+            )

@@ -35,6 +35,7 @@ class Limits:
         member_bytes: Most a photo may hold uncompressed (phone photos are 2–15 MB).
         records_bytes: Most `records.json` may hold uncompressed.
         manifest_bytes: Most `manifest.json` may hold: counts and one hash per photo.
+        write_bytes: Most photo bytes one import may write to the disk.
         total_bytes: Most the whole bundle may unpack to.
         ratio: Highest uncompressed/compressed ratio for a member over `ratio_floor`
             bytes; record JSON packs about 5–15 to 1, photos about 1 to 1.
@@ -44,6 +45,7 @@ class Limits:
     member_bytes: int = 64 << 20
     records_bytes: int = 128 << 20
     manifest_bytes: int = 16 << 20
+    write_bytes: int = 4 << 30
     total_bytes: int = 16 << 30
     ratio: float = 200.0
     ratio_floor: int = 1 << 20
