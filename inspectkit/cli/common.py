@@ -11,6 +11,7 @@ from typing import Annotated, Any, NoReturn
 import typer
 
 from inspectkit.paths import default_db_path
+from inspectkit.printable import printable
 from inspectkit.store import Store, StoreError
 
 
@@ -60,8 +61,8 @@ def open_store(ctx: typer.Context, db: Path | None, *, create: bool = False) -> 
 
 
 def fail(message: str, code: Exit = Exit.BAD_INPUT) -> NoReturn:
-    """Print the message on stderr and stop."""
-    typer.echo(f"inspectkit: {message}", err=True)
+    """Print the message on stderr (control characters escaped) and stop."""
+    typer.echo(f"inspectkit: {printable(message)}", err=True)
     raise typer.Exit(int(code))
 
 

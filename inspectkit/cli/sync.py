@@ -12,6 +12,7 @@ from typing import Annotated, TextIO
 import typer
 
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.sync.guard import BundleError
@@ -108,7 +109,8 @@ def export(
             if unlocated:
                 typer.echo(
                     f"{len(unlocated)} site(s) without coordinates, written with a null geometry: "
-                    f"{', '.join(unlocated)}; set their latitude and longitude to map them",
+                    f"{printable(', '.join(unlocated))}; set their latitude and longitude to "
+                    "map them",
                     err=True,
                 )
             return

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from datetime import date
 
+from rich.markup import escape
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -23,6 +24,7 @@ from inspectkit.model import (
     Quantity,
     SiteRecords,
 )
+from inspectkit.printable import printable
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
@@ -150,8 +152,9 @@ class SiteScreen(Screen[None]):
         ]
         self.query_one("#state", StateBadge).show(self.state.word)
         self.query_one("#site-title", Static).update(
-            f"[b]{site.name}[/b] · level {site.protection_level.value} · {site.client or '—'}, "
-            f"{site.town or '—'} · {site.profile}{' · ' + ', '.join(flags) if flags else ''}"
+            f"[b]{_shown(site.name)}[/b] · level {site.protection_level.value} · "
+            f"{_shown(site.client) or '—'}, {_shown(site.town) or '—'} · {_shown(site.profile)}"
+            f"{' · ' + ', '.join(flags) if flags else ''}"
         )
         check = self.state.check
         self.query_one("#site-summary", Static).update(
@@ -414,3 +417,8 @@ def _not_judged(state: SiteState) -> Text:
     """Why the site has no verdict, and for a profile that cannot be read, the way out."""
     hint = "; pick another profile in Settings (F4)" if state.word == NO_PROFILE else ""
     return Text(f"{state.word}: {state.reason}{hint}")  # Text: a reason is never markup
+
+
+def _shown(text: str) -> str:
+    """A typed name inside markup: shown as typed, its control characters and brackets escaped."""
+    return escape(printable(text))

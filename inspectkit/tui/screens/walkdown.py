@@ -22,6 +22,7 @@ from inspectkit.model import (
     Severity,
     SoilCondition,
 )
+from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
@@ -189,7 +190,7 @@ class WalkdownScreen(Screen[None]):
         site = self.context.site
         self.stops = walk_for(self.store, self.inspection_id)
         self.saved = saved_entries(self.store, self.inspection_id)
-        self.title = site.name
+        self.title = printable(site.name)
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
         with Horizontal(id="bar"):
