@@ -195,7 +195,7 @@ def _der(pem: str) -> bytes:
     return x509.load_pem_x509_certificate(pem.encode()).public_bytes(Encoding.DER)
 
 
-def _recompute_chain(db: Path, table: str, row_id: str, column: str, value: object) -> None:
+def _recompute_chain(db: Path, table: str, row_id: str, column: str, value: object) -> int:
     """What a person with sqlite3 and the source can do: edit a row and rebuild the audit chain."""
     conn = sqlite3.connect(db)
     conn.execute(f"UPDATE [{table}] SET [{column}] = ? WHERE id = ?", [value, row_id])
@@ -223,6 +223,7 @@ def _recompute_chain(db: Path, table: str, row_id: str, column: str, value: obje
         )
     conn.commit()
     conn.close()
+    return seq
 
 
 def test_a_signed_reading_changed_with_the_chain_recomputed_is_found(office, tmp_path):
@@ -231,15 +232,59 @@ def test_a_signed_reading_changed_with_the_chain_recomputed_is_found(office, tmp
     with Store.open(db) as store:
         export_report(store, made.current.id, report, passphrase=PASSPHRASE, now=NOW)
         reading = store.select(Reading, "inspection_id = ?", [made.current.id])[0]
-    _recompute_chain(db, "reading", reading.id, "value", 0.5)
+    seq = _recompute_chain(db, "reading", reading.id, "value", 0.5)
     with Store.open(db) as store:
         assert store.verify_audit() == []  # the plain chain is fooled
         problems = check_health(store, hash_photos=False)
-    assert [p.check for p in problems] == ["signature"]
-    assert f"reading {reading.id} differs from what was signed" in problems[0].message
+    keyed = [p for p in problems if p.check == "audit key"]
+    # The first row the key cannot vouch for is the one rewritten, and the doctor says so.
+    assert keyed[0].subject == f"audit {seq}" and "fails its keyed check" in keyed[0].message
+    assert "can no longer vouch for the records it names" in keyed[0].message
+    assert any("head of the log when inspection" in p.message for p in keyed)
+    (sealed,) = [p for p in problems if p.check == "signature"]
+    assert f"reading {reading.id} differs from what was signed" in sealed.message
     doctor = CliRunner().invoke(app, ["doctor", "--db", str(db)])
     assert doctor.exit_code == 1 and reading.id in doctor.output
     verify = CliRunner().invoke(app, ["verify", str(report), "--db", str(db)])
     assert verify.exit_code == 1, verify.output
     assert f"reading {reading.id} differs from what was signed" in verify.output
     assert "no longer holds the row that was its head at signing" in verify.output
+
+
+def test_a_signing_undone_by_hand_with_the_audit_tail_deleted_is_found(office, tmp_path):
+    """Back to draft, and every audit row from the signing on deleted: a valid shorter chain."""
+    db, made = office
+    with Store.open(db) as store:
+        export_report(store, made.current.id, tmp_path / "r.pdf", passphrase=PASSPHRASE, now=NOW)
+    conn = sqlite3.connect(db)
+    (first,) = conn.execute(
+        "SELECT MIN(seq) FROM audit WHERE table_name = 'inspection' AND row_id = ? "
+        "AND after LIKE '%\"state\":\"signed\"%'",
+        [made.current.id],
+    ).fetchone()
+    (draft,) = conn.execute(
+        "SELECT after FROM audit WHERE row_id = ? AND seq < ? ORDER BY seq DESC LIMIT 1",
+        [made.current.id, first],
+    ).fetchone()
+    row = json.loads(draft)
+    conn.execute(
+        f"UPDATE inspection SET {', '.join(f'[{k}] = ?' for k in row)} WHERE id = ?",
+        [*row.values(), made.current.id],
+    )
+    conn.execute("DELETE FROM audit WHERE seq >= ?", [first])
+    conn.commit()
+    conn.close()
+    with Store.open(db) as store:
+        assert store.get(Inspection, made.current.id).state.value == "draft"
+        assert store.verify_audit() == []  # the shorter chain is sound in itself
+        problems = check_health(store, hash_photos=False)
+    assert [p.check for p in problems] == ["audit key"]
+    assert f"when inspection {made.current.id} was signed, is missing" in problems[0].message
+
+
+def test_the_audit_key_is_private_and_outside_the_database(office):
+    from inspectkit.paths import user_config_dir
+
+    key = user_config_dir() / "audit.key"
+    assert stat.S_IMODE(key.stat().st_mode) == 0o600
+    assert stat.S_IMODE(key.parent.stat().st_mode) == 0o700

@@ -23,6 +23,7 @@ from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
 from inspectkit.report.sign import SignedReport, SignError, async_sign_pdf, sign_pdf
 from inspectkit.store import Store
+from inspectkit.store.audit_key import anchor
 from inspectkit.store.rows import to_row
 from inspectkit.store.seal import covered_now, make_seal, payload_text
 
@@ -154,6 +155,7 @@ def _finish(
     )
     output.write_bytes(data)
     store.save(sealed)
+    anchor(store, f"inspection {sealed.id} was signed")
     return data
 
 

@@ -22,7 +22,7 @@ from inspectkit.model import (
     Record,
     utcnow,
 )
-from inspectkit.store import audit
+from inspectkit.store import audit, audit_key
 from inspectkit.store.rows import from_row, to_row
 from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION
 
@@ -67,6 +67,8 @@ class Store:
         self.db = db
         self.path = path
         self.user = user
+        #: The audit table takes keyed checks; looked up on the first write.
+        self._keyed: bool | None = None
 
     # ----------------------------------------------------------------- opening
 
@@ -186,6 +188,7 @@ class Store:
             raise StoreError(f"{source}: not an inspectkit backup ({exc})") from exc
         finally:
             conn.close()
+        self._keyed = None
         self._migrate()
 
     # ------------------------------------------------------------ transactions
@@ -364,9 +367,9 @@ class Store:
     def _log(self, changes: list[Any], at: str) -> None:
         if changes:
             entries = audit.make_entries(audit.last_hash(self.db), changes, at=at, who=self.user)
-            names = list(entries[0])
-            sql = f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})"
-            self.db.conn.executemany(sql, ([e[n] for n in names] for e in entries))
+            if self._keyed is None:
+                self._keyed = audit_key.keyed(self.db)
+            audit.insert_entries(self.db, entries, with_key=self._keyed)
 
     def log_conflicts(
         self, conflicts: Sequence[tuple[str, str, dict[str, Any], dict[str, Any]]]

@@ -10,6 +10,7 @@ import sqlite3
 from dataclasses import dataclass
 from pathlib import Path
 
+from inspectkit.store.audit_key import key_problems
 from inspectkit.store.database import Store
 from inspectkit.store.photos import file_sha256, photo_path
 from inspectkit.store.seal import SealError, check_signed, stored_parts
@@ -78,18 +79,24 @@ def integrity_problems(store: Store) -> list[HealthProblem]:
     ]
 
 
+#: What to do when the log shows a change made outside inspectkit.
+_OUTSIDE = (
+    "someone changed the database outside inspectkit: compare the record with a "
+    "backup, put the old content back from it, and make the change through inspectkit"
+)
+
+
 def audit_problems(store: Store) -> list[HealthProblem]:
-    """Records or audit rows changed behind inspectkit's back."""
-    return [
-        HealthProblem(
-            "audit",
-            f"{p.table} {p.row_id}",
-            p.message,
-            "someone changed the database outside inspectkit: compare the record with a "
-            "backup, put the old content back from it, and make the change through inspectkit",
-        )
+    """Records or audit rows changed behind inspectkit's back, the chain rewritten included."""
+    problems = [
+        HealthProblem("audit", f"{p.table} {p.row_id}", p.message, _OUTSIDE)
         for p in store.verify_audit()
     ]
+    problems += [
+        HealthProblem("audit key", f"audit {p.seq}" if p.seq else "audit", p.message, _OUTSIDE)
+        for p in key_problems(store.db)
+    ]
+    return problems
 
 
 def seal_problems(store: Store) -> list[HealthProblem]:

@@ -219,12 +219,7 @@ def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[st
         after = _rows(db, table)
         changes = [(table, row_id, "migrate", row, after[row_id]) for row_id, row in before.items()]
         entries = audit.make_entries(audit.last_hash(db), changes, at=at, who="migration")
-        if entries:
-            names = list(entries[0])
-            db.conn.executemany(
-                f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})",
-                ([e[n] for n in names] for e in entries),
-            )
+        audit.insert_entries(db, entries)
 
 
 def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:

@@ -44,10 +44,10 @@ from inspectkit.model import (
     RECORD_TYPES,
     Record,
     explain,
-    new_id,
     utcnow,
 )
 from inspectkit.store import Store
+from inspectkit.store.audit_key import database_id
 from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import to_row
@@ -68,8 +68,6 @@ from inspectkit.sync.versions import known_versions, version_hash
 
 FORMAT = "inspectkit-bundle"
 VERSION = 1
-#: Setting naming this database in the bundles it writes.
-DATABASE_ID_SETTING = "sync.database_id"
 _SHA = re.compile(r"^[0-9a-f]{64}$")
 #: Days that are meant to lie ahead: when a defect must be put right, when calibration is due.
 _FUTURE_DAYS = frozenset({"due_by", "calibration_due"})
@@ -140,15 +138,6 @@ class Bundle:
             with _refusing_damage(self.path):
                 self._photos = self.checks.result()
         return self._photos
-
-
-def database_id(store: Store) -> str:
-    """This database's id in the bundles it writes; made on first export."""
-    value = store.get_setting(DATABASE_ID_SETTING)
-    if value is None:
-        value = new_id()
-        store.set_setting(DATABASE_ID_SETTING, value)
-    return value
 
 
 def export_bundle(
