@@ -288,3 +288,20 @@ def test_the_audit_key_is_private_and_outside_the_database(office):
     key = user_config_dir() / "audit.key"
     assert stat.S_IMODE(key.stat().st_mode) == 0o600
     assert stat.S_IMODE(key.parent.stat().st_mode) == 0o700
+
+
+def test_a_component_with_signed_readings_keeps_its_tag_and_kind(office, tmp_path):
+    from inspectkit.model import Component, ComponentKind
+    from inspectkit.store import FrozenRecordError
+
+    db, made = office
+    with Store.open(db) as store:
+        export_report(store, made.current.id, tmp_path / "r.pdf", passphrase=PASSPHRASE, now=NOW)
+        reading = store.select(Reading, "inspection_id = ?", [made.current.id])[0]
+        joint = store.get(Component, reading.component_id)
+        before = store.rows_by_id("component", [joint.id])
+        for change in ({"tag": "TJ-99"}, {"kind": ComponentKind.AIR_TERMINAL}):
+            with pytest.raises(FrozenRecordError, match="tag and kind stay as signed"):
+                store.save(joint.model_copy(update=change))
+        assert store.rows_by_id("component", [joint.id]) == before
+        store.save(joint.model_copy(update={"location": "north wall, behind the downpipe"}))

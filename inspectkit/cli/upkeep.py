@@ -8,7 +8,7 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.cli.common import MAX_LINES, DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.store import StoreError
 from inspectkit.store.database import photos_dir_of
 from inspectkit.store.photos import copy_photos_for_backup, restore_photos
@@ -122,8 +122,10 @@ def doctor(
     elif not problems:
         typer.echo("No problems found: database intact, audit log matches, photos all present.")
     else:
-        for p in problems:
+        for p in problems[:MAX_LINES]:
             typer.echo(f"{p.check}: {p.subject}: {p.message}\n  fix: {p.fix}")
+        if len(problems) > MAX_LINES:
+            typer.echo(f"… and {len(problems) - MAX_LINES} more (all of them: --json)")
         typer.echo(f"{len(problems)} problem(s) found.")
     if problems:
         raise typer.Exit(int(Exit.ACT))

@@ -14,6 +14,7 @@ import sqlite_utils
 
 from inspectkit import __version__
 from inspectkit.model import (
+    Component,
     Finding,
     Inspection,
     InspectionState,
@@ -34,6 +35,8 @@ BUSY_TIMEOUT_MS = 10_000
 _CHUNK = 500
 #: Fields every save stamps; a save that changes only these changes nothing.
 _STAMP_FIELDS = frozenset({"updated_at", "updated_by"})
+#: A component's fields that signed records show, fixed once one of them is signed.
+_SIGNED_COMPONENT_FIELDS = frozenset({"tag", "kind"})
 #: Fields a later inspection may still set on a finding from a signed inspection.
 _RESOLUTION_FIELDS = _STAMP_FIELDS | {"resolved_by"}
 
@@ -415,6 +418,9 @@ class Store:
         for record in records:
             stored = stored_of[record.id]
             changed = _changed_fields(record, stored) if stored and not deleting else None
+            if isinstance(record, Component):
+                self._refuse_signed_rename(record, changed)
+                continue
             if isinstance(record, Inspection):
                 if stored is None or stored["state"] != InspectionState.SIGNED.value:
                     continue
@@ -439,6 +445,30 @@ class Store:
             raise FrozenRecordError(
                 f"{record.table} {record.id} belongs to a signed inspection and cannot be "
                 "changed; create an amendment inspection that references it"
+            )
+
+    def _refuse_signed_rename(self, component: Component, changed: set[str] | None) -> None:
+        """A component keeps the tag and kind its signed records were made under.
+
+        A signed report names each reading by its component's tag; renaming the
+        component would make the signed records say something else than was signed.
+        """
+        if not changed or not changed & _SIGNED_COMPONENT_FIELDS:
+            return
+        row = self.db.execute(
+            " UNION ALL ".join(
+                f"SELECT i.id, i.date FROM [{table}] t JOIN inspection i ON i.id = t.inspection_id "
+                "WHERE t.component_id = :c AND i.state = 'signed'"
+                for table in ("reading", "finding", "photo")
+            )
+            + " LIMIT 1",
+            {"c": component.id},
+        ).fetchone()
+        if row is not None:
+            raise FrozenRecordError(
+                f"component {component.tag} ({component.id}) has records in the inspection of "
+                f"{row[1]} that is signed ({row[0]}): its tag and kind stay as signed; retire "
+                "it and add a new component instead"
             )
 
     def _signed_inspections(self, ids: set[str | None]) -> set[str]:
