@@ -13,9 +13,12 @@ Layout (format `inspectkit-bundle`, version 1):
 - `photos/<sha256>`: photo files, named by their content hash.
 
 Reading a bundle checks all of it (members, hashes, every record through its
-model, bar those equal to the importing database's own rows); the photos are
-checked on worker threads while the records are checked and written, and the
-import commits nothing before both are done.
+model and against this computer's clock, bar those equal to the importing
+database's own rows); a photo file no record names, or more photo bytes than one
+import may write, refuses it before anything is staged; the photos are checked
+on worker threads while the records are checked and written, and the import
+commits nothing before both are done. A signed inspection's row carries its seal
+(`store.seal`), checked by the merge (`signers`).
 """
 
 from __future__ import annotations
