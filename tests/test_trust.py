@@ -305,3 +305,23 @@ def test_a_component_with_signed_readings_keeps_its_tag_and_kind(office, tmp_pat
                 store.save(joint.model_copy(update=change))
         assert store.rows_by_id("component", [joint.id]) == before
         store.save(joint.model_copy(update={"location": "north wall, behind the downpipe"}))
+
+
+def test_an_inspector_arriving_with_a_certificate_arrives_untrusted_and_import_says_so(
+    tmp_path, monkeypatch
+):
+    """A bundle may carry inspectors and their certificates; trusting them stays the user's."""
+    home = trust_path().parent.parent
+    _elsewhere(monkeypatch, tmp_path, "colleague")
+    theirs = Store.open(tmp_path / "theirs.sqlite")
+    made = build_site(theirs, tmp_path / "in", photos=0)
+    pem = give_key(theirs, made.inspector).certificate_pem
+    bundle = export_bundle(theirs, made.site.id, tmp_path / "b.zip").path
+    theirs.close()
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(home))
+    db = tmp_path / "ours.sqlite"
+    result = CliRunner().invoke(app, ["import", str(bundle), "--db", str(db), "--json"])
+    assert result.exit_code == 0, result.output
+    (notice,) = json.loads(result.output)["notices"]
+    assert made.inspector.name in notice and "not trusted here" in notice
+    assert "keys trust" in notice and not is_trusted(pem)

@@ -175,6 +175,7 @@ def import_(
                 "photos_added": report.photos_added,
                 "kept_signed": report.kept_signed,
                 "conflicts": [c.__dict__ for c in report.conflicts],
+                "notices": report.notices,
             }
         )
     else:
