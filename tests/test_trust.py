@@ -325,3 +325,25 @@ def test_an_inspector_arriving_with_a_certificate_arrives_untrusted_and_import_s
     (notice,) = json.loads(result.output)["notices"]
     assert made.inspector.name in notice and "not trusted here" in notice
     assert "keys trust" in notice and not is_trusted(pem)
+
+
+def test_a_restored_backup_is_not_taken_for_a_log_cut_short(office, tmp_path):
+    db, made = office
+    backup = tmp_path / "monday.bak"
+    with Store.open(db) as store:
+        store.backup(backup)
+        export_report(store, made.current.id, tmp_path / "r.pdf", passphrase=PASSPHRASE, now=NOW)
+        store.restore(backup)
+        assert store.get(Inspection, made.current.id).state.value == "draft"
+        assert check_health(store, hash_photos=False) == []
+
+
+def test_model_caps_name_the_limit():
+    from pydantic import ValidationError
+
+    from inspectkit.model import NOTES_MAX, Site
+
+    with pytest.raises(ValidationError, match=f"at most {NOTES_MAX} characters"):
+        Site(name="Harbour Mill", protection_level="III", notes="x" * (NOTES_MAX + 1))
+    with pytest.raises(ValidationError, match="at most 200 characters"):
+        Site(name="M" * 50_000, protection_level="III")

@@ -174,9 +174,29 @@ def anchor(store: Store, why: str) -> None:
     """
     ident = database_id(store)
     head = store.db.execute("SELECT seq, hash FROM audit ORDER BY seq DESC LIMIT 1").fetchone()
+    if head is None:
+        return
     anchors = _anchors()
     anchors.setdefault(ident, []).append({"seq": head[0], "hash": head[1], "why": why})
     write_private(user_config_dir() / ANCHOR_FILE, json.dumps(anchors, indent=1).encode())
+
+
+def forget_after(store: Store, why: str) -> None:
+    """After a backup is put back: drop the heads past its end, note its head instead.
+
+    A restore rolls the log back on purpose; the heads noted after the backup
+    was made would otherwise read as a log cut short.
+    """
+    ident = _stored_id(store.db)
+    if ident is None:
+        return
+    anchors = _anchors()
+    head = store.db.execute("SELECT MAX(seq) FROM audit").fetchone()[0] or 0
+    kept = [item for item in anchors.get(ident, []) if int(item.get("seq") or 0) <= head]
+    if kept != anchors.get(ident, []):
+        anchors[ident] = kept
+        write_private(user_config_dir() / ANCHOR_FILE, json.dumps(anchors, indent=1).encode())
+    anchor(store, why)
 
 
 def anchor_problems(db: sqlite_utils.Database) -> list[KeyProblem]:

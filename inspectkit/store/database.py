@@ -193,6 +193,7 @@ class Store:
             conn.close()
         self._keyed = None
         self._migrate()
+        audit_key.forget_after(self, f"{source.name} was restored")
 
     # ------------------------------------------------------------ transactions
 
