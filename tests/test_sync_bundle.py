@@ -253,11 +253,13 @@ def test_a_photo_refused_with_its_signed_inspection_leaves_no_file_behind(office
     sign(store, store.get(Inspection, records.inspection.id))
     late = attach_photo(other, jpeg(tmp_path / "late.jpg", 7), inspection_id=records.inspection.id)
     files_before = photo_files(store)
+    tree_before = set(store.photos_dir.rglob("*"))
 
     report = import_bundle(store, export_bundle(other, records.site.id, tmp_path / "x.zip").path)
 
     assert any(late.id in message for message in report.kept_signed)
     assert photo_files(store) == files_before and report.photos_added == 0
+    assert set(store.photos_dir.rglob("*")) == tree_before, "an empty folder was left behind"
     assert check_health(store) == []
 
 
