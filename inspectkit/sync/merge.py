@@ -195,7 +195,7 @@ def import_bundle(
                 plan = _plan(store, bundle, prefer)
                 report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
                 report.kept_deleted, report.kept_edited = plan.kept_deleted, plan.kept_edited
-                report.notices = plan.notices + untrusted_signers(store, bundle)
+                report.notices = plan.notices
                 _apply(store, plan, report)
                 # Checked meanwhile on other threads: a photo refused undoes the rows.
                 photos = bundle.checked_photos()
@@ -222,10 +222,15 @@ def _stage(staging: str, dry_run: bool) -> Path | None:
 
 
 def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
-    """Decide every record, after checking that all it references is here or in the bundle."""
+    """Decide every record, after checking what it references and what it says of signing.
+
+    Runs inside the import's write transaction: what it reads of ours stays so
+    until the plan is written.
+    """
     _check_references(store, bundle)
     _check_photo_files(store, bundle)
-    plan = _Plan(records=bundle.records, notices=check_signed_inspections(store, bundle))
+    notices = check_signed_inspections(store, bundle) + untrusted_signers(store, bundle)
+    plan = _Plan(records=bundle.records, notices=notices)
     signed_there = {r["id"] for r in bundle.rows["inspection"] if r["state"] == "signed"}
     for table, table_rows in bundle.rows.items():
         same = bundle.same.get(table, set())
