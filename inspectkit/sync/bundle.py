@@ -41,7 +41,6 @@ from typing import Any, NamedTuple
 from pydantic import ValidationError
 
 from inspectkit.model import (
-    CLOCK_SKEW,
     MODEL_FOR_TABLE,
     NAME_MAX,
     RECORD_TYPES,
@@ -61,8 +60,10 @@ from inspectkit.sync.guard import (
     RECORDS,
     BundleError,
     Limits,
+    bounded_photos,
     check_members,
     limit_for,
+    not_ahead,
     read_capped,
     same_hash,
 )
@@ -72,8 +73,6 @@ from inspectkit.sync.versions import known_versions, version_hash
 FORMAT = "inspectkit-bundle"
 VERSION = 1
 _SHA = re.compile(r"^[0-9a-f]{64}$")
-#: Days that are meant to lie ahead: when a defect must be put right, when calibration is due.
-_FUTURE_DAYS = frozenset({"due_by", "calibration_due"})
 
 #: Fields that name another record, by table: field → table it points into.
 REFERENCES: dict[str, dict[str, str]] = {
@@ -279,7 +278,7 @@ def reading_bundle(
     pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
     hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
     held = {sha for sha in hashes if ours is not None and photo_path(ours, sha).is_file()}
-    _bounded_photos(content, pictures, held, limits)
+    bounded_photos(content, pictures, held, limits)
     with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
         found = _records(content, manifest, ours)
         yield Bundle(path, manifest, *found, photo_hashes=hashes, checks=checks)
@@ -363,36 +362,6 @@ class _Checked(NamedTuple):
     history: dict[str, dict[str, set[str]]]
     deleted: dict[str, dict[str, set[str]]]
     same: dict[str, set[str]]
-
-
-def _bounded_photos(
-    content: Any, pictures: list[zipfile.ZipInfo], held: set[str], limits: Limits
-) -> None:
-    """Refuse photo files no record of the bundle names, and more than one import may write.
-
-    Checked before a byte is staged: a bundle otherwise makes the disk hold what
-    it likes (files packed just under the ratio limit, all of them unwanted).
-    """
-    tables = content.get("tables") if isinstance(content, dict) else None
-    photo_rows = tables.get("photo", []) if isinstance(tables, dict) else []
-    if not isinstance(photo_rows, list):
-        photo_rows = []
-    named = {row.get("sha256") for row in photo_rows if isinstance(row, dict)}
-    for info in pictures:
-        if info.filename.removeprefix(PHOTO_PREFIX) not in named:
-            raise BundleError(
-                f"member {info.filename!r} is a photo file no record of the bundle names; "
-                "a bundle carries only the photos of its records, so it is refused"
-            )
-    writing = sum(
-        info.file_size for info in pictures if info.filename.removeprefix(PHOTO_PREFIX) not in held
-    )
-    if writing > limits.write_bytes:
-        raise BundleError(
-            f"the bundle would write {writing:,} bytes of photos, more than the "
-            f"{limits.write_bytes:,} bytes one import may write; export fewer records "
-            "(--since) and import them in turns"
-        )
 
 
 def _records(content: Any, manifest: dict[str, Any], ours: Store | None) -> _Checked:
@@ -504,26 +473,5 @@ def _check_row(model: type[Record], number: int, row: Any, now: datetime) -> Rec
             f"{RECORDS}: {where} is not in the stored form (extra, missing or reworded "
             "fields); export it again with inspectkit"
         )
-    _not_ahead(record, where, now)
+    not_ahead(record, f"{RECORDS}: {where}", now)
     return record
-
-
-def _not_ahead(record: Record, where: str, now: datetime) -> None:
-    """Refuse a time or day later than this computer's clock allows, naming the field."""
-    latest = now + CLOCK_SKEW
-    for name, value in record:
-        if name in _FUTURE_DAYS:
-            continue
-        if isinstance(value, datetime):
-            ahead = value > latest
-        elif isinstance(value, date):
-            ahead = value > latest.date()
-        else:
-            continue
-        if ahead:
-            raise BundleError(
-                f"{RECORDS}: {where}: {name} {value.isoformat()} is in the future (this "
-                f"computer's clock says {now.isoformat(timespec='minutes')}, and allows "
-                f"{CLOCK_SKEW.total_seconds() / 3600:g} h ahead); set the other laptop's clock "
-                "right, correct the record there and export again"
-            )

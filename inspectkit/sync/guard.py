@@ -13,7 +13,10 @@ import stat
 import zipfile
 from collections.abc import Iterator
 from dataclasses import dataclass
-from typing import IO
+from datetime import date, datetime
+from typing import IO, Any
+
+from inspectkit.model import CLOCK_SKEW, Record
 
 MANIFEST = "manifest.json"
 RECORDS = "records.json"
@@ -21,6 +24,8 @@ PHOTO_PREFIX = "photos/"
 _PHOTO_NAME = re.compile(r"^photos/[0-9a-f]{64}$")
 #: Bytes read or written at a time when a member is copied.
 BLOCK = 1 << 20
+#: Days that are meant to lie ahead: when a defect must be put right, when calibration is due.
+_FUTURE_DAYS = frozenset({"due_by", "calibration_due"})
 
 
 class BundleError(Exception):
@@ -150,3 +155,54 @@ def same_hash(name: str, sha: str, members: dict[str, str]) -> None:
             f"member {name!r} does not match the hash in the manifest; "
             "the bundle was damaged or altered, export it again"
         )
+
+
+def bounded_photos(
+    content: Any, pictures: list[zipfile.ZipInfo], held: set[str], limits: Limits
+) -> None:
+    """Refuse photo files no record of the bundle names, and more than one import may write.
+
+    Checked before a byte is staged: a bundle otherwise makes the disk hold what
+    it likes (files packed just under the ratio limit, all of them unwanted).
+    """
+    tables = content.get("tables") if isinstance(content, dict) else None
+    photo_rows = tables.get("photo", []) if isinstance(tables, dict) else []
+    if not isinstance(photo_rows, list):
+        photo_rows = []
+    named = {row.get("sha256") for row in photo_rows if isinstance(row, dict)}
+    for info in pictures:
+        if info.filename.removeprefix(PHOTO_PREFIX) not in named:
+            raise BundleError(
+                f"member {info.filename!r} is a photo file no record of the bundle names; "
+                "a bundle carries only the photos of its records, so it is refused"
+            )
+    writing = sum(
+        info.file_size for info in pictures if info.filename.removeprefix(PHOTO_PREFIX) not in held
+    )
+    if writing > limits.write_bytes:
+        raise BundleError(
+            f"the bundle would write {writing:,} bytes of photos, more than the "
+            f"{limits.write_bytes:,} bytes one import may write; export fewer records "
+            "(--since) and import them in turns"
+        )
+
+
+def not_ahead(record: Record, where: str, now: datetime) -> None:
+    """Refuse a time or day later than this computer's clock allows, naming the field."""
+    latest = now + CLOCK_SKEW
+    for name, value in record:
+        if name in _FUTURE_DAYS:
+            continue
+        if isinstance(value, datetime):
+            ahead = value > latest
+        elif isinstance(value, date):
+            ahead = value > latest.date()
+        else:
+            continue
+        if ahead:
+            raise BundleError(
+                f"{where}: {name} {value.isoformat()} is in the future (this "
+                f"computer's clock says {now.isoformat(timespec='minutes')}, and allows "
+                f"{CLOCK_SKEW.total_seconds() / 3600:g} h ahead); set the other laptop's clock "
+                "right, correct the record there and export again"
+            )
