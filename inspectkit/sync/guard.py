@@ -50,7 +50,7 @@ class Limits:
     member_bytes: int = 64 << 20
     records_bytes: int = 128 << 20
     manifest_bytes: int = 16 << 20
-    write_bytes: int = 4 << 30
+    write_bytes: int = 8 << 30
     total_bytes: int = 16 << 30
     ratio: float = 200.0
     ratio_floor: int = 1 << 20
