@@ -54,3 +54,24 @@ def test_a_refusal_message_naming_hostile_text_is_escaped_too(tmp_path):
     result = CliRunner().invoke(app, ["import", str(bad), "--db", str(tmp_path / "db.sqlite")])
     assert result.exit_code == 2
     assert "\x1b" not in result.output and "\\u001b" in result.output
+
+
+async def test_the_sites_list_shows_a_hostile_name_as_text(tmp_path: Path) -> None:
+    from textual.widgets import DataTable
+    from tui_factories import ANCHOR, build_tui_db, column, settled
+
+    from inspectkit.cautions import ACKNOWLEDGED_SETTING
+    from inspectkit.tui.app import make_app
+
+    path = build_tui_db(tmp_path / "tui.sqlite")
+    with Store.open(path) as store:
+        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
+        site = store.select(Site, order_by="name")[0]
+        store.save(site.model_copy(update={"name": HOSTILE, "client": "[bold red]Acme[/]"}))
+    app = make_app(path, today=ANCHOR)
+    async with app.run_test(size=(120, 30)) as pilot:
+        await settled(pilot)
+        table = app.screen.query_one("#sites", DataTable)
+        names = column(table, "name")
+        assert printable(HOSTILE) in names and HOSTILE not in names
+        assert "[bold red]Acme[/]" in column(table, "client")  # markup shown, not obeyed
