@@ -347,3 +347,21 @@ def test_model_caps_name_the_limit():
         Site(name="Harbour Mill", protection_level="III", notes="x" * (NOTES_MAX + 1))
     with pytest.raises(ValidationError, match="at most 200 characters"):
         Site(name="M" * 50_000, protection_level="III")
+
+
+def test_a_key_imported_with_keys_import_is_trusted_here(office, tmp_path, monkeypatch):
+    """A key the user holds and chose to use is theirs to trust (one from a CA, say)."""
+    db, made = office
+    home = trust_path().parent.parent
+    _elsewhere(monkeypatch, tmp_path, "ca")
+    issued = new_key(tmp_path / "issued.p12", PASSPHRASE, name=made.inspector.name, now=NOW)
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(home))
+    assert not is_trusted(issued.certificate_pem)
+    args = ["keys", "import", str(issued.path), "--inspector", made.inspector.id, "--db", str(db)]
+    result = CliRunner().invoke(app, args, env={"INSPECTKIT_PASSPHRASE": PASSPHRASE.decode()})
+    assert result.exit_code == 0, result.output
+    assert is_trusted(issued.certificate_pem)
+    bad = tmp_path / "not.pem"
+    bad.write_text("hello", encoding="ascii")
+    refused = CliRunner().invoke(app, ["keys", "trust", str(bad), "--yes"])
+    assert refused.exit_code == 2 and "not a PEM certificate" in refused.output
