@@ -158,6 +158,11 @@ def test_a_genuine_signed_inspection_travels_and_its_signer_arrives_untrusted(
         report = import_bundle(laptop, bundle)
         assert laptop.get(Inspection, made.current.id).state.value == "signed"
         assert not any("not trusted" in line for line in report.lines())
+    # There the report matches too: its records are those signed, its audit log its own.
+    there = CliRunner().invoke(
+        app, ["verify", str(tmp_path / "r.pdf"), "--db", str(tmp_path / "laptop.sqlite")]
+    )
+    assert there.exit_code == 0 and "Matches the database" in there.output, there.output
     # A computer that does not: the bundle is refused, and says why.
     _elsewhere(monkeypatch, tmp_path, "stranger")
     with Store.open(tmp_path / "stranger.sqlite") as stranger:

@@ -25,6 +25,7 @@ from typing import Any
 from inspectkit.model import Inspection
 from inspectkit.report.sign import COVERED_KEY, quiet_pyhanko
 from inspectkit.store import Store
+from inspectkit.store.audit_key import stored_id
 from inspectkit.store.seal import covered_digests, differences, stored_parts
 from inspectkit.store.trust import trusted
 
@@ -198,7 +199,8 @@ class DatabaseCheck:
         inspection: The signed inspection recorded with this file's hash, if any.
         differences: Each record that is not what the signature covers, in words.
         audit_head_held: The audit chain still holds the row that was its head at
-            signing; None when the report carries no head (signed by an older version).
+            signing; None when the report carries no head (signed by an older version)
+            or was signed in another database.
         covered: The report carries what its signature covers.
     """
 
@@ -225,7 +227,8 @@ def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
     now = covered_digests(stored_parts(store, record.id))
     head = covered.get("audit_head")
     held = None
-    if isinstance(head, str):
+    # Only the database that signed holds that head; a copy received by bundle has its own log.
+    if isinstance(head, str) and covered.get("database_id") == stored_id(store.db):
         held = store.db.execute("SELECT 1 FROM audit WHERE hash = ?", [head]).fetchone() is not None
     return DatabaseCheck(record, differences(covered.get("records") or {}, now), held, True)
 

@@ -142,14 +142,15 @@ def _after(seq: int, rest: int, what: str) -> str:
     )
 
 
-def _stored_id(db: sqlite_utils.Database) -> str | None:
+def stored_id(db: sqlite_utils.Database) -> str | None:
+    """This database's id if it has one yet (see `database_id`)."""
     row = db.execute("SELECT value FROM setting WHERE key = ?", [DATABASE_ID_SETTING]).fetchone()
     return row[0] if row else None
 
 
 def database_id(store: Store) -> str:
     """This database's id, in the bundles it writes and the anchors kept for it; made once."""
-    value = _stored_id(store.db)
+    value = stored_id(store.db)
     if value is None:
         value = new_id()
         store.set_setting(DATABASE_ID_SETTING, value)
@@ -187,7 +188,7 @@ def forget_after(store: Store, why: str) -> None:
     A restore rolls the log back on purpose; the heads noted after the backup
     was made would otherwise read as a log cut short.
     """
-    ident = _stored_id(store.db)
+    ident = stored_id(store.db)
     if ident is None:
         return
     anchors = _anchors()
@@ -201,7 +202,7 @@ def forget_after(store: Store, why: str) -> None:
 
 def anchor_problems(db: sqlite_utils.Database) -> list[KeyProblem]:
     """Heads noted at signing that the log no longer holds as they were."""
-    ident = _stored_id(db)
+    ident = stored_id(db)
     problems = []
     for item in _anchors().get(ident or "", []) if ident else []:
         seq, expected = item.get("seq"), item.get("hash")

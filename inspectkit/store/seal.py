@@ -29,6 +29,7 @@ from cryptography.hazmat.primitives import hashes
 from cryptography.hazmat.primitives.asymmetric import ec, padding, rsa
 
 from inspectkit.store.audit import last_hash
+from inspectkit.store.audit_key import database_id
 from inspectkit.store.database import Store
 from inspectkit.store.rows import canonical
 from inspectkit.store.trust import TrustError, fingerprint, is_trusted
@@ -93,10 +94,13 @@ def stored_parts(store: Store, inspection_id: str) -> list[tuple[str, dict[str, 
 
 
 def covered_now(store: Store, inspection_id: str) -> dict[str, Any]:
-    """What a signature made now covers: the records' digests and the audit chain's head."""
+    """What a signature made now covers: the records' digests, and the audit chain's head
+    in the database that signs (named, since the inspection may travel to others)."""
+    ident = database_id(store)
     return {
         "inspection_id": inspection_id,
         "records": covered_digests(stored_parts(store, inspection_id)),
+        "database_id": ident,
         "audit_head": last_hash(store.db),
     }
 
