@@ -10,6 +10,8 @@ import zipfile
 from pathlib import Path
 
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from sync_factories import build_site, file_hash, photo_files
 
 from inspectkit.model import new_id
@@ -327,3 +329,38 @@ def test_a_good_bundle_from_the_same_members_is_accepted(setup, tmp_path):
     with Store.open(db) as store:
         report = import_bundle(store, _write(tmp_path / "b.zip", members))
     assert not report.changed
+
+
+_JSON = st.recursive(
+    st.none() | st.booleans() | st.integers() | st.floats(allow_nan=False) | st.text(max_size=8),
+    lambda inner: (
+        st.lists(inner, max_size=3) | st.dictionaries(st.text(max_size=4), inner, max_size=3)
+    ),
+    max_leaves=6,
+)
+
+
+@settings(
+    max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(data=st.data())
+def test_fuzz_a_bundle_with_any_field_changed_is_taken_or_refused_cleanly(setup, tmp_path, data):
+    """Any one value of any row replaced by any JSON value: a refusal, or a clean import."""
+    db, members = setup
+    content = _records(members)
+    tables = [t for t, rows in content["tables"].items() if rows]
+    table = data.draw(st.sampled_from(tables))
+    row = data.draw(st.sampled_from(content["tables"][table]))
+    field = data.draw(st.sampled_from(sorted(row)))
+    row[field] = data.draw(_JSON)
+    bundle = _write(tmp_path / "fuzz.zip", _with_records(members, content))
+    before = file_hash(db)
+    with Store.open(db) as store:
+        try:
+            import_bundle(store, bundle)
+        except BundleError:
+            refused = True
+        else:
+            refused = False
+    if refused:
+        assert file_hash(db) == before
