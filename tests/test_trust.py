@@ -18,7 +18,7 @@ from test_report_sign import give_key
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
-from inspectkit.model import Inspection, Inspector, Reading
+from inspectkit.model import Component, Inspection, Inspector, Reading
 from inspectkit.report.keys import new_key
 from inspectkit.report.publish import export_report
 from inspectkit.store import Store
@@ -252,7 +252,9 @@ def test_a_signed_reading_changed_with_the_chain_recomputed_is_found(office, tmp
     assert doctor.exit_code == 1 and reading.id in doctor.output
     verify = CliRunner().invoke(app, ["verify", str(report), "--db", str(db)])
     assert verify.exit_code == 1, verify.output
-    assert f"reading {reading.id} differs from what was signed" in verify.output
+    with Store.open(db) as store:
+        tag = store.get(Component, reading.component_id).tag
+    assert f"reading {reading.id} ({tag} {reading.quantity.value}) differs from" in verify.output
     assert "no longer holds the row that was its head at signing" in verify.output
 
 
@@ -296,7 +298,7 @@ def test_the_audit_key_is_private_and_outside_the_database(office):
 
 
 def test_a_component_with_signed_readings_keeps_its_tag_and_kind(office, tmp_path):
-    from inspectkit.model import Component, ComponentKind
+    from inspectkit.model import ComponentKind
     from inspectkit.store import FrozenRecordError
 
     db, made = office

@@ -26,7 +26,7 @@ from inspectkit.model import Inspection
 from inspectkit.report.sign import COVERED_KEY, quiet_pyhanko
 from inspectkit.store import Store
 from inspectkit.store.audit_key import stored_id
-from inspectkit.store.seal import covered_digests, differences, stored_parts
+from inspectkit.store.seal import covered_digests, differences, part_labels, stored_parts
 from inspectkit.store.trust import trusted
 
 #: The problem reported for a PDF that was never signed.
@@ -224,13 +224,15 @@ def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
         return DatabaseCheck(record, [], None, covered is not None)
     if covered.get("inspection_id") != record.id:
         return DatabaseCheck(record, ["the report covers another inspection"], None, True)
-    now = covered_digests(stored_parts(store, record.id))
+    parts = stored_parts(store, record.id)
+    now = covered_digests(parts)
     head = covered.get("audit_head")
     held = None
     # Only the database that signed holds that head; a copy received by bundle has its own log.
     if isinstance(head, str) and covered.get("database_id") == stored_id(store.db):
         held = store.db.execute("SELECT 1 FROM audit WHERE hash = ?", [head]).fetchone() is not None
-    return DatabaseCheck(record, differences(covered.get("records") or {}, now), held, True)
+    wrong = differences(covered.get("records") or {}, now, part_labels(store, parts))
+    return DatabaseCheck(record, wrong, held, True)
 
 
 def inspection_for_file(store: Store, sha256: str) -> Inspection | None:

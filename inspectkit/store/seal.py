@@ -68,17 +68,38 @@ def covered_digests(rows: Iterable[tuple[str, Mapping[str, Any]]]) -> dict[str, 
     return {record_key(t, row["id"]): record_digest(t, row) for t, row in rows}
 
 
-def differences(signed: Mapping[str, str], now: Mapping[str, str]) -> list[str]:
-    """Each record that differs from what was signed, in words, first by key."""
+def differences(
+    signed: Mapping[str, str], now: Mapping[str, str], labels: Mapping[str, str] | None = None
+) -> list[str]:
+    """Each record that differs from what was signed, in words, in the order of their keys.
+
+    Args:
+        signed: Digests as signed, by `record_key`.
+        now: Digests of the records as they are.
+        labels: How a person recognises a record (its component's tag), by key.
+    """
     found = []
     for key in sorted(set(signed) | set(now)):
+        named = f"{key} ({labels[key]})" if labels and key in labels else key
         if key not in now:
-            found.append(f"{key} was signed but is no longer there")
+            found.append(f"{named} was signed but is no longer there")
         elif key not in signed:
-            found.append(f"{key} was added after signing")
+            found.append(f"{named} was added after signing")
         elif signed[key] != now[key]:
-            found.append(f"{key} differs from what was signed")
+            found.append(f"{named} differs from what was signed")
     return found
+
+
+def part_labels(store: Store, parts: Iterable[tuple[str, Mapping[str, Any]]]) -> dict[str, str]:
+    """A reading's, finding's or photo's component tag and what it is, by `record_key`."""
+    tags = dict(store.db.execute("SELECT id, tag FROM component"))
+    labels = {}
+    for table, row in parts:
+        what = row.get("quantity") or row.get("grade") or row.get("original_name") or ""
+        tag = tags.get(row.get("component_id"), "")
+        if table != "inspection" and (tag or what):
+            labels[record_key(table, row["id"])] = " ".join(str(x) for x in (tag, what) if x)
+    return labels
 
 
 def stored_parts(store: Store, inspection_id: str) -> list[tuple[str, dict[str, Any]]]:
