@@ -57,7 +57,7 @@ def test_a_refusal_message_naming_hostile_text_is_escaped_too(tmp_path):
 
 
 async def test_the_sites_list_shows_a_hostile_name_as_text(tmp_path: Path) -> None:
-    from textual.widgets import DataTable
+    from textual.widgets import DataTable, Static
     from tui_factories import ANCHOR, build_tui_db, column, settled
 
     from inspectkit.cautions import ACKNOWLEDGED_SETTING
@@ -75,3 +75,8 @@ async def test_the_sites_list_shows_a_hostile_name_as_text(tmp_path: Path) -> No
         names = column(table, "name")
         assert printable(HOSTILE) in names and HOSTILE not in names
         assert "[bold red]Acme[/]" in column(table, "client")  # markup shown, not obeyed
+        table.move_cursor(row=names.index(printable(HOSTILE)))
+        await pilot.press("enter")
+        await settled(pilot)
+        title = str(app.screen.query_one("#site-title", Static).render())
+        assert title.startswith(printable(HOSTILE)) and "[bold red]Acme[/]" in title

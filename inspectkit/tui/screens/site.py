@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from datetime import date
 
-from rich.markup import escape
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -152,9 +151,13 @@ class SiteScreen(Screen[None]):
         ]
         self.query_one("#state", StateBadge).show(self.state.word)
         self.query_one("#site-title", Static).update(
-            f"[b]{_shown(site.name)}[/b] · level {site.protection_level.value} · "
-            f"{_shown(site.client) or '—'}, {_shown(site.town) or '—'} · {_shown(site.profile)}"
-            f"{' · ' + ', '.join(flags) if flags else ''}"
+            # Text, not markup: names are shown as typed, their control characters escaped.
+            Text.assemble(
+                (printable(site.name), "bold"),
+                f" · level {site.protection_level.value} · {printable(site.client) or '—'}, "
+                f"{printable(site.town) or '—'} · {printable(site.profile)}"
+                f"{' · ' + ', '.join(flags) if flags else ''}",
+            )
         )
         check = self.state.check
         self.query_one("#site-summary", Static).update(
@@ -417,8 +420,3 @@ def _not_judged(state: SiteState) -> Text:
     """Why the site has no verdict, and for a profile that cannot be read, the way out."""
     hint = "; pick another profile in Settings (F4)" if state.word == NO_PROFILE else ""
     return Text(f"{state.word}: {state.reason}{hint}")  # Text: a reason is never markup
-
-
-def _shown(text: str) -> str:
-    """A typed name inside markup: shown as typed, its control characters and brackets escaped."""
-    return escape(printable(text))
