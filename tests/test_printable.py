@@ -80,3 +80,17 @@ async def test_the_sites_list_shows_a_hostile_name_as_text(tmp_path: Path) -> No
         await settled(pilot)
         title = str(app.screen.query_one("#site-title", Static).render())
         assert title.startswith(printable(HOSTILE)) and "[bold red]Acme[/]" in title
+
+
+def test_a_long_import_report_prints_a_few_lines_and_a_count(monkeypatch, hostile_bundle, tmp_path):
+    from inspectkit.cli.common import MAX_LINES
+    from inspectkit.sync import merge
+
+    many = [f"inspector {n} came with a certificate not trusted here" for n in range(500)]
+    real = merge.untrusted_signers
+    monkeypatch.setattr(merge, "untrusted_signers", lambda store, b: real(store, b) + many)
+    args = ["import", str(hostile_bundle), "--db", str(tmp_path / "o.db")]
+    result = CliRunner().invoke(app, args)
+    assert result.exit_code == 0, result.output
+    assert len(result.output.splitlines()) == MAX_LINES + 1
+    assert "more lines (all of them: --json)" in result.output
