@@ -36,6 +36,7 @@ def _refused_cleanly(result, *, wanted: str = "") -> None:  # noqa: ANN001 - a c
     assert result.exit_code == 2, result.output
     assert result.exception is None or isinstance(result.exception, SystemExit), result.exception
     assert "Traceback" not in result.output
+    assert result.output.startswith("inspectkit: ") or "\ninspectkit: " in result.output
     assert wanted in result.output
 
 
