@@ -372,3 +372,24 @@ def test_a_key_imported_with_keys_import_is_trusted_here(office, tmp_path, monke
     bad.write_text("hello", encoding="ascii")
     refused = CliRunner().invoke(app, ["keys", "trust", str(bad), "--yes"])
     assert refused.exit_code == 2 and "not a PEM certificate" in refused.output
+
+
+@pytest.mark.parametrize(
+    "seal",
+    ["[" * 100_000, '{"payload": "{}", "signature": "AA==", "certificate": "x"}', "7", "\udcff"],
+)
+def test_a_seal_that_is_not_one_is_refused_with_a_message(office, tmp_path, seal):
+    db, made = office
+    with Store.open(db) as store:
+        export_report(store, made.current.id, tmp_path / "r.pdf", passphrase=PASSPHRASE, now=NOW)
+        bundle = export_bundle(store, made.site.id, tmp_path / "b.zip").path
+
+    def replace_seal(content: dict) -> None:
+        for row in content["tables"]["inspection"]:
+            if row["state"] == "signed":
+                row["seal"] = seal
+
+    hostile = _rewrite_records(bundle, replace_seal)
+    with Store.open(tmp_path / "laptop.sqlite") as laptop:
+        with pytest.raises(BundleError, match="arrives signed, but its seal|seal: Input should"):
+            import_bundle(laptop, hostile)

@@ -26,7 +26,13 @@ from inspectkit.model import Inspection
 from inspectkit.report.sign import COVERED_KEY, quiet_pyhanko
 from inspectkit.store import Store
 from inspectkit.store.audit_key import stored_id
-from inspectkit.store.seal import covered_digests, differences, part_labels, stored_parts
+from inspectkit.store.seal import (
+    covered_digests,
+    differences,
+    digest_map,
+    part_labels,
+    stored_parts,
+)
 from inspectkit.store.trust import trusted
 
 #: The problem reported for a PDF that was never signed.
@@ -186,7 +192,7 @@ def covered_in(data: bytes) -> dict[str, Any] | None:
     try:
         text = PdfFileReader(BytesIO(data), strict=False).root.get(COVERED_KEY)
         covered = json.loads(str(text)) if text is not None else None
-    except (PdfError, ValueError, KeyError, TypeError):
+    except (PdfError, ValueError, KeyError, TypeError, RecursionError):
         return None
     return covered if isinstance(covered, dict) else None
 
@@ -220,6 +226,8 @@ def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
     """Compare the records a report's signature covers with what the database holds now."""
     record = inspection_for_file(store, sha256)
     covered = covered_in(data)
+    if covered is not None and digest_map(covered.get("records")) is None:
+        covered = None  # not what inspectkit embeds: nothing to compare
     if record is None or covered is None:
         return DatabaseCheck(record, [], None, covered is not None)
     if covered.get("inspection_id") != record.id:
@@ -231,7 +239,7 @@ def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
     # Only the database that signed holds that head; a copy received by bundle has its own log.
     if isinstance(head, str) and covered.get("database_id") == stored_id(store.db):
         held = store.db.execute("SELECT 1 FROM audit WHERE hash = ?", [head]).fetchone() is not None
-    wrong = differences(covered.get("records") or {}, now, part_labels(store, parts))
+    wrong = differences(covered["records"], now, part_labels(store, parts))
     return DatabaseCheck(record, wrong, held, True)
 
 

@@ -126,6 +126,15 @@ def covered_now(store: Store, inspection_id: str) -> dict[str, Any]:
     }
 
 
+def digest_map(value: Any) -> dict[str, str] | None:
+    """`value` if it is a map of record keys to digests (as a seal or a report holds), else None."""
+    if isinstance(value, dict) and all(
+        isinstance(k, str) and isinstance(v, str) for k, v in value.items()
+    ):
+        return value
+    return None
+
+
 def payload_text(fields: Mapping[str, Any]) -> str:
     """The seal's signed text: canonical JSON, so both sides hash the same bytes."""
     return canonical({"format": FORMAT, "version": VERSION, **fields}) or ""
@@ -169,10 +178,12 @@ def open_seal(text: str) -> Seal:
         fields = json.loads(payload)
         cert = x509.load_pem_x509_certificate(pem.encode("ascii"))
         fp = fingerprint(pem)
-    except (ValueError, KeyError, TypeError, TrustError, UnicodeEncodeError) as exc:
+    except (ValueError, KeyError, TypeError, TrustError, UnicodeError, RecursionError) as exc:
         raise SealError(f"its seal cannot be read ({exc.__class__.__name__})") from None
     if not isinstance(fields, dict) or fields.get("format") != FORMAT:
         raise SealError("its seal is not an inspectkit seal")
+    if digest_map(fields.get("records")) is None:
+        raise SealError("its seal does not list its records' digests")
     if fields.get("version") != VERSION:
         raise SealError(f"its seal is of an unknown version {fields.get('version')!r}")
     try:
@@ -220,7 +231,7 @@ def check_signed(
         if fields.get(name) != expected:
             raise SealError(f"its {name} is not the one its seal signed")
     now = covered_digests([("inspection", row), *parts])
-    wrong = differences(fields.get("records") or {}, now)
+    wrong = differences(fields["records"], now)
     if wrong:
         more = f" (and {len(wrong) - 1} more)" if len(wrong) > 1 else ""
         raise SealError(f"its records are not those signed: {wrong[0]}{more}")

@@ -42,7 +42,7 @@ def check_signed_inspections(store: Store, bundle: Bundle) -> list[str]:
         if row.get("state") != "signed" or row["id"] in same:
             continue
         try:
-            listed = set(open_seal(row.get("seal") or "").fields.get("records") or {})
+            listed = set(open_seal(row.get("seal") or "").fields["records"])
             parts, ours_only = _parts_after_import(store, bundle, row["id"], listed)
             check_signed(row, parts)
         except SealError as exc:
