@@ -158,12 +158,19 @@ def database_id(store: Store) -> str:
 
 
 def _anchors() -> dict[str, list[dict[str, Any]]]:
+    """The heads noted so far, by database id; entries of another shape are left out."""
     path = user_config_dir() / ANCHOR_FILE
     try:
         content = json.loads(path.read_text(encoding="utf-8"))
-    except (OSError, ValueError):
+    except (OSError, ValueError, RecursionError):
         return {}
-    return content if isinstance(content, dict) else {}
+    if not isinstance(content, dict):
+        return {}
+    return {
+        ident: [i for i in items if isinstance(i, dict) and isinstance(i.get("seq"), int)]
+        for ident, items in content.items()
+        if isinstance(items, list)
+    }
 
 
 def anchor(store: Store, why: str) -> None:
