@@ -190,29 +190,23 @@ def _v2(db: sqlite_utils.Database) -> None:
 
 
 def _v3(db: sqlite_utils.Database) -> None:
-    """The report's general and structure details on sites; who came along and what changed."""
+    """The report's general and structure details on sites; who came along and what changed.
+
+    Every existing row gains the new columns with their defaults, so each gets an
+    audit row saying so; otherwise the audit check would take the new columns for
+    an edit made behind the tool's back.
+    """
     _add_columns(db, _V3_COLUMNS)
 
 
-def _trust(db: sqlite_utils.Database) -> None:
-    """A seal on each signed inspection; a keyed check on each audit row written from now on.
+def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> None:
+    """Add columns to record tables, with an audit row for every row that gains them.
 
-    The seal is what lets another database take an inspection as signed (see
-    `store.seal`); the key check is what a rewrite of the audit log without the
-    user's secret cannot forge (see `store.audit`). Rows written before have none.
-    """
-    _add_columns(db, {"inspection": ("seal TEXT NOT NULL DEFAULT ''",)})
-    db.execute("ALTER TABLE audit ADD COLUMN mac TEXT")
-
-
-def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
-    """New columns with their defaults, and an audit row for every row they change.
-
-    Otherwise the audit check would take the new columns for an edit made behind
-    the tool's back.
+    The audit rows carry their keyed check once the audit table has the column
+    for it (from step `_trust` on).
     """
     at = utcnow().isoformat()
-    for table, columns in columns_by_table.items():
+    for table, columns in new.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -230,6 +224,55 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
     return {row["id"]: row for row in rows}
 
 
+_ENTRY_DRAFTS = """
+CREATE TABLE entry_draft (
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    field TEXT NOT NULL,
+    text TEXT NOT NULL,
+    updated_at TEXT NOT NULL,
+    PRIMARY KEY (inspection_id, component_id, field)
+);
+CREATE TABLE walkdown_place (
+    inspection_id TEXT PRIMARY KEY REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    updated_at TEXT NOT NULL
+);
+"""
+
+
+def _entry_drafts(db: sqlite_utils.Database) -> None:
+    """Text typed in a walkdown and not saved yet, and the component the inspector is on.
+
+    Neither is a record: no audit rows, never in a bundle or a report; they only let a
+    walkdown killed mid-way offer back what was typed, where it was typed.
+    """
+    db.executescript(_ENTRY_DRAFTS)
+
+
+def _retired_people_and_instruments(db: sqlite_utils.Database) -> None:
+    """Inspectors and instruments can be retired: kept for the history, left out of pickers."""
+    _add_columns(db, {"inspector": ("retired_on TEXT",), "instrument": ("retired_on TEXT",)})
+
+
+def _trust(db: sqlite_utils.Database) -> None:
+    """A seal on each signed inspection; a keyed check on each audit row written from now on.
+
+    The seal is what lets another database take an inspection as signed (see
+    `store.seal`); the key check is what a rewrite of the audit log without the
+    user's secret cannot forge (see `store.audit_key`). Rows written before have none.
+    """
+    _add_columns(db, {"inspection": ("seal TEXT NOT NULL DEFAULT ''",)})
+    db.execute("ALTER TABLE audit ADD COLUMN mac TEXT")
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3, _trust)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _entry_drafts,
+    _retired_people_and_instruments,
+    _trust,
+)
 SCHEMA_VERSION = len(MIGRATIONS)
