@@ -28,6 +28,8 @@ from pydantic import (
     model_validator,
 )
 
+from inspectkit.wording import with_article
+
 #: A reading may carry a time this far past the laptop's clock before it is refused:
 #: instrument clocks and laptop clocks drift apart, and time zones get mixed up.
 CLOCK_SKEW = timedelta(hours=12)
@@ -274,6 +276,8 @@ class Severity(StrEnum):
     OK = "ok"
     WATCH = "watch"
     INCOMPLETE = "incomplete"
+    #: Readings that prove nothing (e.g. taken with a lapsed instrument): take them again.
+    RETAKE = "retake"
     FAIL = "fail"
     OVERDUE = "overdue"
 
@@ -287,8 +291,9 @@ _SEVERITY_RANK = {
     Severity.OK: 0,
     Severity.WATCH: 1,
     Severity.INCOMPLETE: 2,
-    Severity.FAIL: 3,
-    Severity.OVERDUE: 4,
+    Severity.RETAKE: 3,
+    Severity.FAIL: 4,
+    Severity.OVERDUE: 5,
 }
 
 
@@ -631,7 +636,8 @@ class Reading(Record):
             if self.value < 0:
                 raise ValueError(
                     f"value {self.value:g} {quantity.unit} is negative; "
-                    f"a {quantity.label} is never below zero, check the sign or the leads"
+                    f"{with_article(quantity.label)} is never below zero, check the sign or "
+                    "the leads"
                 )
             if self.value > _QUANTITY_MAX[quantity]:
                 raise ValueError(

@@ -15,6 +15,7 @@ from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, o
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.sync.guard import BundleError
+from inspectkit.wording import counted
 
 
 class Format(StrEnum):
@@ -98,7 +99,8 @@ def export(
             except BundleError as exc:
                 fail(str(exc))
             counts = ", ".join(f"{t} {n}" for t, n in summary.counts.items() if n)
-            typer.echo(f"Wrote {summary.path}: records {counts}; {summary.photos} photo files.")
+            photos = counted(summary.photos, "photo file")
+            typer.echo(f"Wrote {summary.path}: records {counts}; {photos}.")
             return
         if since_day is not None:
             fail("--since applies to bundles only")

@@ -13,7 +13,7 @@ from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import SiteCheck, check_site
 from inspectkit.engine.history import as_of, calibration_lapsed, electrode_count, series, usable
-from inspectkit.engine.results import Result
+from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
@@ -54,18 +54,12 @@ class ReportError(StoreError):
 
 
 #: Words for the engine's severities, as a reading's result or the verdict.
-RESULT_WORDS = {
-    Severity.OK: "PASS",
-    Severity.WATCH: "WATCH",
-    Severity.INCOMPLETE: "INCOMPLETE",
-    Severity.FAIL: "FAIL",
-    Severity.OVERDUE: "OVERDUE",
-}
+RESULT_WORDS = {s: w.shout for s, w in SEVERITY_WORDS.items()}
 #: Why a reading got its result, by the engine rule that gave it.
 _RULE_REASONS = {
     "limit": "above the limit",
     "rise": "rise on earlier readings",
-    "calibration": "instrument out of calibration",
+    "calibration": "instrument out of calibration, proves nothing",
     "unreliable": "marked doubtful",
 }
 _VERDICTS = {
@@ -77,6 +71,11 @@ _VERDICTS = {
     Severity.INCOMPLETE: (
         "INCOMPLETE",
         "Some tests the inspection should include were not taken; see the summary.",
+    ),
+    Severity.RETAKE: (
+        "READINGS TO RETAKE",
+        "Some readings were taken with an instrument out of calibration and prove nothing; "
+        "they must be taken again before the system can be judged.",
     ),
     Severity.FAIL: (
         "ACTION NEEDED",
@@ -180,8 +179,8 @@ def _readings(
 ) -> tuple[ReadingRow, ...]:
     by_reading: dict[str, list[Result]] = {}
     for result in check.results:
-        if result.reading_id:
-            by_reading.setdefault(result.reading_id, []).append(result)
+        for reading_id in filter(None, (result.reading_id, *result.reading_ids)):
+            by_reading.setdefault(reading_id, []).append(result)
     latest = {group[-1].id for group in series(records.readings).values()}
     count = electrode_count(records, inspection.date)
     rows = []

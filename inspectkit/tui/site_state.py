@@ -13,6 +13,7 @@ from pathlib import Path
 
 from inspectkit.engine.check import SiteCheck, check_site
 from inspectkit.engine.history import series
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.schedule import DueStatus
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_profile
@@ -20,7 +21,7 @@ from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records
 
 #: Words from worst to best: the sites list sorts by this, worst first.
-WORDS_WORST_FIRST = ("overdue", "fail", "incomplete", "due soon", "watch", "ok")
+WORDS_WORST_FIRST = ("overdue", "fail", "retake", "incomplete", "due soon", "watch", "ok")
 #: Shown when a site's profile cannot be read: it cannot be judged at all.
 NO_PROFILE = "no profile"
 #: Shown when judging a site failed for another reason (bad data, a bug): see `reason`.
@@ -57,8 +58,8 @@ def assess(records: SiteRecords, profile: Profile, today: date) -> SiteState:
     schedule, worst = check.schedule, check.worst
     if schedule.status is DueStatus.OVERDUE or worst is Severity.OVERDUE:
         word = "overdue"
-    elif worst in (Severity.FAIL, Severity.INCOMPLETE):
-        word = worst.value
+    elif worst in (Severity.FAIL, Severity.RETAKE, Severity.INCOMPLETE):
+        word = SEVERITY_WORDS[worst].word
     elif schedule.status in (DueStatus.DUE, DueStatus.DUE_SOON):
         word = "due soon"
     elif worst is Severity.WATCH:
@@ -151,11 +152,12 @@ def reading_verdicts(check: SiteCheck, records: SiteRecords) -> dict[str, str]:
     """
     by_reading: dict[str, Severity] = {}
     for result in check.results:
-        known = by_reading.get(result.reading_id or "")
-        if result.reading_id and (known is None or result.severity.rank > known.rank):
-            by_reading[result.reading_id] = result.severity
+        for reading_id in filter(None, (result.reading_id, *result.reading_ids)):
+            known = by_reading.get(reading_id)
+            if known is None or result.severity.rank > known.rank:
+                by_reading[reading_id] = result.severity
     verdicts = {}
     for readings in series(records.readings).values():
         severity = by_reading.get(readings[-1].id, Severity.OK)
-        verdicts[readings[-1].id] = "pass" if severity is Severity.OK else severity.value
+        verdicts[readings[-1].id] = SEVERITY_WORDS[severity].word
     return verdicts

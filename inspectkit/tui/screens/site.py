@@ -12,6 +12,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static, TabbedContent, TabPane, Tree
 
 from inspectkit.engine.history import in_service, series
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.schedule import DueStatus
 from inspectkit.model import (
     WALKING_ORDER,
@@ -200,7 +201,7 @@ class SiteScreen(Screen[None]):
         check = self.state.check if self.state else None
         text = Text()
         for result in check.results if check else ():
-            text.append_text(state_text(result.severity.value))
+            text.append_text(state_text(SEVERITY_WORDS[result.severity].word))
             text.append(f" {result.message}\n")
         if check is not None and not check.results:
             text.append("Nothing to act on.")
