@@ -234,3 +234,43 @@ def test_plain_text_sections_carry_the_details(built) -> None:
     assert "Accompanied by: Ulrike Sæbø, farm manager" in sections["Inspection"]
     assert "Notes: Keys to the roof hatch from the farm office" in sections["Inspection"]
     assert sections[CHANGES_TITLE] == (VISIT_DETAILS["changes_since_last"],)
+
+
+def test_first_page_gives_the_result_what_to_do_by_when_and_the_visits(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    _, pages = _text(render_report(content, load_branding()).data)
+    first = pages[0]
+    assert "ACTION NEEDED" in first and "What to do, by when" in first
+    # The TJ-02 defect graded at this visit fails now; its date is advice.
+    defect = next(a for a in content.actions if a.tag == "TJ-02")
+    assert defect.result == "FAIL" and defect.when == "now (advised by 2026-12-15)"
+    assert defect.when in first
+    assert "Visits this needs" in first and "1 return visit as soon as possible" in first
+    assert "next complete inspection by" in first
+
+
+def test_sound_components_are_a_compact_table_and_the_summary_counts_actions(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    assert [(r.tag, r.remark) for r in content.sound] == [("AT-01", "Upright and secure")]
+    assert [f.tag for f in content.findings] == ["TJ-02"]  # only what to act on
+    assert content.findings[0].priority.startswith("Priority 1")
+    assert content.headline[0].startswith(f"{len(content.actions)} actions: ")
+    assert "1 finding to act on (1 defect); 1 component found sound" in content.headline
+    _, pages = _text(render_report(content, load_branding()).data)
+    text = " ".join(pages)
+    assert "Components found sound" in text and "sound: Upright and secure" in text
+    assert "SOUND — No remark" not in text and "Priority 1: defects" in text
+
+
+def test_the_report_explains_every_result_word(built) -> None:
+    from inspectkit.engine.results import SEVERITY_WORDS
+
+    store, made = built
+    content = build_report(store, made.current.id)
+    _, pages = _text(render_report(content, load_branding()).data)
+    text = " ".join(pages)
+    assert "What the result words mean" in text
+    for word in SEVERITY_WORDS.values():
+        assert word.shout in text and " ".join(word.meaning.split()[:4]) in text

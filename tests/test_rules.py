@@ -274,7 +274,7 @@ def test_a_defect_graded_today_fails_today_with_its_remedy_date_as_advice():
     )
     defect, attention = _by_rule(site, "carried-defect")
     assert defect.severity is Severity.FAIL and defect.due == date(2026, 7, 1)
-    assert "found today; remedy advised by 2026-07-01" in defect.message
+    assert "found 2026-06-01; remedy advised by 2026-07-01" in defect.message
     assert attention.severity is Severity.WATCH
     # A month on it still fails (not yet overdue); after its date, carried, it is overdue.
     (still,) = [

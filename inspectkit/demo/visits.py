@@ -463,6 +463,9 @@ class SiteHistory:
             latest.inspection = latest.inspection.model_copy(update=latest_fields)
         self._minor_findings()
         self._scenario_findings(refs)
+        finished = [v for v in self.visits if v.inspection.finished]
+        for visit in {id(v): v for v in (latest, *finished[-1:])}.values():
+            self._sound_grades(visit)
         if spec.draft_today:
             self._draft(count, usual)
         for visit in self.visits:
@@ -505,6 +508,31 @@ class SiteHistory:
                 updated_by=(resolved or visit).inspection.updated_by,
             )
         )
+
+    def _sound_grades(self, visit: _Visit) -> None:
+        """Every other component in service graded sound, as a walkdown grades them all.
+
+        The ids are derived from the visit and the component, not drawn, so that the
+        rest of the scenario draws the same numbers as before.
+        """
+        graded = {f.component_id for f in self.findings if f.inspection_id == visit.inspection.id}
+        day = visit.inspection.date
+        for component in self.system.components:
+            if component.id in graded or (component.retired_on and component.retired_on <= day):
+                continue
+            if component.installed_on and component.installed_on > day:
+                continue
+            self.findings.append(
+                Finding(
+                    id=str(uuid.uuid5(uuid.NAMESPACE_OID, f"{visit.inspection.id}/{component.id}")),
+                    inspection_id=visit.inspection.id,
+                    component_id=component.id,
+                    grade=Grade.SOUND,
+                    created_at=visit.clock,
+                    updated_at=visit.clock,
+                    updated_by=visit.inspection.updated_by,
+                )
+            )
 
     def _minor_findings(self) -> None:
         """Small defects noted now and then, each put right by the next visit."""

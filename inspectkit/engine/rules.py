@@ -376,7 +376,7 @@ def open_defects(facts: SiteFacts) -> Iterator[Result]:
         else:
             due = f"; remedy advised by {due_by.isoformat()}"
         age = (
-            "found today"
+            f"found {since.isoformat()}"
             if days == 0
             else f"open since {since.isoformat()} ({counted(days, 'day')})"
         )

@@ -20,7 +20,6 @@ from inspectkit.model import (
     Component,
     EarthingArrangement,
     Finding,
-    Grade,
     Inspection,
     InspectionKind,
     InspectionState,
@@ -33,18 +32,17 @@ from inspectkit.model import (
     SiteRecords,
 )
 from inspectkit.profiles import Profile, load_profile
+from inspectkit.report.actions import actions, headline, legend, visits
 from inspectkit.report.amend import chain_of, describe_changes
 from inspectkit.report.content import (
     Field,
-    FindingRow,
     Notice,
-    PhotoItem,
     ReadingRow,
     ReportContent,
     TrendChart,
 )
+from inspectkit.report.findings import visit_findings
 from inspectkit.store import Store, StoreError
-from inspectkit.store.photos import photo_path
 from inspectkit.store.queries import load_site_records
 from inspectkit.units import format_value
 
@@ -59,7 +57,7 @@ RESULT_WORDS = {s: w.shout for s, w in SEVERITY_WORDS.items()}
 _RULE_REASONS = {
     "limit": "above the limit",
     "rise": "rise on earlier readings",
-    "calibration": "instrument out of calibration, proves nothing",
+    "calibration": "instrument out of calibration",
     "unreliable": "marked doubtful",
 }
 _VERDICTS = {
@@ -212,55 +210,6 @@ def _readings(
             )
         )
     return tuple(rows)
-
-
-def _photo_item(store: Store, photo: Photo, components: dict[str, Component]) -> PhotoItem:
-    component = components.get(photo.component_id or "")
-    caption = photo.caption or photo.original_name
-    if component is not None:
-        caption = f"{component.tag}: {caption}"
-    return PhotoItem(photo.id, photo_path(store, photo.sha256), caption)
-
-
-def _findings(
-    store: Store, inspection: Inspection, records: SiteRecords, components: dict[str, Component]
-) -> tuple[tuple[FindingRow, ...], tuple[PhotoItem, ...]]:
-    mine = [f for f in records.findings if f.inspection_id == inspection.id]
-    photos = [p for p in records.photos if p.inspection_id == inspection.id]
-    rank = {Grade.DEFECT: 0, Grade.NEEDS_ATTENTION: 1, Grade.SOUND: 2}
-    mine.sort(
-        key=lambda f: (
-            rank[f.grade],
-            components[f.component_id].tag if f.component_id in components else "",
-        )
-    )
-    shown: set[str] = set()
-    rows = []
-    for finding in mine:
-        own = [
-            p
-            for p in photos
-            if p.component_id and p.component_id == finding.component_id and p.id not in shown
-        ]
-        shown.update(p.id for p in own)
-        rows.append(_finding_row(store, finding, own, components))
-    rest = tuple(_photo_item(store, p, components) for p in photos if p.id not in shown)
-    return tuple(rows), rest
-
-
-def _finding_row(
-    store: Store, finding: Finding, photos: list[Photo], components: dict[str, Component]
-) -> FindingRow:
-    component = components.get(finding.component_id or "")
-    return FindingRow(
-        tag=component.tag if component else "site",
-        grade=_words(finding.grade.value).upper(),
-        category=finding.category,
-        text=finding.text,
-        remedial_action=finding.remedial_action,
-        due_by=finding.due_by.isoformat() if finding.due_by else "",
-        photos=tuple(_photo_item(store, p, components) for p in photos),
-    )
 
 
 def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | None:
@@ -443,23 +392,14 @@ def build_report(
     inspector = store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
 
     readings = _readings(inspection, records, check, profile, components)
-    findings, general_photos = _findings(store, inspection, records, components)
+    seen = visit_findings(store, inspection, records, components)
+    findings = seen.to_act_on
     trends = tuple(
         chart for chart in (_trend_chart(t, records) for t in check.trends) if chart is not None
     )
     revision_label = _revision_label(inspection, signing)
-    worst = check.worst
-    verdict_word, verdict = _VERDICTS[worst]
-    tally = Counter(row.result.split(":")[0] for row in readings)
-    grades = Counter(f.grade for f in findings)
-    headline = [
-        f"{len(readings)} readings: "
-        + (", ".join(f"{n} {w.lower()}" for w, n in tally.most_common()) or "none taken"),
-        f"{len(findings)} findings: "
-        + (", ".join(f"{n} {g.lower()}" for g, n in grades.most_common()) or "none recorded"),
-        f"Next visual inspection due {check.schedule.next_visual.isoformat()}, "
-        f"next complete inspection due {check.schedule.next_complete.isoformat()}",
-    ]
+    verdict_word, verdict = _VERDICTS[check.worst]
+    to_do = actions(check)
     amends_text = ""
     changes: tuple[str, ...] = ()
     earlier = chain_of(store, inspection)
@@ -496,7 +436,7 @@ def build_report(
         inspection_date=inspection.date,
         verdict=verdict,
         verdict_word=verdict_word,
-        headline=tuple(headline),
+        headline=headline(to_do, readings, findings, seen.sound),
         site=_general(site),
         structure=_structure(records, profile, inspection.date),
         inspection=tuple(inspection_fields),
@@ -524,7 +464,11 @@ def build_report(
         signer_organisation=inspector.organisation if inspector else "",
         amends=amends_text,
         amendment=changes,
-        general_photos=general_photos,
+        general_photos=seen.other_photos,
+        sound=seen.sound,
+        actions=to_do,
+        visits=visits(check),
+        legend=legend(),
     )
 
 
