@@ -370,7 +370,7 @@ def test_a_folder_of_photos_is_matched_by_time(demo: Path, tmp_path: Path) -> No
     assert "IMG_1.jpg → E-01" in result.stdout
     assert "IMG_2.jpg → the inspection only" in result.stdout
     again = run(demo, "photo", "add", "--inspection", visit, str(card))
-    assert "0 photo(s) attached." in again.stdout
+    assert "0 photos attached." in again.stdout
 
 
 def test_show_lists_the_walk_in_order(demo: Path) -> None:

@@ -31,6 +31,7 @@ from inspectkit.walkdown import (
     record_reading,
     withdraw_reading,
 )
+from inspectkit.wording import counted
 
 photo_app = typer.Typer(
     help="Photos: attach one, or a folder matched by time.", no_args_is_help=True
@@ -231,7 +232,7 @@ def add_photo(
     for match in matches:
         where = tags.get(match.component_id or "", "the inspection only")
         typer.echo(f"{match.photo.original_name} → {where}")
-    typer.echo(f"{len(matches)} photo(s) attached.")
+    typer.echo(f"{counted(len(matches), 'photo')} attached.")
 
 
 def register(app: typer.Typer) -> None:

@@ -109,7 +109,8 @@ def export(
             _write(out, lambda handle: exports.write_json(collection, handle))
             if unlocated:
                 typer.echo(
-                    f"{len(unlocated)} site(s) without coordinates, written with a null geometry: "
+                    f"{counted(len(unlocated), 'site')} without coordinates, written with a "
+                    "null geometry: "
                     f"{', '.join(unlocated)}; set their latitude and longitude to map them",
                     err=True,
                 )

@@ -16,6 +16,7 @@ from types import MappingProxyType
 from typing import Literal
 
 from inspectkit.model import ProtectionLevel
+from inspectkit.wording import counted
 
 L1, L2, L3, L4 = ProtectionLevel.I, ProtectionLevel.II, ProtectionLevel.III, ProtectionLevel.IV
 
@@ -265,7 +266,7 @@ def _checked_traverse(points: Sequence[tuple[float, float]], c: float) -> list[t
     """The points sorted by distance, each checked; refuse fewer than three or any out of (0, C)."""
     if len(points) < 3:
         raise EarthingError(
-            f"points holds {len(points)} reading(s); a plateau check needs at least three "
+            f"points holds {counted(len(points), 'reading')}; a plateau check needs at least three "
             "(about 52 %, 61.8 % and 72 % of the E–C distance)"
         )
     traverse = []

@@ -335,7 +335,7 @@ def _check_references(store: Store, bundle: Bundle) -> None:
             table, row_id, name = refs[missing[0]]
             raise BundleError(
                 f"{table} {row_id} refers to {target} {missing[0]} ({name}), which is neither "
-                f"in the bundle nor in this database ({len(missing)} such reference(s)); "
+                f"in the bundle nor in this database ({counted(len(missing), 'such reference')}); "
                 "import the bundle it came with first, or export without --since"
             )
 

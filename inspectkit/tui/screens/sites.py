@@ -19,6 +19,7 @@ from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
 from inspectkit.tui.site_state import ERROR, WORDS_WORST_FIRST, SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
+from inspectkit.wording import counted
 
 #: How the list can be ordered, in the order the sort key cycles through them.
 SORTS = ("state", "name", "due", "client", "town", "level")
@@ -224,7 +225,7 @@ class SitesScreen(Screen[None]):
         if not failed:
             return
         first = failed[0]
-        more = f" (and {len(failed) - 1} more site(s))" if len(failed) > 1 else ""
+        more = f" (and {counted(len(failed) - 1, 'more site')})" if len(failed) > 1 else ""
         self.notify(
             f"{first.name} could not be judged{more}: {first.state.reason}. "  # type: ignore[union-attr]
             "Highlight it for the reason; the other sites are judged.",

@@ -49,6 +49,7 @@ from inspectkit.walkdown import (
     walk_for,
     withdraw_reading,
 )
+from inspectkit.wording import counted
 
 #: Setting that remembers the instrument in use, shared with the settings screen.
 INSTRUMENT_SETTING = "instrument_id"
@@ -390,7 +391,7 @@ class WalkdownScreen(Screen[None]):
                 self.choices.pop(key, None)
         if refused:
             self.notify(
-                f"{self.stop.component.tag}: {refused} field(s) not saved, kept as typed",
+                f"{self.stop.component.tag}: {counted(refused, 'field')} not saved, kept as typed",
                 severity="warning",
             )
 
@@ -444,7 +445,7 @@ class WalkdownScreen(Screen[None]):
         else:
             matched = sum(1 for m in matches if m.component_id == here)
             status = (
-                f"✓ saved {len(matches)} new photo(s), {matched} matched by time to "
+                f"✓ saved {counted(len(matches), 'new photo')}, {matched} matched by time to "
                 f"{self.stop.component.tag}"
             )
         self.call_after_refresh(self._clear_photo_field)
