@@ -235,7 +235,7 @@ def test_2_drifting_electrode_crosses_before_the_next_complete_inspection(demo: 
     crossing = series[0].taken_at.date() + timedelta(days=(limit - intercept) / slope * 365.25)
     last_complete = finished(records, InspectionKind.COMPLETE)[-1].date
     next_complete = last_complete + relativedelta(
-        months=profile.intervals[records.site.protection_level].complete_months
+        months=profile.intervals_for(records.site.protection_level).complete_months
     )
     assert ANCHOR < crossing < next_complete
 
@@ -243,7 +243,7 @@ def test_2_drifting_electrode_crosses_before_the_next_complete_inspection(demo: 
 def test_3_overdue_site(demo: Store) -> None:
     records = site(demo, "Greyholm Secondary School")
     profile = load_profile(records.site.profile)
-    months = profile.intervals[records.site.protection_level].complete_months
+    months = profile.intervals_for(records.site.protection_level).complete_months
     last = finished(records, InspectionKind.COMPLETE, InspectionKind.INITIAL)[-1].date
     assert last + relativedelta(months=months) < ANCHOR - timedelta(days=200)
 
@@ -255,7 +255,7 @@ def test_4_explosive_site_is_due_on_its_short_interval_only(demo: Store) -> None
     kinds = (InspectionKind.VISUAL, InspectionKind.COMPLETE, InspectionKind.INITIAL)
     last_visual = finished(records, *kinds)[-1].date
     short = profile.explosive.visual_months
-    normal = profile.intervals[records.site.protection_level].visual_months
+    normal = profile.intervals_for(records.site.protection_level).visual_months
     assert last_visual + relativedelta(months=short) < ANCHOR
     assert last_visual + relativedelta(months=normal) > ANCHOR
 

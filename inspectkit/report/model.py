@@ -289,7 +289,7 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
         c.kind for c in records.components if c.retired_on is None or c.retired_on > on
     )
     fields = [
-        Field("Protection level", f"LPL {site.protection_level.value}"),
+        Field(*profile.grading(site.protection_level, site.height_m)),
         Field(
             "Rule set",
             f"{profile.title or profile.name}"

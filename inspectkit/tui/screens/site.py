@@ -143,15 +143,22 @@ class SiteScreen(Screen[None]):
         """Read the site again and judge it; quick for one site, so done on the spot."""
         store, today = self.app.store, self.app.today
         self.records = records = load_site_records(store, self.site_id)
-        self.state = judge(records, today, ProfileCache())
+        profiles = ProfileCache()
+        self.state = judge(records, today, profiles)
         site = records.site
+        profile = profiles.get(site.profile)
+        graded = (
+            profile.grading(site.protection_level, site.height_m)[1]
+            if profile is not None
+            else f"level {site.protection_level.value}"
+        )
         flags = [
             f for f, on in (("critical", site.critical), ("explosive risk", site.explosive_risk))
             if on
         ]
         self.query_one("#state", StateBadge).show(self.state.word)
         self.query_one("#site-title", Static).update(
-            f"[b]{site.name}[/b] · level {site.protection_level.value} · {site.client or '—'}, "
+            f"[b]{site.name}[/b] · {graded} · {site.client or '—'}, "
             f"{site.town or '—'} · {site.profile}{' · ' + ', '.join(flags) if flags else ''}"
         )
         check = self.state.check
