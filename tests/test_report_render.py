@@ -274,3 +274,27 @@ def test_the_report_explains_every_result_word(built) -> None:
     assert "What the result words mean" in text
     for word in SEVERITY_WORDS.values():
         assert word.shout in text and " ".join(word.meaning.split()[:4]) in text
+
+
+def test_the_soil_printed_is_the_one_recorded_with_the_readings(built) -> None:
+    from inspectkit.model import Quantity, SoilCondition
+
+    store, made = built
+    kinds = (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED, Quantity.SOIL_RESISTIVITY)
+    earth = [r for r in made.readings if r.quantity in kinds]
+    # Soil recorded with every earth reading (common practice): said once for the visit.
+    for reading in earth:
+        store.save(reading.model_copy(update={"soil": SoilCondition.WET}))
+    content = build_report(store, made.current.id)
+    soil = next(f.value for f in content.inspection if f.label == "Soil")
+    assert soil == "wet (recorded with every earth reading)"
+    assert all(r.soil == "" for r in content.readings)
+    # Where they differ, the visit's line counts them and each reading says its own.
+    store.save(earth[0].model_copy(update={"soil": SoilCondition.DRY}))
+    content = build_report(store, made.current.id)
+    soil = next(f.value for f in content.inspection if f.label == "Soil")
+    assert soil == f"differs by reading: {len(earth) - 1} wet, 1 dry; see each reading"
+    by_id = {r.reading_id: r.soil for r in content.readings}
+    assert by_id[earth[0].id] == "dry" and by_id[earth[1].id] == "wet"
+    _, pages = _text(render_report(content, load_branding()).data)
+    assert "soil dry" in " ".join(pages)

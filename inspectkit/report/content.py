@@ -36,7 +36,11 @@ class Field:
 
 @dataclass(frozen=True)
 class ReadingRow:
-    """One reading as the report's table shows it; `result` is a word."""
+    """One reading as the report's table shows it; `result` is a word.
+
+    `soil` is the ground's state recorded with it, given only where the visit's earth
+    readings differ (otherwise the inspection's "Soil" line says it once).
+    """
 
     reading_id: str
     tag: str
@@ -47,6 +51,7 @@ class ReadingRow:
     limit: str
     result: str
     note: str = ""
+    soil: str = ""
 
 
 @dataclass(frozen=True)

@@ -11,20 +11,17 @@ from __future__ import annotations
 from collections import Counter
 from datetime import date, datetime, timedelta
 
-from inspectkit.engine.check import SiteCheck, check_site
-from inspectkit.engine.history import as_of, calibration_lapsed, electrode_count, series, usable
-from inspectkit.engine.results import SEVERITY_WORDS, Result
+from inspectkit.engine.check import check_site
+from inspectkit.engine.history import as_of, calibration_lapsed, usable
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
-    Component,
     EarthingArrangement,
     Finding,
     Inspection,
     InspectionKind,
     InspectionState,
     Inspector,
-    Method,
     Photo,
     Reading,
     Severity,
@@ -37,29 +34,19 @@ from inspectkit.report.amend import chain_of, describe_changes
 from inspectkit.report.content import (
     Field,
     Notice,
-    ReadingRow,
     ReportContent,
     TrendChart,
 )
 from inspectkit.report.findings import visit_findings
+from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
 from inspectkit.store import Store, StoreError
 from inspectkit.store.queries import load_site_records
-from inspectkit.units import format_value
 
 
 class ReportError(StoreError):
     """A report cannot be built as asked; the message says why."""
 
 
-#: Words for the engine's severities, as a reading's result or the verdict.
-RESULT_WORDS = {s: w.shout for s, w in SEVERITY_WORDS.items()}
-#: Why a reading got its result, by the engine rule that gave it.
-_RULE_REASONS = {
-    "limit": "above the limit",
-    "rise": "rise on earlier readings",
-    "calibration": "instrument out of calibration",
-    "unreliable": "marked doubtful",
-}
 _VERDICTS = {
     Severity.OK: ("SATISFACTORY", "Every reading is within its limit and nothing needs action."),
     Severity.WATCH: (
@@ -95,17 +82,6 @@ _KIND_TITLES = {
 
 #: Trend charts look this far past the last reading at least (our default).
 CHART_YEARS_AHEAD = 3
-
-#: How each method is written in a report.
-METHOD_WORDS = {
-    Method.FALL_OF_POTENTIAL_3P: "fall of potential (3-pole)",
-    Method.FOUR_POLE: "4-pole",
-    Method.CLAMP_ON: "clamp-on",
-    Method.LOW_OHM_2W: "low-ohm, 2-wire",
-    Method.LOW_OHM_4W: "low-ohm, 4-wire",
-    Method.WENNER: "Wenner",
-    Method.COUNTER_READ: "counter read",
-}
 
 
 def _words(value: str) -> str:
@@ -151,65 +127,6 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
         }
     )
     return as_of(trimmed, inspection.date)
-
-
-def _reading_result(
-    reading: Reading, results: list[Result], judged: bool, limit: float | None
-) -> str:
-    """The result word for a reading, from what the engine said about it."""
-    if results:
-        worst = max(results, key=lambda r: r.severity.rank)
-        reasons = ", ".join(dict.fromkeys(_RULE_REASONS.get(r.rule, r.rule) for r in results))
-        return f"{RESULT_WORDS[worst.severity]}: {reasons}"
-    if not judged:
-        return "SUPERSEDED: re-tested, see the later reading"
-    if limit is None:
-        return "RECORDED: no limit applies"
-    return RESULT_WORDS[Severity.OK]
-
-
-def _readings(
-    inspection: Inspection,
-    records: SiteRecords,
-    check: SiteCheck,
-    profile: Profile,
-    components: dict[str, Component],
-) -> tuple[ReadingRow, ...]:
-    by_reading: dict[str, list[Result]] = {}
-    for result in check.results:
-        for reading_id in filter(None, (result.reading_id, *result.reading_ids)):
-            by_reading.setdefault(reading_id, []).append(result)
-    latest = {group[-1].id for group in series(records.readings).values()}
-    count = electrode_count(records, inspection.date)
-    rows = []
-    mine = [r for r in records.readings if r.inspection_id == inspection.id]
-    order = {kind: n for n, kind in enumerate(WALKING_ORDER)}
-    for reading in sorted(
-        mine,
-        key=lambda r: (
-            order.get(components[r.component_id].kind, 99) if r.component_id in components else 99,
-            components[r.component_id].tag if r.component_id in components else "",
-            r.taken_at,
-        ),
-    ):
-        component = components.get(reading.component_id)
-        limit = profile.limit_for(reading.quantity, count)
-        rows.append(
-            ReadingRow(
-                reading_id=reading.id,
-                tag=component.tag if component else "?",
-                component=component.kind.label if component else "unknown component",
-                quantity=reading.quantity.label,
-                method=METHOD_WORDS[reading.method],
-                value=format_value(reading.value, reading.quantity, reading.over_range),
-                limit=f"≤ {format_value(limit, reading.quantity)}" if limit is not None else "—",
-                result=_reading_result(
-                    reading, by_reading.get(reading.id, []), reading.id in latest, limit
-                ),
-                note=reading.note,
-            )
-        )
-    return tuple(rows)
 
 
 def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | None:
@@ -391,7 +308,7 @@ def build_report(
     components = {c.id: c for c in records.components}
     inspector = store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
 
-    readings = _readings(inspection, records, check, profile, components)
+    readings = reading_rows(inspection, records, check, profile, components)
     seen = visit_findings(store, inspection, records, components)
     findings = seen.to_act_on
     trends = tuple(
@@ -416,6 +333,7 @@ def build_report(
                 _parts(all_records, original.id), _parts(all_records, inspection.id), components
             )
         ) or ("No reading, finding or photo was changed.",)
+    visit_readings = [r for r in records.readings if r.inspection_id == inspection.id]
     inspection_fields = [
         Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
         Field("Inspector", inspector.name if inspector else "not recorded"),
@@ -423,7 +341,7 @@ def build_report(
         Field("Organisation", inspector.organisation if inspector else ""),
         Field("Accompanied by", inspection.accompanied_by),
         Field("Weather", inspection.weather),
-        Field("Soil", inspection.soil.value if inspection.soil else "not recorded"),
+        Field("Soil", soil_words(inspection, visit_readings)),
         *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
         Field("Report", revision_label),
         Field("Inspection id", inspection.id),

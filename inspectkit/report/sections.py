@@ -192,7 +192,7 @@ def readings(content: ReportContent, kit: Kit) -> list[Flowable]:
                 [
                     r.tag,
                     r.component,
-                    f"{r.quantity}, {r.method}",
+                    f"{r.quantity}, {r.method}" + (f"; soil {r.soil}" if r.soil else ""),
                     r.value,
                     r.limit,
                     r.result + (f" ({r.note})" if r.note else ""),
