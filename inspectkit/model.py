@@ -679,8 +679,11 @@ class Finding(Record):
     text: str = Field(default="", max_length=2000)
     remedial_action: str = Field(default="", max_length=2000)
     due_by: date | None = None
-    #: The inspection that found the defect put right.
+    #: The inspection that found the defect put right, or found it still present
+    #: (then a finding of that inspection names this one in `same_as_id`).
     resolved_by: str | None = None
+    #: The earlier open finding of the same fault this one repeats ("still present").
+    same_as_id: str | None = None
 
     @field_validator("grade", mode="before")
     @classmethod

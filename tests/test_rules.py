@@ -368,3 +368,17 @@ def test_check_all_refuses_an_unknown_profile_and_orders_worst_first():
         check_all([clean.records(), failing.records()], {"iec-62305-3": IEC}, date(2026, 3, 2))
     )
     assert checks[0].worst is Severity.FAIL
+
+
+def test_a_repeat_defect_closes_the_earlier_and_carries_the_faults_age():
+    site = SiteBuilder("II")
+    terminal = site.component(ComponentKind.AIR_TERMINAL, "AT-05")
+    first = site.visit(date(2024, 1, 27), InspectionKind.COMPLETE)
+    old = site.finding(first, terminal, Grade.DEFECT, "bent over", due_by=date(2024, 3, 27))
+    later = site.visit(date(2026, 5, 1), InspectionKind.VISUAL)
+    site.findings[-1] = old.model_copy(update={"resolved_by": later.id})
+    new = site.finding(later, terminal, Grade.DEFECT, "still bent over", due_by=date(2026, 7, 1))
+    site.findings[-1] = new.model_copy(update={"same_as_id": old.id})
+    (result,) = _by_rule(site, "carried-defect")  # one fault, listed once
+    assert result.severity is Severity.FAIL
+    assert "open since 2024-01-27 (856 days), still present on 2026-05-01" in result.message

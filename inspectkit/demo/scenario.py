@@ -81,6 +81,8 @@ class FindingSpec(_Data):
     remedial: str = ""
     due_days: int | None = None
     resolved_at: InspectionRef | None = None
+    #: The same fault as this visit's finding on the component, found still present.
+    same_as: InspectionRef | None = None
     #: Caption of a generated photo attached to the finding.
     photo: str | None = None
     #: EXIF orientation of that photo (6: taken with the camera turned).

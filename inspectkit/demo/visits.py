@@ -509,6 +509,20 @@ class SiteHistory:
             )
         )
 
+    def _repeat(self, earlier: _Visit, visit: _Visit, component: Component) -> None:
+        """The finding just made repeats `earlier`'s on the component, which it closes."""
+        new = self.findings[-1]
+        for n, finding in enumerate(self.findings):
+            if finding.inspection_id == earlier.inspection.id and finding.component_id == (
+                component.id
+            ):
+                self.findings[n] = finding.model_copy(
+                    update={"resolved_by": visit.inspection.id, "updated_at": new.created_at}
+                )
+                self.findings[-1] = new.model_copy(update={"same_as_id": finding.id})
+                return
+        raise ValueError(f"{component.tag}: no finding at the visit the repeat names")
+
     def _sound_grades(self, visit: _Visit) -> None:
         """Every other component in service graded sound, as a walkdown grades them all.
 
@@ -557,6 +571,8 @@ class SiteHistory:
             resolved = refs[spec.resolved_at] if spec.resolved_at else None
             words = (spec.category, spec.text, spec.remedial)
             self._finding(visit, component, spec.grade, words, spec.due_days, resolved)
+            if spec.same_as:
+                self._repeat(refs[spec.same_as], visit, component)
             if spec.photo:
                 self.demo.out.shots.append(
                     Shot(

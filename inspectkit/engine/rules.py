@@ -20,6 +20,7 @@ from inspectkit.engine.history import (
     calibration_lapsed,
     counts_as_done,
     electrode_count,
+    first_found,
     in_service,
     series,
 )
@@ -354,13 +355,15 @@ def open_defects(facts: SiteFacts) -> Iterator[Result]:
     its remedy date is overdue; an item needing attention is to watch until then.
     """
     found_on = {i.id: i.date for i in facts.records.inspections}
+    by_id = {f.id: f for f in facts.records.findings}
     for finding in facts.records.findings:
         if finding.grade is Grade.SOUND or finding.resolved_by is not None:
             continue
         since = found_on.get(finding.inspection_id)
         if since is None:
             continue
-        days = (facts.today - since).days
+        first = first_found(finding, by_id, found_on)  # a repeat: when the fault was first seen
+        days = (facts.today - first).days
         due_by = finding.due_by
         late = due_by is not None and due_by < facts.today and since < facts.today
         if late:
@@ -378,8 +381,10 @@ def open_defects(facts: SiteFacts) -> Iterator[Result]:
         age = (
             f"found {since.isoformat()}"
             if days == 0
-            else f"open since {since.isoformat()} ({counted(days, 'day')})"
+            else f"open since {first.isoformat()} ({counted(days, 'day')})"
         )
+        if first < since:
+            age += f", still present on {since.isoformat()}"
         action = finding.remedial_action.strip().rstrip(".") or "put it right"
         yield facts.result(
             severity,

@@ -8,11 +8,14 @@ each in a compact table rather than a paragraph each.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from datetime import date
 
+from inspectkit.engine.history import first_found
 from inspectkit.model import Component, Finding, Grade, Inspection, Photo, SiteRecords
 from inspectkit.report.content import FindingRow, PhotoItem, SoundRow
 from inspectkit.store import Store
 from inspectkit.store.photos import photo_path
+from inspectkit.wording import counted
 
 #: The heading each grade to act on is listed under, most urgent first.
 PRIORITIES = {
@@ -39,18 +42,32 @@ def photo_item(store: Store, photo: Photo, components: dict[str, Component]) -> 
     return PhotoItem(photo.id, photo_path(store, photo.sha256), caption)
 
 
+def repeat_history(finding: Finding, records: SiteRecords, on: date) -> str:
+    """For a repeat defect, since when the fault has been open and what became of the first."""
+    if not finding.same_as_id:
+        return ""
+    dates = {i.id: i.date for i in records.inspections}
+    first = first_found(finding, {f.id: f for f in records.findings}, dates)
+    earlier = next((f for f in records.findings if f.id == finding.same_as_id), None)
+    when = dates.get(earlier.inspection_id) if earlier else None
+    days = (on - first).days
+    return (
+        f"The same fault as found {first.isoformat()}: open {counted(days, 'day')}. "
+        + (
+            f"The finding of {when.isoformat()} is closed as still present, see this one."
+            if when
+            else ""
+        )
+    ).strip()
+
+
 def visit_findings(
     store: Store,
     inspection: Inspection,
     records: SiteRecords,
     components: dict[str, Component],
-    history: dict[str, str] | None = None,
 ) -> VisitFindings:
-    """The visit's findings by priority, each with its photos; the sound ones as rows.
-
-    Args:
-        history: per finding id, how long its fault has been open (repeat defects).
-    """
+    """The visit's findings by priority, each with its photos; the sound ones as rows."""
     mine = [f for f in records.findings if f.inspection_id == inspection.id]
     photos = [p for p in records.photos if p.inspection_id == inspection.id]
 
@@ -79,7 +96,7 @@ def visit_findings(
                 due_by=finding.due_by.isoformat() if finding.due_by else "",
                 photos=tuple(photo_item(store, p, components) for p in own),
                 priority=PRIORITIES[finding.grade],
-                history=(history or {}).get(finding.id, ""),
+                history=repeat_history(finding, records, inspection.date),
             )
         )
     sound = tuple(

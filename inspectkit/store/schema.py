@@ -196,8 +196,13 @@ def _v3(db: sqlite_utils.Database) -> None:
     audit row saying so; otherwise the audit check would take the new columns for
     an edit made behind the tool's back.
     """
+    _add_columns(db, _V3_COLUMNS)
+
+
+def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
+    """Add columns to tables, with an audit row for each existing row they change."""
     at = utcnow().isoformat()
-    for table, columns in _V3_COLUMNS.items():
+    for table, columns in columns_by_table.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -220,6 +225,16 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
     return {row["id"]: row for row in rows}
 
 
+def _repeat_findings(db: sqlite_utils.Database) -> None:
+    """A finding can name the earlier open finding of the same fault it repeats."""
+    _add_columns(db, {"finding": ("same_as_id TEXT",)})
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _repeat_findings,
+)
 SCHEMA_VERSION = len(MIGRATIONS)
