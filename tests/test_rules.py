@@ -60,7 +60,8 @@ def test_over_range_fails_a_lower_limit_and_is_inconclusive_above_it():
 
 
 def test_per_electrode_limit_scales_with_the_number_of_electrodes():
-    # BS 6651 practice (from memory of the old standard, docs/sources.md "BS 6651"): each electrode ≤ 10 Ω × electrodes.
+    # BS 6651 practice (from memory of the old standard, docs/sources.md "BS 6651"):
+    # each electrode ≤ 10 Ω × electrodes.
     site = SiteBuilder("II", profile="bs-6651-practice")
     electrodes = [site.joint_with_electrode(n)[1] for n in (1, 2, 3)]
     visit = site.visit(date(2026, 3, 1))

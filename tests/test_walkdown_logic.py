@@ -132,7 +132,8 @@ def test_rise_on_the_baseline_is_watch(store: Store, site: WalkSite, visit: Insp
 
 def test_continuity_in_milliohms(store: Store, site: WalkSite, visit: Inspection) -> None:
     outcome = record_reading(store, visit.id, site.tag("DC-01").id, "continuity", "180 mΩ")
-    # Continuity limit 0.2 Ω: from memory (docs/sources.md, "Rules of the trade"), as set in the iec-62305-3 profile.
+    # Continuity limit 0.2 Ω: from memory (docs/sources.md, "Rules of the trade"), as set
+    # in the iec-62305-3 profile.
     assert outcome.verdict == "PASS 180 mΩ ≤ 200 mΩ"
     assert outcome.comparison == f"+80 % on {EARLIER.isoformat()}"
 
