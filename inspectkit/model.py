@@ -515,12 +515,36 @@ class Instrument(Record):
     calibration_due: date | None = None
 
 
+class Organisation(Record):
+    """An inspecting organisation (a contractor): the letterhead of its inspectors' reports.
+
+    Kept on each laptop, not carried in site bundles; an inspector whose organisation
+    is not here is reported under the default one.
+    """
+
+    table: ClassVar[str] = "organisation"
+
+    name: str = Field(min_length=1, max_length=200)
+    address: str = Field(default="", max_length=500)
+    phone: str = Field(default="", max_length=100)
+    email: str = Field(default="", max_length=200)
+    #: Path of the logo image; empty for none.
+    logo: str = Field(default="", max_length=1000)
+    primary: str = Field(default="#1F4E79", pattern=r"^#[0-9a-fA-F]{6}$")
+    accent: str = Field(default="#C98A1B", pattern=r"^#[0-9a-fA-F]{6}$")
+    #: The organisation made at first start: reports of inspectors without one use it.
+    is_default: bool = False
+
+
 class Inspector(Record):
     """A person who signs inspections."""
 
     table: ClassVar[str] = "inspector"
 
     name: str = Field(min_length=1, max_length=200)
+    #: The organisation the inspector works for; its letterhead is on their reports.
+    organisation_id: str | None = None
+    #: The organisation's name as text, kept from before organisations were records.
     organisation: str = Field(default="", max_length=200)
     qualification: str = Field(default="", max_length=200)
     #: Path of the inspector's PKCS#12 key file, relative to the data folder.

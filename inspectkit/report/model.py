@@ -38,6 +38,7 @@ from inspectkit.report.content import (
     TrendChart,
 )
 from inspectkit.report.findings import visit_findings
+from inspectkit.report.letterhead import organisation_of
 from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
 from inspectkit.store import Store, StoreError
 from inspectkit.store.queries import load_site_records
@@ -307,6 +308,8 @@ def build_report(
     check = check_site(records, profile, inspection.date)
     components = {c.id: c for c in records.components}
     inspector = store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
+    organisation = organisation_of(store, inspector)
+    org_name = organisation.name if organisation else (inspector.organisation if inspector else "")
 
     readings = reading_rows(inspection, records, check, profile, components)
     seen = visit_findings(store, inspection, records, components)
@@ -338,7 +341,7 @@ def build_report(
         Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
         Field("Inspector", inspector.name if inspector else "not recorded"),
         Field("Qualification", inspector.qualification if inspector else ""),
-        Field("Organisation", inspector.organisation if inspector else ""),
+        Field("Organisation", org_name),
         Field("Accompanied by", inspection.accompanied_by),
         Field("Weather", inspection.weather),
         Field("Soil", soil_words(inspection, visit_readings)),
@@ -379,7 +382,7 @@ def build_report(
         changes_since_last=inspection.changes_since_last,
         signer_name=inspector.name if inspector else "",
         signer_qualification=inspector.qualification if inspector else "",
-        signer_organisation=inspector.organisation if inspector else "",
+        signer_organisation=org_name,
         amends=amends_text,
         amendment=changes,
         general_photos=seen.other_photos,

@@ -14,9 +14,10 @@ from datetime import datetime
 from pathlib import Path
 
 from inspectkit.model import Inspection, InspectionState, Inspector, utcnow
-from inspectkit.report.branding import Branding, load_branding
+from inspectkit.report.branding import Branding
 from inspectkit.report.content import ReportContent
 from inspectkit.report.keys import key_path
+from inspectkit.report.letterhead import report_branding
 from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
 from inspectkit.report.sign import SignedReport, async_sign_pdf, sign_pdf
@@ -96,14 +97,14 @@ def prepare(
         sign: The report will be signed: the inspection must be a draft whose
             inspector has a key.
         keep_photos: Ids of the photos to include (all by default).
-        branding: The contractor's branding (templates/report.toml by default).
+        branding: The letterhead (by default the inspector's organisation's).
         now: The signing time (tests pass a fixed one).
 
     Raises:
         ReportError: no such inspection, already signed, or no inspector key.
     """
     inspection, content, key, signing_at = _plan(store, inspection_id, sign, keep_photos, now)
-    rendered = render_report(content, branding or load_branding())
+    rendered = render_report(content, branding or report_branding(store, inspection))
     return Prepared(inspection, content, rendered, key, signing_at)
 
 
@@ -188,7 +189,8 @@ async def export_report_async(
     inspection, content, key, signing_at = _plan(
         store, inspection_id, passphrase is not None, keep_photos, now
     )
-    rendered = await asyncio.to_thread(render_report, content, branding or load_branding())
+    letterhead = branding or report_branding(store, inspection)
+    rendered = await asyncio.to_thread(render_report, content, letterhead)
     prepared = Prepared(inspection, content, rendered, key, signing_at)
     signed = None
     if passphrase is not None and key is not None:

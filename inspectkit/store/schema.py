@@ -230,11 +230,33 @@ def _repeat_findings(db: sqlite_utils.Database) -> None:
     _add_columns(db, {"finding": ("same_as_id TEXT",)})
 
 
+def _organisations(db: sqlite_utils.Database) -> None:
+    """Inspecting organisations as records; an inspector belongs to one."""
+    db.executescript(
+        f"""
+        CREATE TABLE organisation (
+            id TEXT PRIMARY KEY,
+            name TEXT NOT NULL,
+            address TEXT NOT NULL DEFAULT '',
+            phone TEXT NOT NULL DEFAULT '',
+            email TEXT NOT NULL DEFAULT '',
+            logo TEXT NOT NULL DEFAULT '',
+            "primary" TEXT NOT NULL DEFAULT '#1F4E79',
+            accent TEXT NOT NULL DEFAULT '#C98A1B',
+            is_default INTEGER NOT NULL DEFAULT 0,
+            {_STAMPS}
+        );
+        """
+    )
+    _add_columns(db, {"inspector": ("organisation_id TEXT REFERENCES organisation(id)",)})
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
 MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _v1,
     _v2,
     _v3,
     _repeat_findings,
+    _organisations,
 )
 SCHEMA_VERSION = len(MIGRATIONS)
