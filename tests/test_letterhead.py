@@ -70,3 +70,25 @@ def test_the_demo_has_two_organisations_and_reports_follow_the_inspector(tmp_pat
         visit = store.select(Inspection, "site_id = ?", [site.id], order_by="date DESC")[0]
         inspector = store.get(Inspector, visit.inspector_id)
         assert report_branding(store, visit).name == organisations[inspector.organisation_id].name
+
+
+def test_organisations_commands_add_join_and_list(tmp_path: Path) -> None:
+    from typer.testing import CliRunner
+
+    from inspectkit.cli import app
+
+    db = tmp_path / "db.sqlite"
+    with Store.open(db) as store:
+        store.save(Inspector(name="Wren Attley"))
+    run = CliRunner()
+    added = run.invoke(app, ["organisations", "add", "Brackwater Test House", "--db", str(db)])
+    assert added.exit_code == 0, added.output
+    joined = run.invoke(
+        app, ["organisations", "join", "wren attley", "Brackwater Test House", "--db", str(db)]
+    )
+    assert joined.exit_code == 0 and "works for Brackwater Test House" in joined.output
+    listed = run.invoke(app, ["organisations", "--db", str(db)])
+    assert "Brackwater Test House: Wren Attley" in listed.output
+    assert "(default)" in listed.output  # the branding file's, made on first use
+    bad = run.invoke(app, ["organisations", "join", "wren attley", "Nobody Ltd", "--db", str(db)])
+    assert bad.exit_code == 2 and "no organisation" in bad.output

@@ -18,7 +18,8 @@ from inspectkit.cli.common import DbOption, resolve_db
 
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
-                   "upkeep", "inspection", "entries", "findings", "safety")
+                   "upkeep", "inspection", "entries", "findings", "safety",
+                   "organisations")
 
 app = typer.Typer(
     name="inspectkit",

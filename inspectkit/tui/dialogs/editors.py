@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from datetime import date
 
 from inspectkit.model import (
@@ -11,6 +12,7 @@ from inspectkit.model import (
     ElectrodeType,
     Inspector,
     Instrument,
+    Organisation,
     ProtectionLevel,
     Site,
 )
@@ -104,11 +106,25 @@ def component_dialog(
     return RecordDialog(title, Component, fields, base)
 
 
-def inspector_dialog() -> RecordDialog[Inspector]:
-    """Add an inspector, the person whose name goes on inspections."""
+def inspector_dialog(organisations: Sequence[Organisation] = ()) -> RecordDialog[Inspector]:
+    """Add an inspector, the person whose name goes on inspections.
+
+    With organisations on record the inspector is picked into one (its letterhead
+    goes on their reports); without, the organisation is a name typed in.
+    """
+    belongs = (
+        Field(
+            "organisation_id",
+            "Organisation",
+            choices=[(o.name, o.id) for o in organisations],
+            optional=True,
+        )
+        if organisations
+        else Field("organisation", "Organisation")
+    )
     fields = [
         Field("name", "Name", "the inspector's full name"),
-        Field("organisation", "Organisation"),
+        belongs,
         Field("qualification", "Qualification"),
     ]
     return RecordDialog("New inspector", Inspector, fields, {})
