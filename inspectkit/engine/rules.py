@@ -225,8 +225,8 @@ def lapsed_calibration(facts: SiteFacts) -> Iterator[Result]:
             "calibration",
             f"{counted(len(readings), 'reading')} of {_day(readings[0])} "
             f"({', '.join(tags)}) {was_were(len(readings))} taken with "
-            f"{instrument.description} {instrument.serial}, whose calibration lapsed on "
-            f"{due.isoformat() if due else '?'}: "
+            f"the {instrument.description}, serial {instrument.serial}, whose calibration "
+            f"lapsed on {due.isoformat() if due else '?'}: "
             f"{'it proves' if len(readings) == 1 else 'they prove'} nothing; retake "
             f"{'it' if len(readings) == 1 else 'them'} with a calibrated instrument.",
             component_id=readings[0].component_id if len(readings) == 1 else None,
