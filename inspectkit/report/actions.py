@@ -81,14 +81,22 @@ def headline(
     parts = ", ".join(f"{by_word[w]} {w}" for w in order if by_word[w])
     tally = Counter(row.result.split(":")[0].lower() for row in readings)
     grades = Counter(f.grade.lower() for f in findings)
+    kinds = ", ".join(f"{n} {_GRADE_WORDS.get(g, (g, g))[n != 1]}" for g, n in grades.most_common())
     return (
-        f"{counted(total, 'action')}" + (f": {parts}" if parts else ": nothing to do"),
+        f"{counted(total, 'action')}: {parts}" if total else "No action: nothing to do",
         f"{counted(len(readings), 'reading')}: "
         + (", ".join(f"{n} {w}" for w, n in tally.most_common()) or "none taken"),
-        f"{counted(len(findings), 'finding')} to act on"
-        + (f" ({', '.join(f'{n} {g}' for g, n in grades.most_common())})" if grades else "")
+        (
+            f"{counted(len(findings), 'finding')} to act on ({kinds})"
+            if findings
+            else "No finding to act on"
+        )
         + f"; {counted(len(sound), 'component')} found sound",
     )
+
+
+#: How a count of findings of a grade is written: (one, many).
+_GRADE_WORDS = {"defect": ("defect", "defects"), "needs attention": ("needing attention",) * 2}
 
 
 def legend() -> tuple[tuple[str, str], ...]:
