@@ -10,6 +10,7 @@ bad one is reported with the file and the key so it can be fixed.
 from __future__ import annotations
 
 import tomllib
+from functools import cache
 from pathlib import Path
 from typing import Any
 
@@ -236,3 +237,17 @@ def load_profile(name: str) -> Profile:
 def load_all_profiles() -> dict[str, Profile]:
     """Every profile, checked; used where many sites are checked at once."""
     return {name: load_profile(name) for name in profile_paths()}
+
+
+@cache
+def _uses_levels(name: str) -> bool:
+    """Whether the profile of that name grades sites by level (an unreadable one: yes)."""
+    try:
+        return load_profile(name).levels
+    except ProfileError:
+        return True
+
+
+def level_shown(profile: str, level: str, none: str | None = "—") -> str | None:
+    """A site's level as lists show it: `none` under a profile whose standard has no levels."""
+    return str(level) if _uses_levels(profile) else none

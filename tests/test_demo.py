@@ -447,7 +447,9 @@ def test_cli_writes_the_demo_and_lists_its_sites(tmp_path: Path) -> None:
     sites = json.loads(listed.stdout)
     assert len(sites) == len(load_scenario().site)
     assert all({"id", "name", "protection_level"} <= set(s) for s in sites)
-    assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV"}
+    # NFPA 780 uses no protection levels: sites held to it list none (docs/sources.md).
+    assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV", None}
+    assert all(s["protection_level"] is None for s in sites if s["profile"] == "nfpa-780")
     assert "fuel depot" in " ".join(s["use"] for s in sites) and all(s["installer"] for s in sites)
     again = runner.invoke(app, ["demo", "--out", str(out)])
     assert again.exit_code == 2

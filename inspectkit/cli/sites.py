@@ -5,6 +5,7 @@ from __future__ import annotations
 import typer
 
 from inspectkit.cli.common import DbOption, JsonOption, emit_json, open_store
+from inspectkit.profiles import level_shown
 from inspectkit.store.queries import site_summaries
 
 
@@ -22,7 +23,7 @@ def sites(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = False)
                     "town": s.site.town,
                     "use": s.site.use,
                     "installer": s.site.installer,
-                    "protection_level": s.site.protection_level.value,
+                    "protection_level": level_shown(s.site.profile, s.site.protection_level, None),
                     "profile": s.site.profile,
                     "critical": s.site.critical,
                     "explosive_risk": s.site.explosive_risk,
@@ -44,7 +45,8 @@ def sites(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = False)
     for s in summaries:
         last = s.last_visit.isoformat() if s.last_visit else "never"
         typer.echo(
-            f"{s.site.name:<{width}}  {s.site.protection_level.value:<5}  {last:<10}  "
+            f"{s.site.name:<{width}}  {level_shown(s.site.profile, s.site.protection_level):<5}  "
+            f"{last:<10}  "
             f"{(s.last_kind or '-'):<11}  {s.site.client}"
         )
 
