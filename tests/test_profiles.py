@@ -170,3 +170,13 @@ def test_broken_toml() -> None:
     with pytest.raises(ProfileError, match="not valid TOML"):
         load_profile("broken")
     assert path.exists()
+
+
+def test_the_site_form_does_not_ask_a_level_of_a_site_whose_standard_has_none() -> None:
+    from inspectkit.model import Site
+    from inspectkit.tui.dialogs.editors import site_dialog
+
+    nfpa = site_dialog(Site(name="Grain Store", protection_level="IV", profile="nfpa-780"))
+    iec = site_dialog(Site(name="Depot", protection_level="II", profile="iec-62305-3"))
+    assert "protection_level" not in [f.name for f in nfpa.fields]
+    assert "protection_level" in [f.name for f in iec.fields]

@@ -16,7 +16,7 @@ from inspectkit.model import (
     ProtectionLevel,
     Site,
 )
-from inspectkit.profiles import load_all_profiles
+from inspectkit.profiles import level_shown, load_all_profiles
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
 
 DATE_HINT = "a date as YYYY-MM-DD"
@@ -66,6 +66,10 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("notes", "Notes"),
     ]
     base = site.model_dump() if site else {"profile": "iec-62305-3"}
+    if site is not None and level_shown(site.profile, site.protection_level, None) is None:
+        # Its standard has no protection levels: the field is not asked (the stored value
+        # stays as it was, unused).
+        fields = [f for f in fields if f.name != "protection_level"]
     return RecordDialog("Edit site" if site else "New site", Site, fields, base)
 
 
