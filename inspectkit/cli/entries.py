@@ -21,7 +21,7 @@ from inspectkit.model import (
     SoilCondition,
 )
 from inspectkit.repeats import RepeatError, mark_repeat
-from inspectkit.tui.preferences import Preferences
+from inspectkit.store.preferences import Preferences
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
