@@ -420,3 +420,21 @@ def test_too_long_a_detail_names_the_field_and_changes_nothing(
     assert err.value.field == field
     assert f"at most {limit} characters" in str(err.value)
     assert store.get(Inspection, visit.id) == before
+
+
+def test_a_reading_with_a_lapsed_instrument_is_to_retake_as_it_is_typed(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    from inspectkit.model import Instrument
+
+    # A lapsed instrument's reading proves nothing (common practice): not a fail even
+    # above the limit, and not a pass.
+    lapsed = store.save(
+        Instrument(description="Earth tester", serial="ET-OLD", calibration_due=date(2020, 1, 1))
+    )
+    outcome = record_reading(
+        store, visit.id, site.tag("ER-02").id, "earth_isolated", "40", instrument_id=lapsed.id
+    )
+    assert outcome.severity is Severity.RETAKE
+    assert outcome.verdict.startswith("RETAKE 40 Ω")
+    assert "retake it with a calibrated instrument" in outcome.messages[0]
