@@ -84,8 +84,12 @@ def headline(
     kinds = ", ".join(f"{n} {_GRADE_WORDS.get(g, (g, g))[n != 1]}" for g, n in grades.most_common())
     return (
         f"{counted(total, 'action')}: {parts}" if total else "No action: nothing to do",
-        f"{counted(len(readings), 'reading')}: "
-        + (", ".join(f"{n} {w}" for w, n in tally.most_common()) or "none taken"),
+        (
+            f"{counted(len(readings), 'reading')}: "
+            + ", ".join(f"{n} {w}" for w, n in tally.most_common())
+            if readings
+            else "No reading taken at this visit"
+        ),
         (
             f"{counted(len(findings), 'finding')} to act on ({kinds})"
             if findings
