@@ -22,6 +22,7 @@ from inspectkit.model import (
     Quantity,
     SoilCondition,
 )
+from inspectkit.retiring import in_service
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
@@ -231,7 +232,7 @@ class WalkdownScreen(Screen[None]):
     def _instrument_options(self) -> list[tuple[str, str]]:
         today = self.app.today if hasattr(self.app, "today") else None
         options = []
-        for instrument in self.store.select(Instrument, order_by="description, serial"):
+        for instrument in in_service(self.store, Instrument, "description, serial"):
             label = f"{instrument.description} {instrument.serial}"
             due = instrument.calibration_due
             if due is not None and today is not None and due < today:
@@ -245,8 +246,14 @@ class WalkdownScreen(Screen[None]):
         return chosen if chosen in known else None
 
     def on_screen_resume(self) -> None:
-        # Components may have been edited on another screen meanwhile.
+        """Back from another screen: components, instruments or the choice may have changed."""
         self.context = site_context(self.store, self.context.site.id)
+        select = self.query_one("#instrument", Select)
+        options = self._instrument_options()
+        chosen = self._instrument_in_use()
+        with select.prevent(Select.Changed):
+            select.set_options(options)
+            select.value = chosen or Select.NULL
 
     def on_mount(self) -> None:
         if not self.stops:
