@@ -10,28 +10,25 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import Header, OptionList, Select, Static
+from textual.widgets import Header, OptionList, Static
 from textual.widgets.option_list import Option
 
 from inspectkit.model import (
     Finding,
     Grade,
     Inspection,
-    Instrument,
     Method,
     Quantity,
-    SoilCondition,
 )
-from inspectkit.retiring import in_service
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
-from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.steady_footer import SteadyFooter
 from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
 from inspectkit.tui.widgets.stop_pane import StopPane, StopView, photo_label
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
+from inspectkit.tui.widgets.walk_bar import WalkBar
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
@@ -51,14 +48,11 @@ from inspectkit.walkdown import (
     record_reading,
     saved_entries,
     set_details,
-    set_soil,
     site_context,
     walk_for,
     withdraw_reading,
 )
 
-#: Setting that remembers the instrument in use, shared with the settings screen.
-INSTRUMENT_SETTING = "instrument_id"
 #: How many ungraded tags the finish question names before "and N more".
 _UNGRADED_SHOWN = 20
 
@@ -202,21 +196,9 @@ class WalkdownScreen(Screen[None]):
         self.title = site.name
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
-        with Horizontal(id="bar"):
-            self._where = Static(id="where")
-            yield self._where
-            yield PickList(
-                self._instrument_options(),
-                prompt="instrument…",
-                value=self._instrument_in_use() or Select.NULL,
-                id="instrument",
-            )
-            yield PickList(
-                [(f"ground {s.value}", s.value) for s in SoilCondition],
-                prompt="ground…",
-                value=inspection.soil.value if inspection.soil else Select.NULL,
-                id="soil",
-            )
+        self.bar = WalkBar(self.store, self.inspection_id, inspection.soil,
+                           getattr(self.app, "today", None))  # fmt: skip
+        yield self.bar
         with Horizontal(id="body"):
             self._stop_list = StopList(*self._options(), id="stops")
             self._stop_list.on_go = self.move_now
@@ -229,31 +211,10 @@ class WalkdownScreen(Screen[None]):
                 yield Static("This site has no components in service to inspect.", id="detail")
         yield SteadyFooter()
 
-    def _instrument_options(self) -> list[tuple[str, str]]:
-        today = self.app.today if hasattr(self.app, "today") else None
-        options = []
-        for instrument in in_service(self.store, Instrument, "description, serial"):
-            label = f"{instrument.description} {instrument.serial}"
-            due = instrument.calibration_due
-            if due is not None and today is not None and due < today:
-                label += " (calibration lapsed)"
-            options.append((label, instrument.id))
-        return options
-
-    def _instrument_in_use(self) -> str | None:
-        chosen = self.store.get_setting(INSTRUMENT_SETTING)
-        known = {value for _, value in self._instrument_options()}
-        return chosen if chosen in known else None
-
     def on_screen_resume(self) -> None:
         """Back from another screen: components, instruments or the choice may have changed."""
         self.context = site_context(self.store, self.context.site.id)
-        select = self.query_one("#instrument", Select)
-        options = self._instrument_options()
-        chosen = self._instrument_in_use()
-        with select.prevent(Select.Changed):
-            select.set_options(options)
-            select.value = chosen or Select.NULL
+        self.bar.refresh_instruments()
 
     def on_mount(self) -> None:
         if not self.stops:
@@ -376,12 +337,7 @@ class WalkdownScreen(Screen[None]):
         """The position on the walk, and how many components are done (counted after a save)."""
         if count or self._done is None:
             self._done = sum(1 for s in self.stops if self._complete(s))
-        self._where.update(
-            Text.assemble(
-                (f" {self.index + 1} of {len(self.stops)} ", "bold reverse"),
-                f"  {self._done} done",
-            )
-        )
+        self.bar.show_where(self.index, len(self.stops), self._done)
 
     def keep_unsaved(self) -> None:
         """Save every changed field of the stop in view; keep refused text as typed."""
@@ -410,8 +366,7 @@ class WalkdownScreen(Screen[None]):
     def _save_reading(
         self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool
     ) -> ReadingOutcome:
-        soil = self.query_one("#soil", Select).value
-        instrument = self.query_one("#instrument", Select).value
+        soil = self.bar.soil
         outcome = record_reading(
             self.store,
             self.inspection_id,
@@ -419,8 +374,8 @@ class WalkdownScreen(Screen[None]):
             quantity,
             text,
             method=method,
-            instrument_id=None if instrument is Select.NULL else str(instrument),
-            soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
+            instrument_id=self.bar.instrument_id,
+            soil=soil if quantity in JOINT_FOR else None,
             unreliable=doubtful,
             context=self.context,
         )
@@ -466,23 +421,6 @@ class WalkdownScreen(Screen[None]):
         field.input.value = ""
         field.set_label(photo_label(count))
         field.query_one(".status").scroll_visible(animate=False)
-
-    @on(Select.Changed, "#instrument")
-    def _instrument_changed(self, event: Select.Changed) -> None:
-        if event.value is not Select.NULL and event.value != self._instrument_in_use():
-            self.store.set_setting(INSTRUMENT_SETTING, str(event.value))
-            self.notify("Instrument remembered for the next readings")
-
-    @on(Select.Changed, "#soil")
-    def _soil_changed(self, event: Select.Changed) -> None:
-        value = None if event.value is Select.NULL else str(event.value)
-        current = self.inspection.soil
-        if value == (current.value if current else None):
-            return
-        try:
-            set_soil(self.store, self.inspection_id, value)
-        except WalkdownError as exc:
-            self.notify(str(exc), severity="error")
 
     # ------------------------------------------------------------- actions
 
