@@ -47,7 +47,7 @@ class SettingsScreen(Screen[None]):
             tooltip="Choose the rule set the highlighted site is held to",
         ),
         Binding(
-            "r", "retire", "Retire", id="settings.retire",
+            "r", "retire", "Retire", id="settings.retire", show=False,
             tooltip="Retire the chosen inspector or instrument (the one whose picker has focus)",
         ),
     ]
