@@ -17,7 +17,7 @@ from textual.widgets import Select, Static
 from inspectkit.model import Instrument, SoilCondition
 from inspectkit.retiring import in_service
 from inspectkit.store import Store
-from inspectkit.tui.preferences import INSTRUMENT_SETTING
+from inspectkit.store.preferences import INSTRUMENT_SETTING
 from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.walkdown import WalkdownError, set_soil
 
