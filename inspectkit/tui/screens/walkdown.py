@@ -154,6 +154,7 @@ class WalkdownScreen(Screen[None]):
         self._by_id: dict[str, Stop] = {}
         self._done: int | None = None
         self._place: str | None = None
+        self._finished = False
         #: What `keep_typing` last kept: the unsaved texts and the component in view.
         self._kept: tuple[dict[tuple[str, str], str], str] = ({}, "")
 
@@ -246,7 +247,7 @@ class WalkdownScreen(Screen[None]):
 
     def keep_typing(self) -> None:
         """Keep in the database what is typed and not saved, if it changed since last time."""
-        if not self.stops or not self.pane.component_id:
+        if not self.stops or not self.pane.component_id or self._finished:
             return
         unsaved = self._unsaved()
         if unsaved != self._kept:
@@ -455,6 +456,7 @@ class WalkdownScreen(Screen[None]):
                 self.notify(str(exc), severity="error")
                 return
             forget_drafts(self.store, self.inspection_id)
+            self._finished = True
             self.notify("Inspection marked complete")
             self.dismiss()
 
