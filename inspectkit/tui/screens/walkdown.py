@@ -434,13 +434,9 @@ class WalkdownScreen(Screen[None]):
         self.stop_list.focus()
 
     def action_go_to_tag(self) -> None:
-        async def go(tag: str | None) -> None:
-            if tag is None:
-                return
-            index = next(i for i, s in enumerate(self.stops) if s.component.tag == tag)
-            await self.show_stop(index)
-
-        self.app.push_screen(TagPrompt([s.component.tag for s in self.stops]), go)
+        """Ask for a tag; the walk moves as Enter arrives, before the prompt closes."""
+        tags = [s.component.tag for s in self.stops]
+        self.app.push_screen(TagPrompt(tags, lambda tag: self.move_now(tags.index(tag))))
 
     def action_finish(self) -> None:
         if self.stops:
