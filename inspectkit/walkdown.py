@@ -17,11 +17,13 @@ from typing import Any
 
 from pydantic import ValidationError
 
+from inspectkit import intake
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import Result
 from inspectkit.model import (
+    QUANTITIES_FOR,
     WALKING_ORDER,
     Component,
     ComponentKind,
@@ -47,25 +49,6 @@ from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif
 from inspectkit.units import UnitError, format_value, parse
-
-#: What can be measured on each kind of component during a walkdown, in entry order.
-#: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
-#: are judged by eye only. A test joint with an electrode below it asks only for the
-#: combined reading: the isolated one is the electrode's (see `walking_order`).
-QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
-    ComponentKind.AIR_TERMINAL: (),
-    ComponentKind.AIR_CONDUCTOR: (Quantity.CONTINUITY,),
-    ComponentKind.DOWN_CONDUCTOR: (Quantity.CONTINUITY,),
-    ComponentKind.TEST_JOINT: (
-        Quantity.EARTH_ISOLATED,
-        Quantity.EARTH_COMBINED,
-        Quantity.SOIL_RESISTIVITY,
-    ),
-    ComponentKind.EARTH_ELECTRODE: (Quantity.EARTH_ISOLATED, Quantity.SOIL_RESISTIVITY),
-    ComponentKind.BONDING: (Quantity.BONDING,),
-    ComponentKind.SPD: (),
-    ComponentKind.STRIKE_COUNTER: (Quantity.STRIKE_COUNT,),
-}
 
 #: The method assumed when none is chosen: the one most instruments in the trade use.
 DEFAULT_METHOD: dict[Quantity, Method] = {
@@ -332,26 +315,21 @@ def record_reading(
         joint_state: Open or closed; taken from the quantity for earth readings.
         unreliable: The inspector doubts the reading (leads, probes, weather): it is
             kept but does not count as a pass.
-        taken_at: When it was read (default: now).
+        taken_at: When it was read (default: now); it must lie on the visit's day
+            (`intake.refusal`).
         context: The site's profile and parts, if the caller holds them already
             (the screen does, for the whole walk).
 
     Raises:
-        WalkdownError: the text, method, state or note is not valid, or the
-            inspection is signed; `field` says which.
+        WalkdownError: the text, method, state or note is not valid; the quantity,
+            time or instrument does not fit (`intake.refusal`); or the inspection is
+            signed or finished; `field` says which.
     """
     inspection = _open_inspection(store, inspection_id)
     if context is None or context.site.id != inspection.site_id:
         context = site_context(store, inspection.site_id)
     component = context.part(component_id)
     quantity = _validated_enum(Quantity, quantity, "quantity")
-    if quantity not in QUANTITIES_FOR[component.kind]:
-        allowed = ", ".join(q.label for q in QUANTITIES_FOR[component.kind]) or "none"
-        raise WalkdownError(
-            "quantity",
-            f"a {quantity.label} is not measured on a {component.kind.label}; "
-            f"readings here: {allowed}",
-        )
     try:
         measured = parse(text, quantity)
     except UnitError as exc:
@@ -375,7 +353,13 @@ def record_reading(
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
-    reading = _save(store, _validated(Reading, data, now=now))
+    reading = _validated(Reading, data, now=now)
+    instrument = context.instrument(store, reading.instrument_id) if reading.instrument_id else None
+    window = intake.reading_window(store)
+    refused = intake.refusal(reading, inspection, component, instrument, window)
+    if refused is not None:
+        raise WalkdownError(refused.field, str(refused))
+    reading = _save(store, reading)
     return judge_reading(store, inspection, reading, context)
 
 

@@ -293,6 +293,8 @@ def test_readings_add_is_the_same_command(demo: Path) -> None:
         "--quantity",
         "earth_isolated",
         "4.2",
+        "--taken-at",
+        TAKEN,
     )
     assert result.exit_code == 0, result.output
     assert "PASS 4.2 Ω ≤ 10 Ω" in result.stdout

@@ -18,7 +18,7 @@ from dateutil.relativedelta import relativedelta
 from inspectkit.demo.photos import draw_photo
 from inspectkit.demo.scenario import Scenario, load_scenario
 from inspectkit.demo.visits import DEMO_USER, DemoContext, DemoRecords, Shot, SiteHistory, stamps
-from inspectkit.model import Inspector, Instrument, Photo
+from inspectkit.model import Inspector, Instrument, InstrumentKind, Photo
 from inspectkit.store import Store
 from inspectkit.store.photos import put_file, read_exif
 
@@ -39,6 +39,10 @@ def build_demo(path: Path, anchor: date) -> Path:
             store.save_all(demo.records, touch=False)
             store.save_all(photos, touch=False)
     return path
+
+
+#: The kind of instrument the scenario's `use` names.
+_KIND_OF_USE = {"earth": InstrumentKind.EARTH_TESTER, "low_ohm": InstrumentKind.LOW_OHMMETER}
 
 
 def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
@@ -66,6 +70,7 @@ def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
             description=spec.description,
             serial=spec.serial,
             calibration_due=anchor + timedelta(days=spec.calibration_due_days),
+            kind=_KIND_OF_USE[spec.use],
             **since,
         )
         demo.instruments[spec.key] = (instrument, spec.use)

@@ -34,6 +34,7 @@ from inspectkit.model import (
     Instrument,
     JointState,
     Method,
+    NotInspected,
     Quantity,
     Reading,
     Record,
@@ -211,6 +212,7 @@ class SiteHistory:
         self.visits: list[_Visit] = []
         self.readings: list[Reading] = []
         self.findings: list[Finding] = []
+        self.skipped: list[NotInspected] = []
 
     # ----------------------------------------------------------- the visits
 
@@ -421,7 +423,7 @@ class SiteHistory:
 
     def _build(self) -> None:
         spec = self.spec
-        named = [*spec.failing_earth, *spec.failing_continuity, *spec.drifting_earth]
+        named = [*spec.failing_earth, *spec.failing_continuity, *spec.drifting_earth, *spec.skipped]
         for tag in [*(n.tag for n in named), *spec.missing_readings]:
             self.system.tagged(tag)
         for kind, day in self._schedule():
@@ -463,10 +465,19 @@ class SiteHistory:
             latest.inspection = latest.inspection.model_copy(update=latest_fields)
         self._minor_findings()
         self._scenario_findings(refs)
+        self._skip_parts(latest)
+        self._grade_the_rest(latest)
         if spec.draft_today:
             self._draft(count, usual)
+        opened = {r.inspection_id for r in self.readings if r.joint_state is JointState.OPEN}
         for visit in self.visits:
-            visit.inspection = visit.inspection.model_copy(update={"updated_at": visit.clock})
+            confirmed = visit.inspection.finished and visit.inspection.id in opened
+            visit.inspection = visit.inspection.model_copy(
+                update={
+                    "updated_at": visit.clock,
+                    "joints_reconnected": True if confirmed else None,
+                }
+            )
         self.demo.out.records.extend(
             [
                 self.site,
@@ -474,8 +485,33 @@ class SiteHistory:
                 *(v.inspection for v in self.visits),
                 *self.readings,
                 *self.findings,
+                *self.skipped,
             ]
         )
+
+    def _skip_parts(self, visit: _Visit) -> None:
+        """The components the scenario says the latest complete inspection could not inspect."""
+        for part in self.spec.skipped:
+            at = visit.tick(self.rng)
+            self.skipped.append(
+                NotInspected(
+                    id=self.demo.new_id(),
+                    inspection_id=visit.inspection.id,
+                    component_id=self.system.tagged(part.tag).id,
+                    reason=part.reason,
+                    text=part.text,
+                    **stamps(at, visit.inspection.updated_by),
+                )
+            )
+
+    def _grade_the_rest(self, visit: _Visit) -> None:
+        """Every other component of the latest complete inspection found sound, as a walkdown
+        grades each one; only what the scenario sets is found otherwise."""
+        done = {f.component_id for f in self.findings if f.inspection_id == visit.inspection.id}
+        done |= {s.component_id for s in self.skipped}
+        for component in self.system.components:
+            if component.id not in done:
+                self._finding(visit, component, Grade.SOUND, ("", "", ""), None, None)
 
     def _finding(
         self,

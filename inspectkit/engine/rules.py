@@ -126,10 +126,6 @@ def _shown(reading: Reading) -> str:
     return format_value(reading.value, reading.quantity, reading.over_range, digits=3)
 
 
-def _ohms(value: float) -> str:
-    return format_value(value, Quantity.EARTH_ISOLATED, digits=3)
-
-
 @cache
 def _limit_text(limit: float, quantity: Quantity) -> str:
     """A limit as the messages show it; a profile has few, and thousands of readings meet them."""
@@ -170,33 +166,107 @@ def reading_limits(facts: SiteFacts) -> Iterator[Result]:
             )
 
 
-def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
-    """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
-    step = facts.profile.limits.rise_fraction
-    for trend in facts.trends:  # the trend has already sorted out the readings that count
-        values, days = trend.values, trend.days
-        if len(values) < 2:
-            continue
-        last = values[-1]
+#: What to look at when a reading has risen, by quantity.
+RISE_ACTIONS = {
+    Quantity.EARTH_ISOLATED: "investigate the electrode and its connection",
+    Quantity.EARTH_COMBINED: "check the test joints and electrodes before the limit is reached",
+    Quantity.CONTINUITY: "check the joints and fixings along the conductor",
+    Quantity.BONDING: "clean and tighten the bond",
+}
+
+
+@dataclass(frozen=True)
+class _Series:
+    """The readings of one component and quantity that count for a rise, oldest first."""
+
+    facts: SiteFacts
+    component_id: str
+    tag: str
+    quantity: Quantity
+    values: list[float]
+    days: list[str]
+    reading_ids: list[str]
+
+    def rise(self) -> Result | None:
+        """`watch` when the last value is up by more than the profile's step on the first
+        (the baseline) or on the one before it; the baseline is named first."""
+        step = self.facts.profile.limits.rise_step(self.quantity)
+        if len(self.values) < 2:
+            return None
+        last = self.values[-1]
+        what = "electrode" if self.quantity is Quantity.EARTH_ISOLATED else self.quantity.label
         for name, at in (("baseline", 0), ("previous reading", -2)):
-            earlier = values[at]
+            earlier = self.values[at]
             if earlier and last > earlier * (1 + step):
-                rise = 100 * (last / earlier - 1)
-                yield facts.result(
+                shown = [format_value(v, self.quantity, digits=3) for v in (last, earlier)]
+                return self.facts.result(
                     Severity.WATCH,
                     "rise",
-                    f"{trend.component_tag} electrode {_ohms(last)} on {days[-1]} is "
-                    f"{rise:.0f} % above its {name} of {_ohms(earlier)} ({days[at]}), "
-                    f"more than the {100 * step:.0f} % allowed: investigate the electrode and "
-                    "its connection.",
-                    component_id=trend.component_id,
-                    component_tag=trend.component_tag,
-                    reading_id=trend.reading_ids[-1],
+                    f"{self.tag} {what} {shown[0]} on {self.days[-1]} is "
+                    f"{100 * (last / earlier - 1):.0f} % above its {name} of {shown[1]} "
+                    f"({self.days[at]}), more than the {100 * step:.0f} % allowed: "
+                    f"{RISE_ACTIONS[self.quantity]}.",
+                    component_id=self.component_id,
+                    component_tag=self.tag,
+                    reading_id=self.reading_ids[-1],
                     value=last,
                     limit=earlier * (1 + step),
-                    unit=Quantity.EARTH_ISOLATED.unit,
+                    unit=self.quantity.unit,
                 )
-                break
+        return None
+
+
+def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
+    """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
+    for trend in facts.trends:  # the trend has already sorted out the readings that count
+        found = _Series(
+            facts,
+            trend.component_id,
+            trend.component_tag,
+            Quantity.EARTH_ISOLATED,
+            list(trend.values),
+            [str(day) for day in trend.days],
+            list(trend.reading_ids),
+        ).rise()
+        if found is not None:
+            yield found
+
+
+def series_rises(facts: SiteFacts) -> Iterator[Result]:
+    """The whole system's, a conductor's or a bond's latest reading up by more than the
+    profile's step on its baseline or previous reading, as for an electrode.
+
+    Counted as for a trend: readings that prove nothing (doubtful, over-range, taken
+    with a lapsed instrument) are left out, and a latest reading of that sort says
+    nothing of a rise.
+    """
+    for (component_id, quantity), readings in facts.history.items():
+        if quantity not in RISE_ACTIONS or quantity is Quantity.EARTH_ISOLATED:
+            continue
+        counted = [r for r in readings if _proves(facts, r)]
+        if len(counted) < 2 or counted[-1] is not readings[-1]:
+            continue
+        found = _Series(
+            facts,
+            component_id,
+            facts.tag(component_id),
+            quantity,
+            [r.value for r in counted if r.value is not None],
+            [_day(r) for r in counted],
+            [r.id for r in counted],
+        ).rise()
+        if found is not None:
+            yield found
+
+
+def _proves(facts: SiteFacts, reading: Reading) -> bool:
+    """A reading that can show a rise: a number, not doubted, from a calibrated instrument."""
+    return (
+        reading.value is not None
+        and not reading.over_range
+        and not reading.unreliable
+        and not calibration_lapsed(facts.records, reading)
+    )
 
 
 def lapsed_calibration(facts: SiteFacts) -> Iterator[Result]:
@@ -410,6 +480,7 @@ def drifting_electrodes(facts: SiteFacts) -> Iterator[Result]:
 RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     reading_limits,
     electrode_rises,
+    series_rises,
     lapsed_calibration,
     doubtful_readings,
     strike_counters,
@@ -424,6 +495,7 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
 SERIES_RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     reading_limits,
     electrode_rises,
+    series_rises,
     lapsed_calibration,
     doubtful_readings,
     strike_counters,

@@ -196,8 +196,46 @@ def _v3(db: sqlite_utils.Database) -> None:
     audit row saying so; otherwise the audit check would take the new columns for
     an edit made behind the tool's back.
     """
+    _add_columns(db, _V3_COLUMNS)
+
+
+#: An instrument's kind, the joints' reconnection on finishing, components not inspected.
+_VISIT_RECORDS_COLUMNS = {
+    "instrument": ("kind TEXT",),
+    "inspection": (
+        "joints_reconnected INTEGER",
+        "reconnection_note TEXT NOT NULL DEFAULT ''",
+    ),
+}
+
+_VISIT_RECORDS_TABLES = (
+    f"""CREATE TABLE not_inspected (
+    id TEXT PRIMARY KEY,
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    reason TEXT NOT NULL,
+    text TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+)""",
+    "CREATE INDEX not_inspected_inspection ON not_inspected(inspection_id)",
+)
+
+
+def _visit_records(db: sqlite_utils.Database) -> None:
+    """Which kind each instrument is, whether the test joints were reconnected on
+    finishing, and the components a visit could not inspect, with why.
+
+    Existing instruments get no kind (they are not judged until one is given).
+    """
+    _add_columns(db, _VISIT_RECORDS_COLUMNS)
+    for statement in _VISIT_RECORDS_TABLES:  # not executescript: it would commit halfway
+        db.execute(statement)
+
+
+def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
+    """Add columns, with an audit row per existing row saying the migration changed it."""
     at = utcnow().isoformat()
-    for table, columns in _V3_COLUMNS.items():
+    for table, columns in columns_by_table.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -221,5 +259,10 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
 
 
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _visit_records,
+)
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -37,7 +37,15 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Literal
 
-from inspectkit.model import MODEL_FOR_TABLE, Record
+from inspectkit import intake
+from inspectkit.model import (
+    MODEL_FOR_TABLE,
+    Component,
+    Inspection,
+    InspectionState,
+    Instrument,
+    Record,
+)
 from inspectkit.store import FrozenRecordError, Store
 from inspectkit.store.exchange import DELETABLE, deleted_here
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
@@ -51,7 +59,7 @@ Side = Literal["ours", "theirs"]
 _Write = tuple[str, dict[str, Any], str]
 _CHUNK = 500
 #: Records made in an inspection, frozen with it once it is signed.
-_PARTS = frozenset({"reading", "finding", "photo"})
+_PARTS = frozenset({"reading", "finding", "photo", "not_inspected"})
 #: Fields that point at a record of the same table; parents are written first.
 _SELF_REFERENCES = {"component": "parent_id", "inspection": "amends_id"}
 
@@ -258,7 +266,56 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
             if kept == "theirs":
                 plan.writes.append((table, theirs, "updated"))
     _plan_removals(store, bundle, plan)
+    _check_readings(store, plan)
     return plan
+
+
+def _check_readings(store: Store, plan: _Plan) -> None:
+    """Refuse a bundle bringing a reading the walkdown would refuse (`inspectkit.intake`).
+
+    Only the readings this import writes are judged; rows both sides hold already are
+    not judged again. A visit signed on either side is final as signed: the store
+    keeps ours (see `_apply`). A reading made after its visit was last changed
+    (finished) is a reading added to a finished visit.
+    """
+    def record(model: type[Any], record_id: str | None) -> Any:
+        if not record_id:
+            return None
+        return plan.records.get(model.table, {}).get(record_id) or store.get(model, record_id)
+
+    def signed(inspection_id: str) -> bool:
+        theirs = plan.records.get("inspection", {}).get(inspection_id)
+        copies = (theirs, store.get(Inspection, inspection_id))
+        return any(c is not None and c.state is InspectionState.SIGNED for c in copies)
+
+    written = [
+        plan.records[t][row["id"]]
+        for t, row, _ in plan.writes
+        if t == "reading" and not signed(row["inspection_id"])
+    ]
+    window = intake.reading_window(store)
+    problems = []
+    for reading in written:
+        inspection = record(Inspection, reading.inspection_id)
+        if inspection.finished and reading.created_at <= inspection.updated_at:
+            # Made before the visit was finished: judged as the open visit it was made in.
+            inspection = inspection.model_copy(update={"finished": False})
+        refused = intake.refusal(
+            reading,
+            inspection,
+            record(Component, reading.component_id),
+            record(Instrument, reading.instrument_id),
+            window,
+        )
+        if refused is not None:
+            problems.append(f"reading {reading.id}: {refused}")
+    problems += intake.clashes(intake.Entry(f"reading {r.id}", r) for r in written)
+    if problems:
+        more = f" (and {len(problems) - 3} more)" if len(problems) > 3 else ""
+        raise BundleError(
+            "; ".join(problems[:3]) + more + "; nothing was imported: fix them where the "
+            "bundle was made (withdraw or correct the readings), then export again"
+        )
 
 
 def _withdrawn_versions(

@@ -411,6 +411,8 @@ class WalkdownScreen(Screen[None]):
             instrument_id=None if instrument is Select.NULL else str(instrument),
             soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
             unreliable=doubtful,
+            # The app's clock (on its fixed day in tests); a bare harness: the walkdown's.
+            taken_at=self.app.now() if hasattr(self.app, "now") else None,
             context=self.context,
         )
         self.saved.readings[(self.stop.component.id, quantity)] = outcome
