@@ -32,9 +32,12 @@ from inspectkit.model import (
     Inspection,
     InspectionKind,
     InspectionState,
+    Inspector,
     Instrument,
     JointState,
     Method,
+    NotInspected,
+    NotInspectedReason,
     Photo,
     Quantity,
     Reading,
@@ -47,7 +50,7 @@ from inspectkit.model import (
 )
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError
-from inspectkit.store.photos import attach_photo, file_sha256, read_exif
+from inspectkit.store.photos import attach_photo, file_sha256, read_exif, remove_unreferenced
 from inspectkit.units import UnitError, format_value, parse
 
 #: The method assumed when none is chosen: the one most instruments in the trade use.
@@ -173,11 +176,20 @@ def start_inspection(
     kind: InspectionKind | str,
     inspector_id: str | None,
     today: date,
+    *,
+    continue_draft: bool = True,
 ) -> Inspection:
-    """The site's open draft, or a new draft visit dated `today`.
+    """The site's open draft, the same day's draft of this kind, or a new draft visit.
 
     An open draft is one not yet signed nor marked finished: a walkdown left half
-    done is continued, never started twice.
+    done is continued, never started twice. A draft of the same kind on the same
+    day that was marked finished is opened again (`same_day_draft`), so that one
+    visit makes one inspection and one report. Either way the inspector given is
+    put on a draft that has none.
+
+    Args:
+        continue_draft: False to start a second visit of that kind on that day even
+            though one is finished (the person was asked and said so).
 
     Raises:
         WalkdownError: no such site, or the kind or date is not valid.
@@ -190,13 +202,92 @@ def start_inspection(
         [site_id, InspectionState.DRAFT.value],
         order_by="date DESC, created_at DESC",
     )
-    if drafts:
-        return drafts[0]
-    inspection = _validated(
+    candidate = _validated(
         Inspection,
         {"site_id": site_id, "kind": kind, "date": today, "inspector_id": inspector_id},
     )
-    return store.save(inspection)
+    earlier = same_day_draft(store, site_id, candidate.kind, today) if continue_draft else None
+    draft = drafts[0] if drafts else earlier
+    if draft is not None:
+        changes: dict[str, Any] = {}
+        if draft.finished:  # opened again: the joints are confirmed afresh when it is finished
+            changes = {"finished": False, "joints_reconnected": None, "reconnection_note": ""}
+        if inspector_id and not draft.inspector_id:
+            changes["inspector_id"] = _known_inspector(store, inspector_id)
+        return _update_inspection(store, draft.id, changes) if changes else draft
+    return store.save(candidate)
+
+
+def same_day_draft(
+    store: Store, site_id: str, kind: InspectionKind | str, day: date
+) -> Inspection | None:
+    """The unsigned visit of this kind to the site on that day, finished or not, if any.
+
+    Starting another would make two inspections of one visit, whose report would
+    mix them; the screen offers to continue this one instead.
+    """
+    found = store.select(
+        Inspection,
+        "site_id = ? AND kind = ? AND date = ? AND state = ?",
+        [site_id, InspectionKind(kind).value, day.isoformat(), InspectionState.DRAFT.value],
+        order_by="created_at DESC",
+    )
+    return found[0] if found else None
+
+
+def set_inspector(store: Store, inspection_id: str, inspector_id: str) -> Inspection:
+    """Put the inspector on a draft visit, or change who it is, until it is signed.
+
+    Raises:
+        WalkdownError: no such inspector, or the inspection is signed.
+    """
+    return _update_inspection(
+        store, inspection_id, {"inspector_id": _known_inspector(store, inspector_id)}
+    )
+
+
+def _known_inspector(store: Store, inspector_id: str) -> str:
+    if store.get(Inspector, inspector_id) is None:
+        raise WalkdownError(
+            "inspector_id", f"no inspector with id {inspector_id}; add the inspector first"
+        )
+    return inspector_id
+
+
+def discard_inspection(store: Store, inspection_id: str) -> Inspection:
+    """Take a draft visit out of the records: started twice, on the wrong site, a test.
+
+    Its readings, findings, photos and not-inspected marks go with it, in one
+    transaction; the audit log keeps them all, and a bundle carries the discard to
+    the other laptops as it carries a withdrawn reading. Findings of earlier visits
+    it had marked as put right are open again. A signed inspection is never
+    discarded: amend it.
+
+    Raises:
+        WalkdownError: no such inspection, or it is signed.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    parts: list[tuple[type[Any], Any]] = [
+        (model, record)
+        for model in (Reading, Finding, Photo, NotInspected)
+        for record in store.select(model, "inspection_id = ?", [inspection_id])
+    ]
+    reopened = [
+        f.model_copy(update={"resolved_by": None})
+        for f in store.select(Finding, "resolved_by = ? AND inspection_id != ?", [
+            inspection_id, inspection_id
+        ])
+    ]
+    try:
+        with store.transaction():
+            store.save_all(reopened)
+            for model, record in parts:
+                store.delete(model, record.id)
+            store.delete(Inspection, inspection_id)
+    except FrozenRecordError as exc:
+        raise WalkdownError("inspection", str(exc)) from None
+    remove_unreferenced(store, sorted({r.sha256 for m, r in parts if m is Photo}))
+    return inspection
 
 
 def _inspection(store: Store, inspection_id: str) -> Inspection:
@@ -640,24 +731,81 @@ def grade_component(
     Raises:
         WalkdownError: not-sound without words, a bad due date, or a signed inspection.
     """
-    inspection = _open_inspection(store, inspection_id)
-    _component(store, inspection, component_id)
-    existing = store.select(
-        Finding, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
-    )
-    data: dict[str, Any] = {
-        "inspection_id": inspection_id,
-        "component_id": component_id,
+    fields = {
         "grade": grade,
         "text": text.strip(),
         "remedial_action": remedial_action.strip(),
         "due_by": _day(due_by, "due_by") if isinstance(due_by, str) else due_by,
         "category": category.strip(),
     }
+    # Graded after all: no longer "not inspected".
+    return _component_entry(store, Finding, NotInspected, inspection_id, component_id, fields)
+
+
+def mark_not_inspected(
+    store: Store,
+    inspection_id: str,
+    component_id: str,
+    reason: NotInspectedReason | str,
+    text: str = "",
+) -> NotInspected:
+    """Record that a component could not be inspected on this visit, and why.
+
+    It stands instead of a grade (a grade given for it in this visit is taken back;
+    the audit log keeps it), so the visit can be complete without it; the report
+    lists it and the next round plans a return. Marking it again corrects the reason.
+
+    Raises:
+        WalkdownError: not a reason, `other` without words, or the inspection is signed.
+    """
+    fields = {"reason": reason, "text": text.strip()}
+    return _component_entry(store, NotInspected, Finding, inspection_id, component_id, fields)
+
+
+def _component_entry(
+    store: Store,
+    model: type[Any],
+    replaces: type[Any],
+    inspection_id: str,
+    component_id: str,
+    fields: dict[str, Any],
+) -> Any:
+    """This visit's one `model` record for the component, made or corrected, in place of
+    its `replaces` record (a grade and a "not inspected" mark exclude each other)."""
+    inspection = _open_inspection(store, inspection_id)
+    _component(store, inspection, component_id)
+    existing = store.select(
+        model, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
+    )
+    data: dict[str, Any] = {"inspection_id": inspection_id, "component_id": component_id, **fields}
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
-    return _save(store, _validated(Finding, data, whole="text"))
+    record = _validated(model, data, whole="text")
+    with store.transaction():
+        _drop(store, replaces, inspection_id, component_id)
+        return _save(store, record)
+
+
+def clear_not_inspected(store: Store, inspection_id: str, component_id: str) -> None:
+    """Take back a "not inspected" mark made by mistake; the component is to grade again.
+
+    Raises:
+        WalkdownError: the inspection is signed.
+    """
+    _open_inspection(store, inspection_id)
+    _drop(store, NotInspected, inspection_id, component_id)
+
+
+def _drop(store: Store, model: type[Any], inspection_id: str, component_id: str) -> None:
+    """Delete this visit's record of `model` for the component, if there is one."""
+    for record in store.select(
+        model, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
+    ):
+        try:
+            store.delete(model, record.id)
+        except FrozenRecordError as exc:
+            raise WalkdownError("inspection", str(exc)) from None
 
 
 def _day(text: str, field: str) -> date | None:
@@ -829,7 +977,11 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
         day = max([judged.date, *(r.taken_at.date() for r in readings)])
         check = check_site(records, context.profile, day)
         items.extend(Missing(None, r.message) for r in check.results if r.rule == "incomplete")
-    graded = {f.component_id for f in store.select(Finding, "inspection_id = ?", [inspection_id])}
+    graded = {
+        record.component_id
+        for model in (Finding, NotInspected)  # a component not inspected needs no grade
+        for record in store.select(model, "inspection_id = ?", [inspection_id])
+    }
     items.extend(
         Missing(s.component, f"{s.component.tag}: not graded yet")
         for s in stops
@@ -838,19 +990,67 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
     return items
 
 
-def finish_inspection(store: Store, inspection_id: str) -> list[Missing]:
+def opened_joints(store: Store, inspection_id: str) -> list[Component]:
+    """The test joints opened in this visit for an isolated earth reading, by tag.
+
+    A reading with the joint open was taken on the joint itself or on an electrode
+    below it; each such joint must be closed again and re-tested before leaving.
+    """
+    inspection = _inspection(store, inspection_id)
+    parts = {c.id: c for c in store.select(Component, "site_id = ?", [inspection.site_id])}
+    opened: dict[str, Component] = {}
+    for reading in store.select(Reading, "inspection_id = ? AND joint_state = ?", [
+        inspection_id, JointState.OPEN.value
+    ]):
+        part = parts.get(reading.component_id)
+        if part is not None and part.kind is ComponentKind.EARTH_ELECTRODE:
+            part = parts.get(part.parent_id or "", part)
+        if part is not None:
+            opened[part.id] = part
+    return sorted(opened.values(), key=lambda c: _tag_key(c.tag))
+
+
+def finish_inspection(
+    store: Store,
+    inspection_id: str,
+    *,
+    reconnected: bool = False,
+    not_reconnected: str = "",
+) -> list[Missing]:
     """Mark the visit finished and return what it still lacked, for the record.
 
     The screen lists `missing_for_completion` and asks before calling this; a
     finished visit counts towards the schedule and is no longer the open draft.
+    A visit that opened test joints (`opened_joints`) is finished only once the
+    inspector confirms each was reconnected and re-tested, or says why not; the
+    answer is kept with the visit and printed in the report.
+
+    Args:
+        reconnected: The inspector confirms every opened test joint was reconnected
+            and re-tested (combined reading, or continuity across the joint).
+        not_reconnected: Why they were not, when they were not.
 
     Raises:
-        WalkdownError: the inspection is signed already.
+        WalkdownError: the inspection is signed already, or it opened test joints
+            and neither a confirmation nor a reason is given (`field` is
+            `reconnected`); nothing is saved.
     """
     inspection = _open_inspection(store, inspection_id)
     missing = missing_for_completion(store, inspection_id)
-    if not inspection.finished:
-        _save(store, inspection.model_copy(update={"finished": True}))
+    changes: dict[str, Any] = {"finished": True}
+    opened = opened_joints(store, inspection_id)
+    if opened:
+        reason = not_reconnected.strip()
+        if not reconnected and not reason:
+            tags = ", ".join(c.tag for c in opened)
+            raise WalkdownError(
+                "reconnected",
+                f"test joints opened for isolated readings ({tags}): confirm each was "
+                "reconnected and re-tested, or say why not",
+            )
+        changes["joints_reconnected"] = reconnected
+        changes["reconnection_note"] = "" if reconnected else reason
+    _update_inspection(store, inspection.id, changes)
     return missing
 
 

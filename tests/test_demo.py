@@ -353,7 +353,8 @@ ENGINE_SEES = {
     "Coldharrow Fuel Depot": {("overdue", "schedule")},
     "Hartle Cross Telephone Exchange": {("overdue", "strike-counter")},
     "Larkmoor Distribution Centre": {("fail", "calibration")},
-    "Pellow Ridge Quarry Offices": {("incomplete", "incomplete")},
+    # E-03 and DC-02 untested: marked not inspected, with why (no access, covered).
+    "Pellow Ridge Quarry Offices": {("incomplete", "not-inspected")},
     "Tollbeck Leisure Centre": {("incomplete", "incomplete")},
     "Fennick Magna Parish Church": set(),
     "Norrowby Grain Store": set(),

@@ -236,6 +236,7 @@ def test_overdue_site_and_drifting_electrode_through_check_site():
         visit = site.visit(date(2020 + n, 5, 1))
         site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value)
         site.reading(visit, site.components[0], Quantity.CONTINUITY, 0.05)
+    site.grade_all(visit)
     check = check_site(site.records(), IEC, TODAY)
     assert check.worst is Severity.OVERDUE and check.needs_action
     (schedule,) = [r for r in check.results if r.rule == "schedule"]
@@ -275,8 +276,9 @@ def test_readings_on_the_same_day_the_later_one_decides():
 
 
 def test_clean_site_is_ok():
-    site, _, _ = _one_electrode(4.0, start=2026)
+    site, _, (visit,) = _one_electrode(4.0, start=2026)
     site.components = [c for c in site.components if c.kind is not ComponentKind.DOWN_CONDUCTOR]
+    site.grade_all(visit)
     check = check_site(site.records(), IEC, date(2026, 3, 2))
     assert check.results == () and check.worst is Severity.OK
     assert check.summary.startswith("all clear")

@@ -1,4 +1,5 @@
-"""`inspectkit reading add`, `grade`, `photo add`: one walkdown entry each, saved at once."""
+"""`inspectkit reading add`, `grade`, `not-inspected`, `photo add`: one walkdown entry each, saved
+at once."""
 
 from __future__ import annotations
 
@@ -9,13 +10,14 @@ from typing import Annotated, Any
 import typer
 
 from inspectkit.cli import lookups
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
+from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.cli.readings import readings_app
 from inspectkit.model import (
     METHODS_FOR,
     Component,
     Grade,
     Method,
+    NotInspectedReason,
     Quantity,
     Severity,
     SoilCondition,
@@ -27,7 +29,9 @@ from inspectkit.walkdown import (
     ReadingOutcome,
     WalkdownError,
     attach_photos,
+    clear_not_inspected,
     grade_component,
+    mark_not_inspected,
     record_reading,
     withdraw_reading,
 )
@@ -204,6 +208,43 @@ def grade_command(
     typer.echo(line)
 
 
+def not_inspected_command(
+    ctx: typer.Context,
+    inspection: InspectionOption,
+    tag: TagOption,
+    reason: Annotated[
+        NotInspectedReason | None,
+        typer.Option("--reason", help="Why it could not be inspected.", show_default=False),
+    ] = None,
+    text: Annotated[
+        str, typer.Option("--text", help="What stopped it, in words; needed with 'other'.")
+    ] = "",
+    clear: Annotated[
+        bool, typer.Option("--clear", help="Take back the mark: the component is to grade.")
+    ] = False,
+    db: DbOption = None,
+) -> None:
+    """Mark a component not inspected on this visit, and why; it stands instead of a grade."""
+    with open_store(ctx, db) as store:
+        visit, component = lookups.visit_part(store, inspection, tag)
+        try:
+            if clear:
+                clear_not_inspected(store, visit.id, component.id)
+            elif reason is None:
+                fail("--reason: say why it was not inspected: " + _REASONS)
+            else:
+                mark = mark_not_inspected(store, visit.id, component.id, reason, text)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    if clear:
+        typer.echo(f"{component.tag}: not-inspected mark taken back; grade it.")
+    else:
+        typer.echo(f"{component.tag}: not inspected ({mark.why}).")
+
+
+_REASONS = ", ".join(r.value for r in NotInspectedReason)
+
+
 @photo_app.command("add")
 def add_photo(
     ctx: typer.Context,
@@ -240,4 +281,5 @@ def register(app: typer.Typer) -> None:
     readings_app.command("withdraw")(withdraw_command)
     app.add_typer(readings_app, name="reading", hidden=True)
     app.command("grade")(grade_command)
+    app.command("not-inspected")(not_inspected_command)
     app.add_typer(photo_app, name="photo")

@@ -208,6 +208,7 @@ class SiteHistory:
         self.system: System = lay_out(
             spec, self.site.id, self.start, created, demo.new_id, self.rng
         )
+        #: The values of each series so far (electrodes, conductors, bonds, the system).
         self.earth_history: dict[str, list[float]] = {}
         self.visits: list[_Visit] = []
         self.readings: list[Reading] = []
@@ -338,7 +339,6 @@ class SiteHistory:
         rng = self.rng
         factor = SOIL_FACTOR[visit.inspection.soil or SoilCondition.NORMAL]
         drift = special.drifting.get(electrode.tag)
-        history = self.earth_history.setdefault(electrode.id, [])
         if electrode.tag in special.earth:
             value = special.earth[electrode.tag]
         elif drift is not None:
@@ -349,15 +349,25 @@ class SiteHistory:
             value = trend * (1 + 0.25 * (factor - 1)) * math.exp(rng.gauss(0, 0.015))
         else:
             value = self.system.typical[electrode.id] * factor * math.exp(rng.gauss(0, 0.04))
-            if history:
-                value = min(value, _MAX_RISE * history[0], _MAX_RISE * history[-1])
-        history.append(value)
+            value = self._within_scatter(electrode.id, value)
+        if drift is not None or electrode.tag in special.earth:
+            self.earth_history.setdefault(electrode.id, []).append(value)
         return round(value, 1 if value >= 10 else 2)
 
     def _continuity_value(self, down: Component, special: _Special) -> float:
         if down.tag in special.continuity:
             return special.continuity[down.tag]
-        return round(self.system.typical[down.id] * math.exp(self.rng.gauss(0, 0.08)), 3)
+        value = self.system.typical[down.id] * math.exp(self.rng.gauss(0, 0.08))
+        return round(self._within_scatter(down.id, value), 3)
+
+    def _within_scatter(self, key: str, value: float) -> float:
+        """The value kept below `_MAX_RISE` times the first and the previous of its series,
+        so that only the scenario's own cases rise enough to be watched."""
+        history = self.earth_history.setdefault(key, [])
+        if history:
+            value = min(value, _MAX_RISE * history[0], _MAX_RISE * history[-1])
+        history.append(value)
+        return value
 
     def _tests(self, visit: _Visit, special: _Special, *, joints: int | None = None) -> None:
         """Continuity per down conductor, each electrode isolated, the whole system, bonds.
@@ -381,11 +391,13 @@ class SiteHistory:
         if joints is not None:
             return
         # Electrodes in parallel, less their mutual resistance (invented spread).
-        combined = round(rng.uniform(1.3, 1.7) / sum(1 / v for v in values), 2)
         tj01 = self.system.tagged("TJ-01")
+        combined = rng.uniform(1.3, 1.7) / sum(1 / v for v in values)
+        combined = round(self._within_scatter(f"{tj01.id}:combined", combined), 2)
         self._reading(visit, tj01, Quantity.EARTH_COMBINED, combined, earth)
         for bond in self.system.of_kind(ComponentKind.BONDING):
-            value = round(self.system.typical[bond.id] * math.exp(rng.gauss(0, 0.1)), 3)
+            value = self.system.typical[bond.id] * math.exp(rng.gauss(0, 0.1))
+            value = round(self._within_scatter(bond.id, value), 3)
             self._reading(visit, bond, Quantity.BONDING, value, low_ohm)
 
     def _counter_readings(self, visit: _Visit, count: int) -> None:

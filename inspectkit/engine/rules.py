@@ -335,19 +335,34 @@ def strike_counters(facts: SiteFacts) -> Iterator[Result]:
         )
 
 
-def missing_tests(facts: SiteFacts) -> Iterator[Result]:
-    """A complete inspection lacking an electrode's isolated reading or a conductor's continuity.
-
-    Judged: the latest counted complete inspection, and any unfinished draft of one.
-    """
+def _judged_complete(facts: SiteFacts) -> list[tuple[Inspection, bool]]:
+    """The complete inspections whose gaps matter: the latest counted one, and any
+    unfinished draft of one (True beside a draft)."""
     complete = sorted(
         (i for i in facts.records.inspections if i.kind in COMPLETE_KINDS), key=lambda i: i.date
     )
     done = [i for i in complete if counts_as_done(i)]
     drafts = [i for i in complete if i.state is InspectionState.DRAFT and not i.finished]
-    judged = [(i, False) for i in done[-1:]] + [(i, True) for i in drafts]
-    for inspection, draft in judged:
-        missing = _missing(facts, inspection)
+    return [(i, False) for i in done[-1:]] + [(i, True) for i in drafts]
+
+
+def missing_tests(facts: SiteFacts) -> Iterator[Result]:
+    """A complete inspection lacking an electrode's isolated reading or a conductor's continuity.
+
+    Judged: the latest counted complete inspection, and any unfinished draft of one.
+    Components it marked not inspected are left to `not_inspected`, which says why.
+    """
+    for inspection, draft in _judged_complete(facts):
+        marked = {
+            facts.tag(n.component_id)
+            for n in facts.records.not_inspected
+            if n.inspection_id == inspection.id
+        }
+        missing = {
+            label: left
+            for label, tags in _missing(facts, inspection).items()
+            if (left := [t for t in tags if t not in marked])
+        }
         if not missing:
             continue
         what = "; ".join(f"{label} for {', '.join(tags)}" for label, tags in missing.items())
@@ -357,6 +372,7 @@ def missing_tests(facts: SiteFacts) -> Iterator[Result]:
             "incomplete",
             f"The {state}complete inspection of {inspection.date.isoformat()} has no {what}: "
             f"take them {action}.",
+            components=tuple(t for tags in missing.values() for t in tags),
         )
 
 
@@ -396,6 +412,64 @@ def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
 
 
 _tag = attrgetter("tag")
+
+
+def ungraded_components(facts: SiteFacts) -> Iterator[Result]:
+    """A complete inspection with components neither graded nor marked not inspected.
+
+    Judged as `missing_tests` judges: the latest counted complete inspection and any
+    unfinished draft of one. A complete inspection looks at every component.
+    """
+    for inspection, draft in _judged_complete(facts):
+        seen = {f.component_id for f in facts.records.findings if f.inspection_id == inspection.id}
+        seen |= {
+            n.component_id for n in facts.records.not_inspected if n.inspection_id == inspection.id
+        }
+        left = [
+            c.tag
+            for c in sorted(facts.records.components, key=_tag)
+            if c.id not in seen and in_service(c, inspection.date)
+        ]
+        if not left:
+            continue
+        state, action = ("draft ", "before signing") if draft else ("", "at a return visit")
+        yield facts.result(
+            Severity.INCOMPLETE,
+            "ungraded",
+            f"The {state}complete inspection of {inspection.date.isoformat()} neither graded "
+            f"nor marked not inspected {len(left)} component(s): {', '.join(left)}; "
+            f"inspect them {action}.",
+            components=tuple(left),
+        )
+
+
+def not_inspected(facts: SiteFacts) -> Iterator[Result]:
+    """Components the latest visit of each kind could not inspect: a return visit is owed.
+
+    Only the site's latest visit that looked at the component counts: once a later
+    visit grades it or reads it, the gap is closed.
+    """
+    dates = {i.id: i.date for i in facts.records.inspections}
+    closed: dict[str, date] = {}
+    for record in [*facts.records.findings, *facts.records.readings]:
+        day = dates.get(record.inspection_id)
+        if day is not None and record.component_id:
+            closed[record.component_id] = max(day, closed.get(record.component_id, day))
+    for mark in sorted(facts.records.not_inspected, key=lambda n: facts.tag(n.component_id)):
+        day = dates.get(mark.inspection_id)
+        component = facts.components.get(mark.component_id)
+        if day is None or component is None or not in_service(component, facts.today):
+            continue
+        if closed.get(mark.component_id, day) > day:
+            continue
+        yield facts.result(
+            Severity.INCOMPLETE,
+            "not-inspected",
+            f"{component.tag} was not inspected on {day.isoformat()} ({mark.why}): "
+            "inspect it at a return visit.",
+            component_id=component.id,
+            component_tag=component.tag,
+        )
 
 
 def open_defects(facts: SiteFacts) -> Iterator[Result]:
@@ -485,6 +559,8 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     doubtful_readings,
     strike_counters,
     missing_tests,
+    ungraded_components,
+    not_inspected,
     open_defects,
     schedule_items,
     drifting_electrodes,

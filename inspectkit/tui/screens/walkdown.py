@@ -41,6 +41,7 @@ from inspectkit.walkdown import (
     finish_inspection,
     grade_component,
     missing_for_completion,
+    opened_joints,
     record_reading,
     saved_entries,
     set_details,
@@ -498,12 +499,14 @@ class WalkdownScreen(Screen[None]):
         if self.stops:
             self.keep_unsaved()
         missing = missing_for_completion(self.store, self.inspection_id)
+        opened = [c.tag for c in opened_joints(self.store, self.inspection_id)]
 
         def done(confirmed: bool | None) -> None:
             if not confirmed:
                 return
             try:
-                finish_inspection(self.store, self.inspection_id)
+                # Yes to the question is yes to the joints being reconnected as well.
+                finish_inspection(self.store, self.inspection_id, reconnected=bool(opened))
             except WalkdownError as exc:
                 self.notify(str(exc), severity="error")
                 return
@@ -511,7 +514,7 @@ class WalkdownScreen(Screen[None]):
             self.dismiss()
 
         self.app.push_screen(
-            ConfirmDialog(_finish_question(missing), yes_label="Mark complete"), done
+            ConfirmDialog(_finish_question(missing, opened), yes_label="Mark complete"), done
         )
 
     def action_details(self) -> None:
@@ -565,11 +568,22 @@ class WalkdownScreen(Screen[None]):
         self.dismiss()
 
 
-def _finish_question(missing: list[Missing]) -> Text:
-    """The question before marking complete, with what is still missing listed first."""
+def _finish_question(missing: list[Missing], opened: list[str]) -> Text:
+    """The question before marking complete, with what is still missing listed first.
+
+    Args:
+        opened: Tags of the test joints opened for isolated readings; marking the
+            visit complete confirms they were reconnected and re-tested.
+    """
+    joints = (
+        f"Test joints opened: {', '.join(opened)}. Every one reconnected and re-tested?\n"
+        if opened
+        else ""
+    )
     if not missing:
         return Text(
-            "Every component is graded and every test taken.\nMark the inspection complete?"
+            "Every component is graded and every test taken.\n"
+            f"{joints}Mark the inspection complete?"
         )
     text = Text("Still missing:\n", style="bold")
     for item in missing:
@@ -580,5 +594,7 @@ def _finish_question(missing: list[Missing]) -> Text:
         shown = ", ".join(ungraded[:_UNGRADED_SHOWN])
         more = len(ungraded) - _UNGRADED_SHOWN
         text.append(f" • not graded yet: {shown}{f' and {more} more' if more > 0 else ''}\n")
+    if joints:
+        text.append(f"\n{joints}")
     text.append("\nMark the inspection complete anyway?", style="bold")
     return text
