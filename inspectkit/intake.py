@@ -7,7 +7,8 @@ the walkdown refuses cannot slip in by another door:
 - the quantity is one the component carries (no continuity on a test joint);
 - the instrument's kind measures the quantity, by the method given;
 - the time lies within the visit's day, give or take a window (instrument clocks and
-  time zones), so a reading of 2019 does not land in a visit of 2026;
+  time zones), so a reading of 2019 does not land in a visit of 2026 (an amendment
+  holds the readings of the day it corrects, and is not held to its own day);
 - a signed or finished visit takes no new reading (continue the visit first);
 - one import holds one value per component, quantity and minute.
 """
@@ -22,6 +23,7 @@ from inspectkit.model import (
     QUANTITIES_FOR,
     Component,
     Inspection,
+    InspectionKind,
     InspectionState,
     Instrument,
     Reading,
@@ -129,7 +131,9 @@ def refusal(
             return ReadingRefused("instrument_id", f"{component.tag}: {misfit}")
     start = datetime.combine(inspection.date, time(), tzinfo=UTC) - window
     end = datetime.combine(inspection.date, time(), tzinfo=UTC) + timedelta(days=1) + window
-    if not start <= reading.taken_at < end:
+    # An amendment corrects the records of the visit it amends, taken on that day.
+    dated = inspection.kind is not InspectionKind.AMENDMENT
+    if dated and not start <= reading.taken_at < end:
         hours = window.total_seconds() / 3600
         return ReadingRefused(
             "taken_at",

@@ -41,7 +41,13 @@ from reportlab.platypus import (
 
 from inspectkit.report.branding import Branding
 from inspectkit.report.charts import trend_drawing
-from inspectkit.report.content import CHANGES_TITLE, Field, PhotoItem, ReportContent
+from inspectkit.report.content import (
+    CHANGES_TITLE,
+    Field,
+    PhotoItem,
+    ReportContent,
+    not_inspected_lines,
+)
 from inspectkit.report.photos import downscale
 from inspectkit.report.sign import SignatureSlot
 
@@ -430,11 +436,8 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         add(Paragraph(CHANGES_TITLE, styles["h2"]))
         add(Paragraph(_text(content.changes_since_last), styles["body"]))
     add(Paragraph("Not inspected", styles["h2"]))
-    add(
-        Paragraph(
-            _text(content.not_inspected or "Every part listed was inspected."), styles["body"]
-        )
-    )
+    for line in not_inspected_lines(content):
+        add(Paragraph(_text(line), styles["body"]))
     add(Paragraph("Safety", styles["h2"]))
     for caution in content.cautions:
         add(Paragraph(f"• {_text(caution)}", styles["small"]))
@@ -450,9 +453,9 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
     if content.instruments:
         add(
             _grid(
-                ["Instrument", "Serial", "Calibration due", "On the day"],
+                ["Instrument", "Serial", "Calibration due", "On the day", "Readings taken"],
                 [list(row) for row in content.instruments],
-                [width * 0.4, width * 0.2, width * 0.18, width * 0.22],
+                [width * w for w in (0.28, 0.14, 0.14, 0.16, 0.28)],
                 styles,
                 branding,
             )
@@ -473,22 +476,23 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         add(Spacer(1, 2 * mm))
         add(
             _grid(
-                ["Tag", "Component", "Quantity, method", "Value", "Limit", "Result"],
+                ["Tag", "Component", "Quantity, method", "Instrument", "Value", "Limit", "Result"],
                 [
                     [
                         r.tag,
                         r.component,
                         f"{r.quantity}, {r.method}",
+                        r.instrument or "—",
                         r.value,
                         r.limit,
                         r.result + (f" ({r.note})" if r.note else ""),
                     ]
                     for r in content.readings
                 ],
-                [w * width for w in (0.1, 0.17, 0.3, 0.12, 0.12, 0.19)],
+                [w * width for w in (0.1, 0.14, 0.23, 0.13, 0.1, 0.1, 0.2)],
                 styles,
                 branding,
-                5,
+                6,
             )
         )
     else:

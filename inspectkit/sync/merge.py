@@ -333,14 +333,38 @@ def _plan_removals(store: Store, bundle: Bundle, plan: _Plan) -> None:
     """Ours to delete where the bundle's database withdrew the very version we hold.
 
     A record withdrawn there after we edited it is kept: the edit is newer than
-    what was withdrawn, and the next exchange takes it back there.
+    what was withdrawn, and the next exchange takes it back there. A discarded
+    inspection is deleted here only with everything recorded in it, so one that
+    holds a part the other side did not discard with it is kept.
     """
-    for table, by_id in bundle.deleted.items():
+    for table in sorted(bundle.deleted, key=DELETABLE.index):
+        by_id = bundle.deleted[table]
         for row_id, ours in store.rows_by_id(table, sorted(by_id)).items():
-            if version_hash(ours) in by_id[row_id]:
-                plan.removals.append((table, ours))
-            else:
+            if version_hash(ours) not in by_id[row_id]:
                 plan.kept_edited.append(_label(table, ours))
+            elif table == "inspection" and _holds_more(store, row_id, plan.removals):
+                plan.kept_edited.append(_label(table, ours))
+            else:
+                plan.removals.append((table, ours))
+    # Parts the bundle brings for an inspection it discards are not written either.
+    discarded = {row["id"] for table, row in plan.removals if table == "inspection"}
+    kept = [w for w in plan.writes if w[1].get("inspection_id") not in discarded]
+    plan.kept_deleted += len(plan.writes) - len(kept)
+    plan.writes = kept
+
+
+def _holds_more(
+    store: Store, inspection_id: str, removals: list[tuple[str, dict[str, Any]]]
+) -> bool:
+    """Whether we hold a part of this inspection that the removals do not take."""
+    going = {(table, row["id"]) for table, row in removals}
+    return any(
+        (table, row_id) not in going
+        for table in _PARTS
+        for (row_id,) in store.db.execute(
+            f"SELECT id FROM [{table}] WHERE inspection_id = ?", [inspection_id]
+        )
+    )
 
 
 def _winner(table: str, ours: dict[str, Any], theirs: dict[str, Any], prefer: Side | None) -> Side:
