@@ -22,15 +22,17 @@ from inspectkit.model import (
     Severity,
     SoilCondition,
 )
-from inspectkit.tui.preferences import Preferences
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
+    DEFAULT_METHOD,
     JOINT_FOR,
     ReadingOutcome,
     WalkdownError,
     attach_photos,
+    chosen_instruments,
     clear_not_inspected,
     grade_component,
+    instrument_for,
     mark_not_inspected,
     record_reading,
     withdraw_reading,
@@ -98,7 +100,10 @@ def add_reading(
     ] = None,
     instrument: Annotated[
         str | None,
-        typer.Option("--instrument", help="Serial or id (default: the one the walkdown uses)."),
+        typer.Option(
+            "--instrument",
+            help="Serial or id (default: the one chosen for the kind that measures it).",
+        ),
     ] = None,
     soil: Annotated[
         SoilCondition | None,
@@ -123,11 +128,12 @@ def add_reading(
     """Save one reading and print its verdict; typing it again corrects it; exit 1 on FAIL."""
     with open_store(ctx, db) as store:
         visit, component = lookups.visit_part(store, inspection, tag)
-        instrument_id = (
-            lookups.instrument(store, instrument).id
-            if instrument is not None
-            else Preferences(store).instrument_id
-        )
+        if instrument is not None:
+            instrument_id: str | None = lookups.instrument(store, instrument).id
+        else:
+            usual = method or DEFAULT_METHOD[quantity]
+            found = instrument_for(chosen_instruments(store), quantity, usual)
+            instrument_id = found.id if found else None
         if soil is None and quantity in JOINT_FOR:
             soil = visit.soil
         try:
