@@ -22,6 +22,8 @@ from inspectkit.model import (
     Reading,
     Site,
 )
+from inspectkit.plan.planner import Window, make_candidates
+from inspectkit.plan.settings import load_plan_settings
 from inspectkit.profiles import load_profile
 from inspectkit.report.content import text_sections
 from inspectkit.report.model import build_report
@@ -378,3 +380,20 @@ def test_a_database_before_the_visit_records_step_opens_and_keeps_its_records(
         assert store.select(NotInspected) == []
         assert store.verify_audit() == [], "the new columns are logged, not taken for an edit"
         assert kept.state is InspectionState.DRAFT
+
+
+def test_the_plan_proposes_a_return_for_a_component_not_inspected(walk) -> None:
+    store, site = walk
+    visit = start_inspection(store, site.site.id, "visual", site.inspector.id, DAY)
+    for part in site.parts.values():
+        if part.retired_on is None and part.tag != "AT-02":
+            grade_component(store, visit.id, part.id, "sound")
+    mark_not_inspected(store, visit.id, site.tag("AT-02").id, "unsafe", "ridge iced over")
+    finish_inspection(store, visit.id)
+    records = load_site_records(store, site.site.id)
+    profile = load_profile(site.site.profile)
+    window = Window(date(2026, 6, 8), 5)
+    (found,) = make_candidates([(records, profile)], window, load_plan_settings())
+    (owed,) = [r for r in found.reasons if r.what == "return"]
+    assert owed.text == "return for AT-02, not inspected on 2026-06-01 (unsafe: ridge iced over)"
+    assert "return visit" in found.kind_label

@@ -21,6 +21,7 @@ from inspectkit.engine.history import (
     counts_as_done,
     electrode_count,
     in_service,
+    open_not_inspected,
     series,
 )
 from inspectkit.engine.results import Result
@@ -449,19 +450,8 @@ def not_inspected(facts: SiteFacts) -> Iterator[Result]:
     Only the site's latest visit that looked at the component counts: once a later
     visit grades it or reads it, the gap is closed.
     """
-    dates = {i.id: i.date for i in facts.records.inspections}
-    closed: dict[str, date] = {}
-    for record in [*facts.records.findings, *facts.records.readings]:
-        day = dates.get(record.inspection_id)
-        if day is not None and record.component_id:
-            closed[record.component_id] = max(day, closed.get(record.component_id, day))
-    for mark in sorted(facts.records.not_inspected, key=lambda n: facts.tag(n.component_id)):
-        day = dates.get(mark.inspection_id)
-        component = facts.components.get(mark.component_id)
-        if day is None or component is None or not in_service(component, facts.today):
-            continue
-        if closed.get(mark.component_id, day) > day:
-            continue
+    for mark, day in open_not_inspected(facts.records, facts.today):
+        component = facts.components[mark.component_id]
         yield facts.result(
             Severity.INCOMPLETE,
             "not-inspected",

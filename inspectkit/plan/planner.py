@@ -16,6 +16,7 @@ from inspectkit.plan.round import (
     defects_to_recheck,
     priority_key,
     reasons_for,
+    return_visits,
     visit_kinds,
 )
 from inspectkit.plan.route import plan_route
@@ -134,7 +135,8 @@ def make_candidates(
     for records, profile in sites:
         schedule = schedule_site(records, profile, window.first)
         defects = defects_to_recheck(records, window.first, window.last)
-        reasons = reasons_for(schedule, defects, window.first, window.last)
+        returns = return_visits(records, window.first)
+        reasons = reasons_for(schedule, defects, window.first, window.last) + tuple(returns)
         if not reasons:
             continue
         kinds = visit_kinds(schedule, window.last)
@@ -145,7 +147,7 @@ def make_candidates(
                 kinds=kinds,
                 reasons=reasons,
                 rechecks=tuple(f.id for f in defects),
-                onsite_minutes=onsite_minutes(counts, kinds, settings, len(defects)),
+                onsite_minutes=onsite_minutes(counts, kinds, settings, len(defects) + len(returns)),
             )
         )
     return by_priority(candidates)

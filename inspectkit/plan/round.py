@@ -12,7 +12,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from datetime import date
 
-from inspectkit.engine.history import as_of, counts_as_done
+from inspectkit.engine.history import as_of, counts_as_done, open_not_inspected
 from inspectkit.engine.schedule import DueKind, SiteSchedule
 from inspectkit.model import Finding, Grade, InspectionKind, Site, SiteRecords
 from inspectkit.plan.geo import Point
@@ -26,6 +26,8 @@ _KIND_FOR_DUE = {
 }
 #: What a reason is called when it is a defect to re-check rather than an inspection.
 RECHECK = "recheck"
+#: What a reason is called when it is a component a visit could not inspect.
+RETURN = "return"
 
 
 @dataclass(frozen=True)
@@ -86,6 +88,8 @@ class Candidate:
         words = [k.value.replace("_", "-") for k in self.kinds]
         if self.rechecks:
             words.append("re-check")
+        if any(r.what == RETURN for r in self.reasons):
+            words.append("return visit")
         return " + ".join(words)
 
     @property
@@ -146,6 +150,21 @@ def reasons_for(
             )
         )
     return tuple(sorted(reasons, key=lambda r: (-r.overdue_days, r.due, r.what)))
+
+
+def return_visits(records: SiteRecords, first_day: date) -> list[Reason]:
+    """A return for each component a visit could not inspect and none has since, owed now."""
+    tags = {c.id: c.tag for c in records.components}
+    return [
+        Reason(
+            RETURN,
+            first_day,
+            f"return for {tags[mark.component_id]}, not inspected on {day.isoformat()} "
+            f"({mark.why})",
+            0,
+        )
+        for mark, day in open_not_inspected(as_of(records, first_day), first_day)
+    ]
 
 
 def priority_key(candidate: Candidate) -> tuple[object, ...]:
