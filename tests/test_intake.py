@@ -349,3 +349,13 @@ def test_a_bundle_of_readings_made_before_the_visit_was_finished_comes_in(
     report = import_bundle(store, export_bundle(other, site.site.id, tmp_path / "ok.zip").path)
     assert report.added["reading"] == 1 and store.get(Inspection, visit.id).finished
     other.close()
+
+
+def test_the_window_is_set_by_command(walk, db: Path) -> None:
+    store, _, _, _ = walk
+    shown = runner.invoke(app, ["--db", str(db), "readings", "window", "20"])
+    assert shown.exit_code == 0 and "from 20 h before" in shown.stdout
+    assert reading_window(store) == timedelta(hours=20)
+    bad = runner.invoke(app, ["--db", str(db), "readings", "window", "--", "-1"])
+    assert bad.exit_code == 2 and "give 0 to 48 hours" in bad.output
+    assert reading_window(store) == timedelta(hours=20)

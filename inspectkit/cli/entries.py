@@ -12,6 +12,7 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.cli.readings import readings_app
+from inspectkit.intake import ReadingRefused, reading_window, set_reading_window
 from inspectkit.model import (
     METHODS_FOR,
     Component,
@@ -251,6 +252,28 @@ def not_inspected_command(
 _REASONS = ", ".join(r.value for r in NotInspectedReason)
 
 
+def window_command(
+    ctx: typer.Context,
+    hours: Annotated[
+        float | None,
+        typer.Argument(help="Hours either side of the visit's day (0 to 48); none: show it."),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """How far outside its visit's day a reading's time may lie, on every way in."""
+    with open_store(ctx, db) as store:
+        if hours is not None:
+            try:
+                set_reading_window(store, hours)
+            except ReadingRefused as exc:
+                fail(f"HOURS: {exc}")
+        window = reading_window(store)
+    typer.echo(
+        f"Readings are accepted from {window.total_seconds() / 3600:g} h before a visit's day "
+        "to as long after it."
+    )
+
+
 @photo_app.command("add")
 def add_photo(
     ctx: typer.Context,
@@ -285,6 +308,7 @@ def register(app: typer.Typer) -> None:
     # `readings add` beside `readings import`; `reading add` is taken too, as people type it.
     readings_app.command("add")(add_reading)
     readings_app.command("withdraw")(withdraw_command)
+    readings_app.command("window")(window_command)
     app.add_typer(readings_app, name="reading", hidden=True)
     app.command("grade")(grade_command)
     app.command("not-inspected")(not_inspected_command)
