@@ -98,6 +98,11 @@ _SITE_FIELDS = {
 _LATEST_FIELDS = {"not_inspected", "accompanied_by", "changes_since_last"}
 
 
+def _derived_id(visit: _Visit, component: Component, what: str) -> str:
+    """A key made from the visit, the component and what it is, the same every build."""
+    return str(uuid.uuid5(uuid.UUID(visit.inspection.id), f"{component.id} {what}"))
+
+
 def stamps(at: datetime, by: str = DEMO_USER) -> dict[str, Any]:
     """Record times from the scenario, never from the clock."""
     return {"created_at": at, "updated_at": at, "updated_by": by}
@@ -501,18 +506,22 @@ class SiteHistory:
             ]
         )
 
+    # The marks and sound grades below take their ids from the visit and the component,
+    # and their times from the visit's clock, not from the seeded generator: the rest of
+    # the scenario draws the same numbers as it did before they were added.
+
     def _skip_parts(self, visit: _Visit) -> None:
         """The components the scenario says the latest complete inspection could not inspect."""
         for part in self.spec.skipped:
-            at = visit.tick(self.rng)
+            component = self.system.tagged(part.tag)
             self.skipped.append(
                 NotInspected(
-                    id=self.demo.new_id(),
+                    id=_derived_id(visit, component, "not inspected"),
                     inspection_id=visit.inspection.id,
-                    component_id=self.system.tagged(part.tag).id,
+                    component_id=component.id,
                     reason=part.reason,
                     text=part.text,
-                    **stamps(at, visit.inspection.updated_by),
+                    **stamps(visit.clock, visit.inspection.updated_by),
                 )
             )
 
@@ -523,7 +532,15 @@ class SiteHistory:
         done |= {s.component_id for s in self.skipped}
         for component in self.system.components:
             if component.id not in done:
-                self._finding(visit, component, Grade.SOUND, ("", "", ""), None, None)
+                self.findings.append(
+                    Finding(
+                        id=_derived_id(visit, component, "sound"),
+                        inspection_id=visit.inspection.id,
+                        component_id=component.id,
+                        grade=Grade.SOUND,
+                        **stamps(visit.clock, visit.inspection.updated_by),
+                    )
+                )
 
     def _finding(
         self,
