@@ -595,6 +595,9 @@ class Instrument(Record):
     calibration_due: date | None = None
     #: What it measures; None for instruments recorded before kinds were (not judged).
     kind: InstrumentKind | None = None
+    #: Set when the instrument is no longer used (or was added by mistake): kept for
+    #: the readings taken with it, no longer offered.
+    retired_on: date | None = None
 
     @field_validator("kind", mode="before")
     @classmethod
@@ -619,6 +622,9 @@ class Inspector(Record):
     signing_key: str = ""
     #: The inspector's certificate (PEM), so reports can be checked against it.
     certificate_pem: str = ""
+    #: Set when the person no longer inspects (or was added by mistake): kept for the
+    #: inspections they signed, no longer offered.
+    retired_on: date | None = None
 
 
 class Inspection(Record):

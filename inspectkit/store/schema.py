@@ -199,6 +199,63 @@ def _v3(db: sqlite_utils.Database) -> None:
     _add_columns(db, _V3_COLUMNS)
 
 
+def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> None:
+    """Add columns to record tables, with an audit row for every row that gains them."""
+    at = utcnow().isoformat()
+    for table, columns in new.items():
+        before = _rows(db, table)
+        for column in columns:
+            db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
+        after = _rows(db, table)
+        changes = [(table, row_id, "migrate", row, after[row_id]) for row_id, row in before.items()]
+        entries = audit.make_entries(audit.last_hash(db), changes, at=at, who="migration")
+        if entries:
+            names = list(entries[0])
+            db.conn.executemany(
+                f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})",
+                ([e[n] for n in names] for e in entries),
+            )
+
+
+def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
+    """A table's rows by id, as SQLite returns them (the form the audit log hashes)."""
+    cursor = db.execute(f"SELECT * FROM [{table}]")
+    names = [d[0] for d in cursor.description]
+    rows = (dict(zip(names, values, strict=True)) for values in cursor)
+    return {row["id"]: row for row in rows}
+
+
+_ENTRY_DRAFTS = """
+CREATE TABLE entry_draft (
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    field TEXT NOT NULL,
+    text TEXT NOT NULL,
+    updated_at TEXT NOT NULL,
+    PRIMARY KEY (inspection_id, component_id, field)
+);
+CREATE TABLE walkdown_place (
+    inspection_id TEXT PRIMARY KEY REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    updated_at TEXT NOT NULL
+);
+"""
+
+
+def _entry_drafts(db: sqlite_utils.Database) -> None:
+    """Text typed in a walkdown and not saved yet, and the component the inspector is on.
+
+    Neither is a record: no audit rows, never in a bundle or a report; they only let a
+    walkdown killed mid-way offer back what was typed, where it was typed.
+    """
+    db.executescript(_ENTRY_DRAFTS)
+
+
+def _retired_people_and_instruments(db: sqlite_utils.Database) -> None:
+    """Inspectors and instruments can be retired: kept for the history, left out of pickers."""
+    _add_columns(db, {"inspector": ("retired_on TEXT",), "instrument": ("retired_on TEXT",)})
+
+
 #: An instrument's kind, the joints' reconnection on finishing, components not inspected.
 _VISIT_RECORDS_COLUMNS = {
     "instrument": ("kind TEXT",),
@@ -232,37 +289,13 @@ def _visit_records(db: sqlite_utils.Database) -> None:
         db.execute(statement)
 
 
-def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
-    """Add columns, with an audit row per existing row saying the migration changed it."""
-    at = utcnow().isoformat()
-    for table, columns in columns_by_table.items():
-        before = _rows(db, table)
-        for column in columns:
-            db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
-        after = _rows(db, table)
-        changes = [(table, row_id, "migrate", row, after[row_id]) for row_id, row in before.items()]
-        entries = audit.make_entries(audit.last_hash(db), changes, at=at, who="migration")
-        if entries:
-            names = list(entries[0])
-            db.conn.executemany(
-                f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})",
-                ([e[n] for n in names] for e in entries),
-            )
-
-
-def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
-    """A table's rows by id, as SQLite returns them (the form the audit log hashes)."""
-    cursor = db.execute(f"SELECT * FROM [{table}]")
-    names = [d[0] for d in cursor.description]
-    rows = (dict(zip(names, values, strict=True)) for values in cursor)
-    return {row["id"]: row for row in rows}
-
-
 #: Step N (1-based) brings a database from version N-1 to N.
 MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _v1,
     _v2,
     _v3,
+    _entry_drafts,
+    _retired_people_and_instruments,
     _visit_records,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -10,9 +10,9 @@ from textual.binding import Binding
 
 from inspectkit.model import utcnow
 from inspectkit.store import Store
+from inspectkit.store.preferences import Preferences
 from inspectkit.tui.commands import ActionsProvider
 from inspectkit.tui.dialogs.cautions import CautionsDialog
-from inspectkit.tui.preferences import Preferences
 from inspectkit.tui.screens.findings import FindingsScreen
 from inspectkit.tui.screens.plan import PlanScreen
 from inspectkit.tui.screens.settings import SettingsScreen
