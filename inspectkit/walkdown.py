@@ -1134,11 +1134,13 @@ class SavedEntries:
         readings: The judged reading per (component id, quantity).
         findings: The finding per component id.
         photos: How many photos per component id (None: on the inspection alone).
+        not_inspected: The "not inspected" mark per component id.
     """
 
     readings: dict[tuple[str, Quantity], ReadingOutcome]
     findings: dict[str, Finding]
     photos: dict[str | None, int]
+    not_inspected: dict[str, NotInspected] = field(default_factory=dict)
 
 
 def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
@@ -1161,6 +1163,10 @@ def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
             if f.component_id
         },
         photos=photos,
+        not_inspected={
+            n.component_id: n
+            for n in store.select(NotInspected, "inspection_id = ?", [inspection_id])
+        },
     )
 
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import asyncio
+from typing import Any
 
 from rich.text import Text
 from textual import on
@@ -19,11 +20,14 @@ from inspectkit.model import (
     Inspection,
     Instrument,
     Method,
+    NotInspectedReason,
     Quantity,
     SoilCondition,
 )
 from inspectkit.store import Store
+from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
@@ -40,12 +44,17 @@ from inspectkit.walkdown import (
     Stop,
     WalkdownError,
     attach_photos,
+    choose_instrument,
+    chosen_instruments,
+    clear_not_inspected,
     drafts_for,
     drafts_told,
     finish_inspection,
     forget_drafts,
     grade_component,
+    instrument_for,
     keep_drafts,
+    mark_not_inspected,
     missing_for_completion,
     opened_joints,
     record_reading,
@@ -139,6 +148,15 @@ class WalkdownScreen(Screen[None]):
             tooltip="Take back the saved reading the cursor is on (typed on the wrong joint)",
         ),
         Binding(
+            "ctrl+n",
+            "not_inspected",
+            "Not inspected",
+            id="walkdown.not_inspected",
+            priority=True,
+            show=False,
+            tooltip="Mark this component not inspected, and say why (no access, unsafe, …)",
+        ),
+        Binding(
             "escape",
             "leave",
             "Back",
@@ -230,10 +248,14 @@ class WalkdownScreen(Screen[None]):
         yield SteadyFooter()
 
     def _instrument_options(self) -> list[tuple[str, str]]:
+        """Instruments in use, each with its kind: picking one makes it the one of its kind."""
         today = self.app.today if hasattr(self.app, "today") else None
         options = []
-        for instrument in self.store.select(Instrument, order_by="description, serial"):
-            label = f"{instrument.description} {instrument.serial}"
+        for instrument in self.store.select(
+            Instrument, "retired_on IS NULL", order_by="description, serial"
+        ):
+            kind = f"{instrument.kind.label}: " if instrument.kind else ""
+            label = f"{kind}{instrument.description} {instrument.serial}"
             due = instrument.calibration_due
             if due is not None and today is not None and due < today:
                 label += " (calibration lapsed)"
@@ -241,9 +263,12 @@ class WalkdownScreen(Screen[None]):
         return options
 
     def _instrument_in_use(self) -> str | None:
+        """The instrument last chosen (any kind), to show in the bar."""
         chosen = self.store.get_setting(INSTRUMENT_SETTING)
         known = {value for _, value in self._instrument_options()}
-        return chosen if chosen in known else None
+        if chosen in known:
+            return chosen
+        return next((i.id for i in chosen_instruments(self.store).values() if i.id in known), None)
 
     def on_screen_resume(self) -> None:
         # Components may have been edited on another screen meanwhile.
@@ -405,7 +430,8 @@ class WalkdownScreen(Screen[None]):
         self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool
     ) -> ReadingOutcome:
         soil = self.query_one("#soil", Select).value
-        instrument = self.query_one("#instrument", Select).value
+        # The instrument chosen for the kind that measures this quantity by this method.
+        instrument = instrument_for(chosen_instruments(self.store), quantity, method)
         outcome = record_reading(
             self.store,
             self.inspection_id,
@@ -413,7 +439,7 @@ class WalkdownScreen(Screen[None]):
             quantity,
             text,
             method=method,
-            instrument_id=None if instrument is Select.NULL else str(instrument),
+            instrument_id=instrument.id if instrument else None,
             soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
             unreliable=doubtful,
             # The app's clock (on its fixed day in tests); a bare harness: the walkdown's.
@@ -432,6 +458,7 @@ class WalkdownScreen(Screen[None]):
             due.strip() or None,
         )  # fmt: skip
         self.saved.findings[component_id] = finding
+        self.saved.not_inspected.pop(component_id, None)  # graded after all
         self._refresh_mark()
         return finding
 
@@ -466,8 +493,10 @@ class WalkdownScreen(Screen[None]):
     @on(Select.Changed, "#instrument")
     def _instrument_changed(self, event: Select.Changed) -> None:
         if event.value is not Select.NULL and event.value != self._instrument_in_use():
-            self.store.set_setting(INSTRUMENT_SETTING, str(event.value))
-            self.notify("Instrument remembered for the next readings")
+            instrument = choose_instrument(self.store, str(event.value))
+            self.store.set_setting(INSTRUMENT_SETTING, instrument.id)
+            kind = instrument.kind.label if instrument.kind else "instrument"
+            self.notify(f"{instrument.serial} is the {kind} for the next readings it can take")
 
     @on(Select.Changed, "#soil")
     def _soil_changed(self, event: Select.Changed) -> None:
@@ -505,12 +534,9 @@ class WalkdownScreen(Screen[None]):
         missing = missing_for_completion(self.store, self.inspection_id)
         opened = [c.tag for c in opened_joints(self.store, self.inspection_id)]
 
-        def done(confirmed: bool | None) -> None:
-            if not confirmed:
-                return
+        def finish(**answer: Any) -> None:
             try:
-                # Yes to the question is yes to the joints being reconnected as well.
-                finish_inspection(self.store, self.inspection_id, reconnected=bool(opened))
+                finish_inspection(self.store, self.inspection_id, **answer)
             except WalkdownError as exc:
                 self.notify(str(exc), severity="error")
                 return
@@ -518,8 +544,85 @@ class WalkdownScreen(Screen[None]):
             self.notify("Inspection marked complete")
             self.dismiss()
 
+        def why_not(words: str | None) -> None:
+            if words:
+                finish(not_reconnected=words)
+
+        def joints(answer: str | None) -> None:
+            if answer == "yes":
+                finish(reconnected=True)
+            elif answer == "no":
+                self.app.push_screen(
+                    TextPrompt("Why were they not all reconnected and re-tested?",
+                               "e.g. TJ-03 bolt seized, left for the fitter", required=True),
+                    why_not,
+                )  # fmt: skip
+
+        def done(confirmed: bool | None) -> None:
+            if not confirmed:
+                return
+            if not opened:
+                finish()
+                return
+            self.app.push_screen(
+                ChoiceDialog(
+                    f"Test joints opened for isolated readings: {', '.join(opened)}.\n"
+                    "Was every one reconnected and re-tested?",
+                    [("yes", "Yes: all reconnected and re-tested"), ("no", "No: say why")],
+                ),
+                joints,
+            )
+
         self.app.push_screen(
-            ConfirmDialog(_finish_question(missing, opened), yes_label="Mark complete"), done
+            ConfirmDialog(_finish_question(missing), yes_label="Mark complete"), done
+        )
+
+    def action_not_inspected(self) -> None:
+        """Mark the component in view not inspected, with a reason and words; or take it back."""
+        if not self.stops:
+            return
+        component = self.stop.component
+        marked = component.id in self.saved.not_inspected
+        reasons = [(r.value, r.label) for r in NotInspectedReason]
+        if marked:
+            reasons.append(("clear", "It was inspected after all: take the mark back"))
+
+        def words(reason: str, text: str | None) -> None:
+            if text is None:
+                return
+            try:
+                mark = mark_not_inspected(
+                    self.store, self.inspection_id, component.id, reason, text
+                )
+            except WalkdownError as exc:
+                self.notify(str(exc), severity="error")
+                return
+            self.saved.not_inspected[component.id] = mark
+            self.saved.findings.pop(component.id, None)  # it stands instead of a grade
+            self.move_now(self.index)
+            self._refresh_mark()
+            self.notify(f"{component.tag}: not inspected ({mark.why})")
+
+        def picked(reason: str | None) -> None:
+            if reason is None:
+                return
+            if reason == "clear":
+                clear_not_inspected(self.store, self.inspection_id, component.id)
+                self.saved.not_inspected.pop(component.id, None)
+                self._refresh_mark()
+                self.notify(f"{component.tag}: mark taken back; grade it")
+                return
+            self.app.push_screen(
+                TextPrompt(
+                    f"{component.tag}: what stopped the inspection?",
+                    "e.g. locked plant room, scaffold down",
+                    required=reason == NotInspectedReason.OTHER.value,
+                ),
+                lambda text: words(reason, text),
+            )
+
+        self.app.push_screen(
+            ChoiceDialog(f"Why was {component.tag} not inspected?", reasons), picked
         )
 
     def action_details(self) -> None:
@@ -574,22 +677,11 @@ class WalkdownScreen(Screen[None]):
         self.dismiss()
 
 
-def _finish_question(missing: list[Missing], opened: list[str]) -> Text:
-    """The question before marking complete, with what is still missing listed first.
-
-    Args:
-        opened: Tags of the test joints opened for isolated readings; marking the
-            visit complete confirms they were reconnected and re-tested.
-    """
-    joints = (
-        f"Test joints opened: {', '.join(opened)}. Every one reconnected and re-tested?\n"
-        if opened
-        else ""
-    )
+def _finish_question(missing: list[Missing]) -> Text:
+    """The question before marking complete, with what is still missing listed first."""
     if not missing:
         return Text(
-            "Every component is graded and every test taken.\n"
-            f"{joints}Mark the inspection complete?"
+            "Every component is graded and every test taken.\nMark the inspection complete?"
         )
     text = Text("Still missing:\n", style="bold")
     for item in missing:
@@ -600,7 +692,5 @@ def _finish_question(missing: list[Missing], opened: list[str]) -> Text:
         shown = ", ".join(ungraded[:_UNGRADED_SHOWN])
         more = len(ungraded) - _UNGRADED_SHOWN
         text.append(f" • not graded yet: {shown}{f' and {more} more' if more > 0 else ''}\n")
-    if joints:
-        text.append(f"\n{joints}")
     text.append("\nMark the inspection complete anyway?", style="bold")
     return text
