@@ -1065,9 +1065,36 @@ def opened_joints(store: Store, inspection_id: str) -> list[Component]:
     A reading with the joint open was taken on the joint itself or on an electrode
     below it; each such joint must be closed again and re-tested before leaving.
     """
+    return sorted(_opened(store, inspection_id)[0].values(), key=lambda c: _tag_key(c.tag))
+
+
+def joints_not_retested(store: Store, inspection_id: str) -> list[str]:
+    """Tags of opened joints with no reading across them since: neither a combined reading
+    on the joint nor its down conductor's continuity, taken after it was last opened.
+
+    The finishing question names them, so the re-test is not forgotten.
+    """
+    opened, last_open = _opened(store, inspection_id)
+    readings = store.select(Reading, "inspection_id = ?", [inspection_id])
+    left = []
+    for joint in opened.values():
+        across = {(joint.id, Quantity.EARTH_COMBINED), (joint.parent_id, Quantity.CONTINUITY)}
+        if not any(
+            (r.component_id, r.quantity) in across and r.taken_at >= last_open[joint.id]
+            for r in readings
+        ):
+            left.append(joint.tag)
+    return sorted(left, key=_tag_key)
+
+
+def _opened(
+    store: Store, inspection_id: str
+) -> tuple[dict[str, Component], dict[str, datetime]]:
+    """The joints opened in the visit by id, and when each was last read open."""
     inspection = _inspection(store, inspection_id)
     parts = {c.id: c for c in store.select(Component, "site_id = ?", [inspection.site_id])}
     opened: dict[str, Component] = {}
+    last: dict[str, datetime] = {}
     for reading in store.select(Reading, "inspection_id = ? AND joint_state = ?", [
         inspection_id, JointState.OPEN.value
     ]):
@@ -1076,7 +1103,8 @@ def opened_joints(store: Store, inspection_id: str) -> list[Component]:
             part = parts.get(part.parent_id or "", part)
         if part is not None:
             opened[part.id] = part
-    return sorted(opened.values(), key=lambda c: _tag_key(c.tag))
+            last[part.id] = max(reading.taken_at, last.get(part.id, reading.taken_at))
+    return opened, last
 
 
 def finish_inspection(
@@ -1112,10 +1140,12 @@ def finish_inspection(
         reason = not_reconnected.strip()
         if not reconnected and not reason:
             tags = ", ".join(c.tag for c in opened)
+            untested = joints_not_retested(store, inspection_id)
+            since = f" (no reading across {', '.join(untested)} since)" if untested else ""
             raise WalkdownError(
                 "reconnected",
-                f"test joints opened for isolated readings ({tags}): confirm each was "
-                "reconnected and re-tested, or say why not",
+                f"test joints opened for isolated readings ({tags}){since}: confirm each "
+                "was reconnected and re-tested, or say why not",
             )
         changes["joints_reconnected"] = reconnected
         changes["reconnection_note"] = "" if reconnected else reason

@@ -38,6 +38,7 @@ from inspectkit.walkdown import (
     discard_inspection,
     finish_inspection,
     grade_component,
+    joints_not_retested,
     mark_not_inspected,
     missing_for_completion,
     opened_joints,
@@ -397,3 +398,20 @@ def test_the_plan_proposes_a_return_for_a_component_not_inspected(walk) -> None:
     (owed,) = [r for r in found.reasons if r.what == "return"]
     assert owed.text == "return for AT-02, not inspected on 2026-06-01 (unsafe: ridge iced over)"
     assert "return visit" in found.kind_label
+
+
+def test_the_question_names_joints_with_no_reading_across_them_since(walk) -> None:
+    store, site = walk
+    visit = start_inspection(store, site.site.id, "complete", None, DAY)
+    for n in (1, 2):
+        record_reading(store, visit.id, site.tag(f"ER-0{n}").id, "earth_isolated", "4",
+                       taken_at=AT)  # fmt: skip
+    later = AT.replace(hour=11)
+    record_reading(store, visit.id, site.tag("TJ-01").id, "earth_combined", "2.1", taken_at=later)
+    record_reading(store, visit.id, site.tag("DC-02").id, "continuity", "0.1",
+                   taken_at=AT.replace(hour=9))  # before TJ-02 was opened: not across it
+    assert joints_not_retested(store, visit.id) == ["TJ-02"]
+    with pytest.raises(WalkdownError, match=r"\(TJ-01, TJ-02\) \(no reading across TJ-02 since\)"):
+        finish_inspection(store, visit.id)
+    record_reading(store, visit.id, site.tag("DC-02").id, "continuity", "0.1", taken_at=later)
+    assert joints_not_retested(store, visit.id) == []

@@ -53,6 +53,7 @@ from inspectkit.walkdown import (
     forget_drafts,
     grade_component,
     instrument_for,
+    joints_not_retested,
     keep_drafts,
     mark_not_inspected,
     missing_for_completion,
@@ -533,6 +534,7 @@ class WalkdownScreen(Screen[None]):
             self.keep_unsaved()
         missing = missing_for_completion(self.store, self.inspection_id)
         opened = [c.tag for c in opened_joints(self.store, self.inspection_id)]
+        untested = joints_not_retested(self.store, self.inspection_id)
 
         def finish(**answer: Any) -> None:
             try:
@@ -567,7 +569,12 @@ class WalkdownScreen(Screen[None]):
             self.app.push_screen(
                 ChoiceDialog(
                     f"Test joints opened for isolated readings: {', '.join(opened)}.\n"
-                    "Was every one reconnected and re-tested?",
+                    + (
+                        f"No reading across {', '.join(untested)} since it was opened.\n"
+                        if untested
+                        else ""
+                    )
+                    + "Was every one reconnected and re-tested?",
                     [("yes", "Yes: all reconnected and re-tested"), ("no", "No: say why")],
                 ),
                 joints,
