@@ -146,6 +146,7 @@ async def test_finishing_asks_about_the_joints_and_keeps_why_not(walk_db) -> Non
         await pilot.pause()
         asked = str(app.screen.query_one("#prompt", Static).render())
         assert "Test joints opened for isolated readings: TJ-02" in asked
+        assert "No reading across TJ-02 since it was opened" in asked
         await _choose(pilot, "no")
         await _answer(pilot, "TJ-02 bolt seized; left for the fitter")
         assert not isinstance(app.screen, WalkdownScreen)

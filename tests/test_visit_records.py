@@ -415,3 +415,15 @@ def test_the_question_names_joints_with_no_reading_across_them_since(walk) -> No
         finish_inspection(store, visit.id)
     record_reading(store, visit.id, site.tag("DC-02").id, "continuity", "0.1", taken_at=later)
     assert joints_not_retested(store, visit.id) == []
+
+
+def test_inspection_show_says_what_was_not_inspected(walk) -> None:
+    store, site = walk
+    visit = start_inspection(store, site.site.id, "visual", None, DAY)
+    mark_not_inspected(store, visit.id, site.tag("SPD-01").id, "covered", "board boxed in")
+    shown = _run(store, "inspection", "show", visit.id)
+    assert any("SPD-01" in line and "not inspected (covered: board boxed in)" in line
+               for line in shown.stdout.splitlines())  # fmt: skip
+    stops = json.loads(_run(store, "inspection", "show", visit.id, "--json").stdout)["stops"]
+    [spd] = [s for s in stops if s["tag"] == "SPD-01"]
+    assert spd["not_inspected"] == {"reason": "covered", "text": "board boxed in"}

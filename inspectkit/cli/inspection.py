@@ -345,6 +345,9 @@ def _stop_json(stop: Stop, saved: SavedEntries) -> dict[str, Any]:
             "due_by": finding.due_by.isoformat() if finding.due_by else None,
         },
         "photos": saved.photos.get(component.id, 0),
+        "not_inspected": None
+        if (mark := saved.not_inspected.get(component.id)) is None
+        else {"reason": mark.reason.value, "text": mark.text},
     }
 
 
@@ -368,6 +371,8 @@ def _render(
         graded = finding.grade.value.replace("_", " ") if finding else "not graded"
         if finding and finding.text:
             graded += f": {finding.text}"
+        if (mark := saved.not_inspected.get(component.id)) is not None:
+            graded = f"not inspected ({mark.why})"
         photos = saved.photos.get(component.id, 0)
         extra = f" · {photos} photo(s)" if photos else ""
         tag = component.tag.ljust(12 - 2 * stop.depth)
