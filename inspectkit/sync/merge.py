@@ -295,14 +295,21 @@ def _check_readings(store: Store, plan: _Plan) -> None:
     keeps ours (see `_apply`). A reading made after its visit was last changed
     (finished) is a reading added to a finished visit.
     """
+    ours: dict[tuple[str, str], Any] = {}  # each record read once, however many readings
+
+    def held(model: type[Any], record_id: str) -> Any:
+        if (model.table, record_id) not in ours:
+            ours[model.table, record_id] = store.get(model, record_id)
+        return ours[model.table, record_id]
+
     def record(model: type[Any], record_id: str | None) -> Any:
         if not record_id:
             return None
-        return plan.records.get(model.table, {}).get(record_id) or store.get(model, record_id)
+        return plan.records.get(model.table, {}).get(record_id) or held(model, record_id)
 
     def signed(inspection_id: str) -> bool:
         theirs = plan.records.get("inspection", {}).get(inspection_id)
-        copies = (theirs, store.get(Inspection, inspection_id))
+        copies = (theirs, held(Inspection, inspection_id))
         return any(c is not None and c.state is InspectionState.SIGNED for c in copies)
 
     written = [
