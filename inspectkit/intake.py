@@ -31,6 +31,7 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.units import format_value
+from inspectkit.wording import with_article
 
 #: Setting: hours a reading may lie before the visit's day starts or after it ends (UTC).
 WINDOW_SETTING = "reading_window_hours"
@@ -122,8 +123,8 @@ def refusal(
         allowed = ", ".join(q.label for q in carried) or "none (judged by eye)"
         return ReadingRefused(
             "quantity",
-            f"{component.tag}: a {quantity.label} is not measured on a {component.kind.label}; "
-            f"readings here: {allowed}",
+            f"{component.tag}: {with_article(quantity.label)} is not measured on "
+            f"{with_article(component.kind.label)}; readings here: {allowed}",
         )
     if instrument is not None:
         misfit = instrument_misfit(instrument.kind, quantity, reading.method, instrument.named)

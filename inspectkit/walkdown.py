@@ -21,7 +21,7 @@ from inspectkit import intake
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
-from inspectkit.engine.results import Result
+from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
     INSTRUMENT_METHODS,
     INSTRUMENT_QUANTITIES,
@@ -686,7 +686,8 @@ def _about(results: Iterable[Result], reading: Reading) -> list[Result]:
     return [
         r
         for r in results
-        if r.component_id == reading.component_id and r.reading_id in (None, reading.id)
+        if r.covers(reading.id)
+        or (r.component_id == reading.component_id and r.reading_id is None and not r.reading_ids)
     ]
 
 
@@ -752,13 +753,7 @@ def _compared(reading: Reading, limit: float | None, severity: Severity) -> str:
     return f"{word} {shown} > {bound}"
 
 
-_WORD = {
-    Severity.OK: "PASS",
-    Severity.WATCH: "WATCH",
-    Severity.INCOMPLETE: "INCOMPLETE",
-    Severity.FAIL: "FAIL",
-    Severity.OVERDUE: "OVERDUE",
-}
+_WORD = {s: w.shout for s, w in SEVERITY_WORDS.items()}
 
 
 def _comparison(reading: Reading, previous: Reading | None, records: SiteRecords) -> str:

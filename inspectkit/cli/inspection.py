@@ -29,6 +29,7 @@ from inspectkit.walkdown import (
     start_inspection,
     walk_for,
 )
+from inspectkit.wording import counted
 
 inspection_app = typer.Typer(
     help="Inspections: start or continue a walkdown, see it, note its details, finish it.",
@@ -374,7 +375,7 @@ def _render(
         if (mark := saved.not_inspected.get(component.id)) is not None:
             graded = f"not inspected ({mark.why})"
         photos = saved.photos.get(component.id, 0)
-        extra = f" · {photos} photo(s)" if photos else ""
+        extra = f" · {counted(photos, 'photo')}" if photos else ""
         tag = component.tag.ljust(12 - 2 * stop.depth)
         yield f"{indent}{tag} {component.kind.label:<26} {graded}{extra}"
         for quantity in stop.quantities:
@@ -383,7 +384,7 @@ def _render(
                 yield f"{indent}  · {quantity.label}: not entered"
             else:
                 yield f"{indent}  · {outcome_line('', outcome)}"
-    yield f"{len(missing)} thing(s) missing." if missing else "Nothing missing."
+    yield f"{counted(len(missing), 'thing')} missing." if missing else "Nothing missing."
 
 
 #: Width of the labels in the details listing.
