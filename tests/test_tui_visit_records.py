@@ -78,7 +78,7 @@ async def test_each_reading_takes_the_chosen_instrument_of_its_kind(walk_db) -> 
         store = app.store
         serials = {i.serial: i.id for i in store.select(Instrument)}
         picker = screen.query_one("#instrument", Select)
-        labels = dict((value, label) for label, value in screen._instrument_options())
+        labels = dict((value, label) for label, value in screen.bar._instrument_options())
         assert labels[serials["ET-7001"]].startswith("earth tester: ")
         picker.value = serials["ET-7001"]
         await pilot.pause()
