@@ -11,7 +11,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
-from inspectkit.model import ElectrodeType, Grade, ProtectionLevel
+from inspectkit.model import ElectrodeType, Grade, NotInspectedReason, ProtectionLevel
 from inspectkit.paths import demo_dir
 from inspectkit.plan.geo import parse_point
 from inspectkit.tomlfile import read_toml, validated
@@ -81,6 +81,14 @@ class FixedEarth(_Data):
 
     tag: str
     ohms: float = Field(gt=0)
+
+
+class SkippedPart(_Data):
+    """A component the latest complete inspection could not inspect, and why."""
+
+    tag: str
+    reason: NotInspectedReason
+    text: str = ""
 
 
 class DriftingEarth(_Data):
@@ -161,6 +169,8 @@ class SiteSpec(_Data):
     lapsed_instrument: str | None = None
     missing_readings: list[str] = Field(default_factory=list)
     not_inspected: str = ""
+    #: Components the latest complete inspection marked not inspected.
+    skipped: list[SkippedPart] = Field(default_factory=list)
     #: Who went round with the inspector at the latest complete inspection.
     accompanied_by: str = ""
     #: Changes to the structure found at the latest complete inspection.

@@ -17,7 +17,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from datetime import date, timedelta
 
-from inspectkit.engine.history import as_of, counts_as_done
+from inspectkit.engine.history import as_of, counts_as_done, open_not_inspected
 from inspectkit.engine.schedule import DueKind, SiteSchedule
 from inspectkit.model import Finding, Grade, InspectionKind, Site, SiteRecords
 from inspectkit.plan.geo import Point
@@ -170,17 +170,31 @@ def _action(f: Finding) -> str:
 
 
 def return_visits(records: SiteRecords, first_day: date) -> list[Reason]:
-    """A return visit owed to what the latest counted visit could not inspect.
+    """The returns owed to what visits could not inspect.
 
-    Only the latest visit counts: a later one looked at the site again. The return
-    is due `RETURN_WITHIN_DAYS` after that visit (our default).
+    One for each component marked not inspected that no visit has graded or measured
+    since, owed now. A latest visit with no such marks but a note of what it could
+    not inspect owes one return for the note, due `RETURN_WITHIN_DAYS` after it (our
+    default); a later visit looked at the site again.
     """
-    done = [i for i in as_of(records, first_day).inspections if counts_as_done(i)]
-    if not done:
-        return []
+    known = as_of(records, first_day)
+    tags = {c.id: c.tag for c in records.components}
+    marked = [
+        Reason(
+            RETURN,
+            first_day,
+            f"return for {tags[mark.component_id]}, not inspected on {day.isoformat()} "
+            f"({mark.why})",
+            0,
+        )
+        for mark, day in open_not_inspected(known, first_day)
+    ]
+    done = [i for i in known.inspections if counts_as_done(i)]
+    if marked or not done:
+        return marked
     latest = max(done, key=lambda i: (i.date, i.created_at))
     what = latest.not_inspected.strip()
-    if not what:
+    if not what or any(m.inspection_id == latest.id for m in known.not_inspected):
         return []
     due = latest.date + timedelta(days=RETURN_WITHIN_DAYS)
     return [

@@ -18,6 +18,7 @@ from inspectkit.model import (
     Inspection,
     InspectionKind,
     InspectionState,
+    NotInspected,
     Photo,
     Reading,
     Record,
@@ -61,11 +62,13 @@ def create_amendment(store: Store, inspection_id: str, today: date) -> Inspectio
         amends_id=original.id,
         report_revision=max(original.report_revision, 1) + 1,
         not_inspected=original.not_inspected,
+        joints_reconnected=original.joints_reconnected,
+        reconnection_note=original.reconnection_note,
         notes=original.notes,
     )
     where = ("inspection_id = ?", [original.id])
     copies: list[Record] = [amendment]
-    for model in (Reading, Finding, Photo):
+    for model in (Reading, Finding, Photo, NotInspected):
         for record in store.select(model, *where):
             copies.append(record.model_copy(update={"id": new_id(), "inspection_id": amendment.id}))
     store.save_all(copies)

@@ -12,6 +12,7 @@ from inspectkit.model import (
     ElectrodeType,
     Inspector,
     Instrument,
+    InstrumentKind,
     Organisation,
     ProtectionLevel,
     Site,
@@ -136,9 +137,13 @@ def inspector_dialog(organisations: Sequence[Organisation] = ()) -> RecordDialog
 
 
 def instrument_dialog() -> RecordDialog[Instrument]:
-    """Add a test instrument with its calibration due date."""
+    """Add a test instrument with what kind it is and its calibration due date."""
     fields = [
         Field("description", "Description", "make and model, e.g. earth tester ET-4"),
+        Field(
+            "kind", "Kind", "what it measures", optional=True,
+            choices=[(k.label, k.value) for k in InstrumentKind],
+        ),
         Field("serial", "Serial", "the serial number on the instrument"),
         Field("calibration_due", "Calibration due", DATE_HINT, optional=True),
     ]
