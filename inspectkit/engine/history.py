@@ -62,6 +62,7 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         findings=findings,
         photos=[p for p in records.photos if p.inspection_id in known],
         instruments=records.instruments,
+        geometry=records.geometry,
     )
 
 

@@ -13,6 +13,7 @@ from typing import Any, get_args
 
 from pydantic import BaseModel
 
+from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import (
     Component,
     Finding,
@@ -25,6 +26,7 @@ from inspectkit.model import (
     SiteRecords,
 )
 from inspectkit.store.database import Store, StoreError
+from inspectkit.store.geometry import site_geometry
 from inspectkit.store.rows import from_row
 
 
@@ -105,6 +107,7 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         findings=store.select(Finding, in_site, [site_id]),
         photos=store.select(Photo, in_site, [site_id]),
         instruments=instruments,
+        geometry=site_geometry(store, site_id),
     )
 
 
@@ -126,6 +129,13 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
         "readings": _by_visit(store, Reading, "reading", site_of),
         "findings": _by_visit(store, Finding, "finding", site_of),
         "photos": _by_visit(store, Photo, "photo", site_of),
+        # Validated, not trusted-built: points are stored as JSON text; geometry is small.
+        "geometry": (
+            (site_id, list(items))
+            for site_id, items in groupby(
+                store.select(GeometryItem, order_by="site_id"), key=attrgetter("site_id")
+            )
+        ),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
     for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
@@ -147,6 +157,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             findings=parts.get("findings", []),
             photos=parts.get("photos", []),
             instruments={key: instruments[key] for key in used if key in instruments},
+            geometry=parts.get("geometry", []),
         )
 
 

@@ -212,6 +212,32 @@ def _v3(db: sqlite_utils.Database) -> None:
             )
 
 
+_GEOMETRY = f"""
+CREATE TABLE geometry_item (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    kind TEXT NOT NULL,
+    tag TEXT NOT NULL,
+    component_id TEXT REFERENCES component(id),
+    points TEXT NOT NULL,
+    z_m REAL NOT NULL,
+    what TEXT NOT NULL DEFAULT '',
+    conductive INTEGER NOT NULL DEFAULT 0,
+    bonded INTEGER NOT NULL DEFAULT 0,
+    separated_by TEXT NOT NULL DEFAULT 'air',
+    clearance_m REAL,
+    note TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE INDEX geometry_item_site ON geometry_item(site_id, kind, tag);
+"""
+
+
+def _geometry(db: sqlite_utils.Database) -> None:
+    """Site geometry in local metres (roofs, LPS conductors, rooftop items), one row each."""
+    db.executescript(_GEOMETRY)
+
+
 def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
     """A table's rows by id, as SQLite returns them (the form the audit log hashes)."""
     cursor = db.execute(f"SELECT * FROM [{table}]")
@@ -221,5 +247,10 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
 
 
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _geometry,
+)
 SCHEMA_VERSION = len(MIGRATIONS)
