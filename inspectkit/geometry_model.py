@@ -159,7 +159,8 @@ class GeometryItem(Record):
         if n < least or (most is not None and n > most):
             count = f"exactly {least}" if least == most else f"at least {least}"
             raise ValueError(
-                f"points: a {self.kind.label} takes {count} point(s) ({what}); got {n}"
+                f"points: {_article(self.kind.label)} {self.kind.label} takes {count} "
+                f"point(s) ({what}); got {n}"
             )
         if self.kind is not GeometryKind.ROOFTOP_ITEM and (
             self.conductive or self.bonded or self.clearance_m is not None
@@ -209,6 +210,10 @@ def box_footprint(centre: Point, size: tuple[float, float], angle_deg: float = 0
     c, s = math.cos(math.radians(angle_deg)), math.sin(math.radians(angle_deg))
     corners = ((-w / 2, -d / 2), (w / 2, -d / 2), (w / 2, d / 2), (-w / 2, d / 2))
     return [(cx + c * x - s * y, cy + s * x + c * y) for x, y in corners]
+
+
+def _article(word: str) -> str:
+    return "an" if word[:1] in "aeiou" else "a"
 
 
 def _area(points: tuple[Point, ...]) -> float:

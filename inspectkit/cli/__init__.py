@@ -17,8 +17,22 @@ from inspectkit import __version__
 from inspectkit.cli.common import DbOption, resolve_db
 
 #: Modules under inspectkit.cli that add commands.
-COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
-                   "upkeep", "inspection", "entries", "findings")
+COMMAND_MODULES = (
+    "sites",
+    "demo",
+    "plan",
+    "sync",
+    "check",
+    "readings",
+    "report",
+    "keys",
+    "verify",
+    "upkeep",
+    "inspection",
+    "entries",
+    "findings",
+    "geometry",
+)
 
 app = typer.Typer(
     name="inspectkit",

@@ -19,6 +19,7 @@ from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
+from inspectkit.demo.geometry import demo_geometry
 from inspectkit.demo.ground import SOIL_FACTOR, soil_on, weather_in
 from inspectkit.demo.scenario import DriftingEarth, ScenarioError, SiteSpec
 from inspectkit.demo.system import System, lay_out
@@ -474,6 +475,9 @@ class SiteHistory:
                 *(v.inspection for v in self.visits),
                 *self.readings,
                 *self.findings,
+                *demo_geometry(
+                    spec.geometry, self.site, self.system.components, stamps(self.site.created_at)
+                ),
             ]
         )
 

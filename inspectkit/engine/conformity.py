@@ -104,6 +104,7 @@ class Separation:
     measured: bool
     length_m: float
     nearest_tag: str
+    down_tag: str
     ki: float
     kc: float
     km: float
@@ -288,7 +289,7 @@ def protection_of(
     """How far an item's top lies inside (or above) the protected volume, and a fix."""
     points, spacing = top_points(item)
     exposure, worst, resting = _exposure(obstacles, points, item.z_m, r)
-    names = tuple(dict.fromkeys(tags[k] for k in sorted(resting) if k < len(tags)))
+    names = tuple(dict.fromkeys(tags[k] for k in resting if k < len(tags)))
     protection = Protection(exposure, worst, names, len(points), spacing)
     if not protection.exposed:
         return protection
@@ -299,10 +300,11 @@ def protection_of(
 
 def _exposure(
     obstacles: Obstacles, points: np.ndarray, top: float, r: float
-) -> tuple[float, Point, set[int]]:
-    """The worst point's height above the protected volume: every point bracketed
-    coarsely, then the worst ones finely until the worst is a fine one."""
-    lows, fine, resting = [], set(), set()
+) -> tuple[float, Point, tuple[int, ...]]:
+    """The worst point's height above the protected volume, and what the sphere rests on
+    there: every point bracketed coarsely, then the worst ones finely until the worst
+    is a fine one."""
+    lows, fine, resting = [], set(), ()
     for x, y in points:
         envelope = envelope_height(
             obstacles,
@@ -314,12 +316,12 @@ def _exposure(
             enough=top + PROTECTION_MARGIN_M,
         )
         lows.append(envelope.lo)
-        resting.update(envelope.resting)
     while True:
         k = int(np.argmin(lows))
         if k in fine:
             return top - lows[k], (float(points[k, 0]), float(points[k, 1])), resting
-        lows[k] = envelope_height(obstacles, float(points[k, 0]), float(points[k, 1]), r).lo
+        envelope = envelope_height(obstacles, float(points[k, 0]), float(points[k, 1]), r)
+        lows[k], resting = envelope.lo, envelope.resting
         fine.add(k)
 
 
@@ -338,17 +340,28 @@ def _fix(
             "no single rod at its centre covers it; add air terminals round it or "
             "extend the mesh over it"
         )
-    height, corners = closed, np.array(item.points, dtype=float)
-    for _ in range(8):
+    corners = np.array(item.points, dtype=float)
+
+    def covers(height: float) -> bool:
         trial = obstacles.with_element(centre, centre, base + height)
-        if _exposure(trial, corners, top, r)[0] < 0:
-            return (
-                f"a rod at its centre ({centre[0]:.1f}, {centre[1]:.1f}) reaching "
-                f"{height:.2f} m above the roof (z = {base + height:.2f} m) would cover it "
-                f"(single-rod closed form {closed:.2f} m, checked numerically at its corners)"
-            )
-        height = min(height + 0.25, r)
-    return "a rod at its centre does not cover it within 2 m of the closed form; add more"
+        return _exposure(trial, corners, top, r)[0] < 0
+
+    if not covers(r):
+        return (
+            "no single rod at its centre covers it (it stands where the sphere comes in "
+            "from the side); add air terminals round it or extend the mesh over it"
+        )
+    low, high = closed, r
+    if not covers(low):
+        while high - low > 0.05:  # bisection to 5 cm (our default)
+            middle = (low + high) / 2
+            low, high = (low, middle) if covers(middle) else (middle, high)
+        low = high
+    return (
+        f"a rod at its centre ({centre[0]:.1f}, {centre[1]:.1f}) reaching {low:.2f} m "
+        f"above the roof (z = {base + low:.2f} m) would cover it (single-rod closed form "
+        f"{closed:.2f} m, checked numerically at its corners)"
+    )
 
 
 def separation_of(
@@ -378,6 +391,7 @@ def separation_of(
         measured=measured,
         length_m=nearest.to_earth,
         nearest_tag=nearest.tag,
+        down_tag=nearest.down,
         ki=SEPARATION_KI[level],
         kc=kc,
         km=SEPARATION_KM[material],
@@ -395,9 +409,12 @@ def _separation_sentence(item: GeometryItem, sep: Separation | None) -> tuple[Se
             "out its separation distance; record the down conductors"
         )
     how = "measured" if sep.measured else "from the drawn positions"
+    where = sep.nearest_tag
+    if sep.down_tag and sep.down_tag != sep.nearest_tag:
+        where += f" (l runs down {sep.down_tag})"
     figures = (
         f"s = {sep.ki:g} × {sep.kc:g}/{sep.km:g} × {sep.length_m:.1f} m = {sep.required_m:.2f} m "
-        f"to {sep.nearest_tag}, clearance {sep.clearance_m:.2f} m ({how})"
+        f"from {where}, clearance {sep.clearance_m:.2f} m ({how})"
     )
     if sep.clearance_m < sep.required_m:
         return Severity.FAIL, (

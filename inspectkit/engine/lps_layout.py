@@ -182,18 +182,14 @@ def largest_gap(perimeter: float, positions: Sequence[float]) -> float:
 
 def downs_on(roof: GeometryItem, downs: Sequence[GeometryItem]) -> list[GeometryItem]:
     """The down conductors standing on a roof's outline."""
+    return [d for d in downs if on_outline(roof, d.points[0])]
+
+
+def on_outline(roof: GeometryItem, point: Point) -> bool:
+    """Whether a point lies on (within ON_OUTLINE_M of) a roof's outline."""
     outline = np.array(roof.points, dtype=float)
-    return [
-        d
-        for d in downs
-        if polygon_distance(np.array(d.points, dtype=float), outline)[0] <= ON_OUTLINE_M
-        or _edge_distance(d.points[0], outline) <= ON_OUTLINE_M
-    ]
-
-
-def _edge_distance(point: Point, outline: np.ndarray) -> float:
     edges = np.hstack([outline, np.roll(outline, -1, axis=0)])
-    return float(segment_distances(np.array([point], dtype=float), edges).min())
+    return bool(segment_distances(np.array([point], dtype=float), edges).min() <= ON_OUTLINE_M)
 
 
 # ---------------------------------------------------------------- distances to items
@@ -207,6 +203,8 @@ class Nearest:
     distance: float
     point: Point3
     to_earth: float
+    #: The down conductor that way to earth runs down.
+    down: str = ""
 
 
 def item_span(layout: Layout, item: GeometryItem) -> tuple[float, float]:
@@ -228,11 +226,11 @@ def nearest_conductor(layout: Layout, item: GeometryItem) -> Nearest | None:
     for (u, v), tag in network.edges.items():
         point, gap = _nearest_on(network.nodes[u], network.nodes[v], footprint, base, top)
         if best is None or gap < best.distance - 1e-9:
-            to_earth = min(
-                network.to_earth[u] + _dist3(point, network.nodes[u]),
-                network.to_earth[v] + _dist3(point, network.nodes[v]),
+            to_earth, end = min(
+                (network.to_earth[u] + _dist3(point, network.nodes[u]), u),
+                (network.to_earth[v] + _dist3(point, network.nodes[v]), v),
             )
-            best = Nearest(tag, gap, point, to_earth)
+            best = Nearest(tag, gap, point, to_earth, network.down_of.get(end, ""))
     return best
 
 
@@ -275,11 +273,13 @@ class Network:
     nodes: dict[int, Point3]
     edges: dict[tuple[int, int], str]
     to_earth: dict[int, float]
+    #: The down conductor each node's shortest way to earth runs down.
+    down_of: dict[int, str]
 
     @classmethod
     def of(cls, layout: Layout) -> Network:
         builder = _Builder(layout)
-        return cls(builder.nodes, builder.edges, builder.lengths_to_earth())
+        return cls(builder.nodes, builder.edges, *builder.lengths_to_earth())
 
 
 class _Builder:
@@ -288,14 +288,14 @@ class _Builder:
     def __init__(self, layout: Layout) -> None:
         self.nodes: dict[int, Point3] = {}
         self.edges: dict[tuple[int, int], str] = {}
-        self.links: list[tuple[int, int, float]] = []
+        self.links: list[tuple[int, int, float, str]] = []
         self.earth = self._node((math.nan, math.nan, 0.0))
         joints: list[tuple[Point3, int]] = []
         for d in layout.downs:
             x, y = d.points[0]
             top, foot = self._node((x, y, d.z_m)), self._node((x, y, 0.0))
-            self._edge(top, foot, d.tag)
-            self.links.append((foot, self.earth, 0.0))
+            self._edge(top, foot, d.tag, down=True)
+            self.links.append((foot, self.earth, 0.0, ""))
             joints.append((self.nodes[top], top))
         for t in layout.terminals:
             x, y = t.points[0]
@@ -318,9 +318,9 @@ class _Builder:
         self.nodes[key] = point
         return key
 
-    def _edge(self, u: int, v: int, tag: str) -> None:
+    def _edge(self, u: int, v: int, tag: str, down: bool = False) -> None:
         self.edges[(u, v)] = tag
-        self.links.append((u, v, _dist3(self.nodes[u], self.nodes[v])))
+        self.links.append((u, v, _dist3(self.nodes[u], self.nodes[v]), tag if down else ""))
 
     def _split_run(self, a: Point3, b: Point3, tag: str, joints: list[tuple[Point3, int]]) -> None:
         """One horizontal run, cut at every joint within JOIN_M of it."""
@@ -337,25 +337,29 @@ class _Builder:
         for t, joint in stops:
             here = self._node((a[0] + t * ab[0], a[1] + t * ab[1], a[2]))
             if joint is not None:
-                self.links.append((here, joint, _dist3(self.nodes[here], self.nodes[joint])))
+                self.links.append((here, joint, _dist3(self.nodes[here], self.nodes[joint]), ""))
             if previous is not None:
                 self._edge(previous, here, tag)
             previous = here
 
-    def lengths_to_earth(self) -> dict[int, float]:
-        adjacent: dict[int, list[tuple[int, float]]] = {n: [] for n in self.nodes}
-        for u, v, w in self.links:
-            adjacent[u].append((v, w))
-            adjacent[v].append((u, w))
+    def lengths_to_earth(self) -> tuple[dict[int, float], dict[int, str]]:
+        """Dijkstra from earth: each node's conductor length to earth, and the down
+        conductor that shortest way runs down."""
+        adjacent: dict[int, list[tuple[int, float, str]]] = {n: [] for n in self.nodes}
+        for u, v, w, down in self.links:
+            adjacent[u].append((v, w, down))
+            adjacent[v].append((u, w, down))
         best = {n: math.inf for n in self.nodes}
         best[self.earth] = 0.0
+        down_of: dict[int, str] = {}
         queue = [(0.0, self.earth)]
         while queue:
             d, n = heapq.heappop(queue)
             if d > best[n]:
                 continue
-            for m, w in adjacent[n]:
+            for m, w, down in adjacent[n]:
                 if d + w < best[m]:
                     best[m] = d + w
+                    down_of[m] = down or down_of.get(n, "")
                     heapq.heappush(queue, (d + w, m))
-        return best
+        return best, down_of

@@ -206,17 +206,47 @@ def _distances(obstacles: Obstacles, centres: np.ndarray) -> tuple[np.ndarray, n
     return d, np.concatenate([obstacles.tops, np.asarray(obstacles.roof_heights, dtype=float)])
 
 
-def _lowest_centres(distances: np.ndarray, tops: np.ndarray, r: float, widen: float) -> np.ndarray:
+def _lowest_centres(distances: np.ndarray, tops: np.ndarray, r: float) -> np.ndarray:
     """Lowest height of the sphere's centre above each centre position, from its
-    distances to everything; with `widen` > 0, a lower bound of it over every position
-    within `widen` of the centre (each distance may be `widen` longer there)."""
+    distances to everything."""
     lowest = np.full(len(distances), r)
     if distances.shape[1]:
-        far = distances + widen
-        rise = np.sqrt(np.maximum(r * r - far * far, 0.0))
-        heights = np.where(far < r, tops[None, :] + rise, -np.inf)
+        rise = np.sqrt(np.maximum(r * r - distances * distances, 0.0))
+        heights = np.where(distances < r, tops[None, :] + rise, -np.inf)
         lowest = np.maximum(lowest, heights.max(axis=1))
     return lowest
+
+
+def _lower_bounds(
+    distances: np.ndarray,
+    tops: np.ndarray,
+    from_place: np.ndarray,
+    reach: np.ndarray,
+    widen: float,
+    r: float,
+) -> np.ndarray:
+    """A lower bound of g over each cell (centre distances given, half-diagonal `widen`).
+
+    g is the largest of its terms (the ground, each element), each less the same
+    √(r² − t²). Each term is bounded with its own distance u to the element and the
+    distance t to the place *together*: over the cell u ≤ u₀ + w and t ≥ t₀ − w, and
+    also t ≥ u − δ, δ being the element's distance from the place (the triangle
+    inequality). The last keeps the bound tight right beside a rod or a conductor,
+    where the two square roots nearly cancel.
+    """
+    t_low = np.maximum(reach - widen, 0.0)
+    bound = r - np.sqrt(np.maximum(r * r - np.minimum(t_low, r) ** 2, 0.0))
+    if distances.shape[1]:
+        u_high = distances + widen
+        t_joint = np.minimum(np.maximum(t_low[:, None], u_high - from_place[None, :]), r)
+        terms = (
+            tops[None, :]
+            + np.sqrt(np.maximum(r * r - u_high * u_high, 0.0))
+            - np.sqrt(np.maximum(r * r - t_joint * t_joint, 0.0))
+        )
+        terms = np.where(u_high < r, terms, -np.inf)
+        bound = np.maximum(bound, terms.max(axis=1))
+    return bound
 
 
 @dataclass(frozen=True)
@@ -266,6 +296,7 @@ def envelope_height(
         raise GeometryError(f"r must be above zero (got {r})")
     place = np.array([x, y], dtype=float)
     obstacles, index = obstacles.near(place, 2 * r)
+    from_place = _distances(obstacles, place[None, :])[0][0]
     cell = r / FIRST_CELLS_PER_RADIUS
     steps = (np.arange(2 * FIRST_CELLS_PER_RADIUS) + 0.5) * cell - r
     gx, gy = np.meshgrid(steps, steps)
@@ -281,14 +312,13 @@ def envelope_height(
         if keep_centres:
             kept.append(cells)
         distances, tops = _distances(obstacles, cells)
-        exact = _lowest_centres(distances, tops, r, 0.0)
+        exact = _lowest_centres(distances, tops, r)
         inside = reach <= r
         if inside.any():
             g = exact[inside] - np.sqrt(r * r - reach[inside] ** 2)
             if float(g.min()) < best:
                 best, best_at = float(g.min()), cells[inside][int(np.argmin(g))]
-        near = np.maximum(reach - half_diagonal, 0.0)
-        bound = _lowest_centres(distances, tops, r, half_diagonal) - np.sqrt(r * r - near**2)
+        bound = _lower_bounds(distances, tops, from_place, reach, half_diagonal, r)
         alive = bound <= best
         lo = float(bound[alive].min()) if alive.any() else best
         if lo >= enough or best - lo <= tolerance:
@@ -309,9 +339,7 @@ def envelope_height(
     )
 
 
-def _resting(
-    obstacles: Obstacles, centre: np.ndarray, r: float, slack: float
-) -> tuple[int, ...]:
+def _resting(obstacles: Obstacles, centre: np.ndarray, r: float, slack: float) -> tuple[int, ...]:
     """What a sphere lowered at `centre` comes to rest on: everything within `slack`
     (the search's resolution) of touching it."""
     at = centre[None, :]

@@ -81,7 +81,6 @@ REFERENCES: dict[str, dict[str, str]] = {
 }
 
 
-
 @dataclass(frozen=True)
 class ExportSummary:
     """What a bundle holds, for the command to print."""
