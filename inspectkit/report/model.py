@@ -12,6 +12,7 @@ from collections import Counter
 from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import SiteCheck, check_site
+from inspectkit.engine.conformity import assess
 from inspectkit.engine.history import as_of, calibration_lapsed, electrode_count, series, usable
 from inspectkit.engine.results import Result
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
@@ -41,6 +42,7 @@ from inspectkit.report.content import (
     PhotoItem,
     ReadingRow,
     ReportContent,
+    RoofPlan,
     TrendChart,
 )
 from inspectkit.store import Store, StoreError
@@ -526,7 +528,15 @@ def build_report(
         amends=amends_text,
         amendment=changes,
         general_photos=general_photos,
+        roof_plan=_roof_plan(records),
     )
+
+
+def _roof_plan(records: SiteRecords) -> RoofPlan | None:
+    """The site's geometry with its verdicts, for the plan page; None without geometry."""
+    if not records.geometry:
+        return None
+    return RoofPlan(tuple(records.geometry), assess(records.site, records.geometry))
 
 
 def _parts(

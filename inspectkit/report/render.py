@@ -43,6 +43,7 @@ from inspectkit.report.branding import Branding
 from inspectkit.report.charts import trend_drawing
 from inspectkit.report.content import CHANGES_TITLE, Field, PhotoItem, ReportContent
 from inspectkit.report.photos import downscale
+from inspectkit.report.roof_plan import plan_section
 from inspectkit.report.sign import SignatureSlot
 
 PAGE = A4
@@ -553,6 +554,8 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         add(CondPageBreak(80 * mm))
         add(Paragraph("Photos", styles["h1"]))
         story.extend(_photo_grid(content.general_photos, styles, width))
+
+    story.extend(plan_section(content.roof_plan, styles, width))
 
     add(CondPageBreak(75 * mm))
     add(Paragraph("Sign-off", styles["h1"]))
