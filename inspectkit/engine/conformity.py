@@ -63,6 +63,8 @@ TABLE_TOLERANCE = 0.10
 #: Points on an item's top are tried along its edges and across it this far apart, or
 #: closer on a small item (our default).
 TOP_SPACING_M = 0.5
+#: The rod height of a fix is found to within this (our default).
+FIX_RESOLUTION_M = 0.05
 #: Least number of down conductors (IEC 62305-3 clause 5.3, from memory).
 MIN_DOWN_CONDUCTORS = 2
 
@@ -343,20 +345,35 @@ def _fix(
     corners = np.array(item.points, dtype=float)
 
     def covers(height: float) -> bool:
+        """Every corner surely inside once the rod is there (undecided counts as not)."""
         trial = obstacles.with_element(centre, centre, base + height)
-        return _exposure(trial, corners, top, r)[0] < 0
+        for x, y in corners:
+            envelope = envelope_height(
+                trial,
+                float(x),
+                float(y),
+                r,
+                COARSE_TOLERANCE_M,
+                max_cells=COARSE_MAX_CELLS,
+                enough=top + 1e-9,
+                below=top,
+            )
+            if envelope.lo <= top:
+                return False
+        return True
 
-    if not covers(r):
-        return (
-            "no single rod at its centre covers it (it stands where the sphere comes in "
-            "from the side); add air terminals round it or extend the mesh over it"
-        )
-    low, high = closed, r
-    if not covers(low):
-        while high - low > 0.05:  # bisection to 5 cm (our default)
-            middle = (low + high) / 2
-            low, high = (low, middle) if covers(middle) else (middle, high)
-        low = high
+    low, high, step = closed, closed, 0.1
+    while not covers(high):  # up from the closed form in doubling steps, then halve back
+        if high >= r:
+            return (
+                "no single rod at its centre covers it (it stands where the sphere comes in "
+                "from the side); add air terminals round it or extend the mesh over it"
+            )
+        low, high, step = high, min(high + step, r), step * 2
+    while high - low > FIX_RESOLUTION_M:
+        middle = (low + high) / 2
+        low, high = (low, middle) if covers(middle) else (middle, high)
+    low = high
     return (
         f"a rod at its centre ({centre[0]:.1f}, {centre[1]:.1f}) reaching {low:.2f} m "
         f"above the roof (z = {base + low:.2f} m) would cover it (single-rod closed form "

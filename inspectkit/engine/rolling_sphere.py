@@ -280,6 +280,7 @@ def envelope_height(
     keep_centres: bool = False,
     max_cells: int = MAX_CELLS,
     enough: float = math.inf,
+    below: float = -math.inf,
 ) -> Envelope:
     """Lowest point the sphere reaches above (x, y): the top of the protected volume there.
 
@@ -291,6 +292,7 @@ def envelope_height(
             is then wider than `tolerance`, still proven).
         enough: stop as soon as the envelope is known to lie at least this high (the
             caller only needs to know that a point is well inside).
+        below: stop as soon as it is known to lie below this (the point is exposed).
     """
     if not r > 0:
         raise GeometryError(f"r must be above zero (got {r})")
@@ -321,7 +323,7 @@ def envelope_height(
         bound = _lower_bounds(distances, tops, from_place, reach, half_diagonal, r)
         alive = bound <= best
         lo = float(bound[alive].min()) if alive.any() else best
-        if lo >= enough or best - lo <= tolerance:
+        if lo >= enough or best < below or best - lo <= tolerance:
             break
         if rounds == MAX_ROUNDS or alive.sum() > max_cells:
             break
