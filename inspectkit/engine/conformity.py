@@ -308,16 +308,7 @@ def _exposure(
     is a fine one."""
     lows, fine, resting = [], set(), ()
     for x, y in points:
-        envelope = envelope_height(
-            obstacles,
-            float(x),
-            float(y),
-            r,
-            COARSE_TOLERANCE_M,
-            max_cells=COARSE_MAX_CELLS,
-            enough=top + PROTECTION_MARGIN_M,
-        )
-        lows.append(envelope.lo)
+        lows.append(_coarse_low(obstacles, x, y, r, top + PROTECTION_MARGIN_M))
     while True:
         k = int(np.argmin(lows))
         if k in fine:
@@ -325,6 +316,23 @@ def _exposure(
         envelope = envelope_height(obstacles, float(points[k, 0]), float(points[k, 1]), r)
         lows[k], resting = envelope.lo, envelope.resting
         fine.add(k)
+
+
+def _coarse_low(
+    obstacles: Obstacles, x: float, y: float, r: float, enough: float, below: float = -math.inf
+) -> float:
+    """The low side of a coarse bracket, cut short once it is known to be above `enough`
+    or below `below`."""
+    return envelope_height(
+        obstacles,
+        float(x),
+        float(y),
+        r,
+        COARSE_TOLERANCE_M,
+        max_cells=COARSE_MAX_CELLS,
+        enough=enough,
+        below=below,
+    ).lo
 
 
 def _fix(
@@ -347,20 +355,7 @@ def _fix(
     def covers(height: float) -> bool:
         """Every corner surely inside once the rod is there (undecided counts as not)."""
         trial = obstacles.with_element(centre, centre, base + height)
-        for x, y in corners:
-            envelope = envelope_height(
-                trial,
-                float(x),
-                float(y),
-                r,
-                COARSE_TOLERANCE_M,
-                max_cells=COARSE_MAX_CELLS,
-                enough=top + 1e-9,
-                below=top,
-            )
-            if envelope.lo <= top:
-                return False
-        return True
+        return all(_coarse_low(trial, x, y, r, top + 1e-9, below=top) > top for x, y in corners)
 
     low, high, step = closed, closed, 0.1
     while not covers(high):  # up from the closed form in doubling steps, then halve back
