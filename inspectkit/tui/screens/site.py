@@ -34,6 +34,7 @@ from inspectkit.tui.site_state import (
     judge,
     reading_verdicts,
 )
+from inspectkit.tui.widgets.roof_plan import RoofPlanPane
 from inspectkit.tui.widgets.sparkline import sparkline
 from inspectkit.tui.widgets.state_badge import StateBadge, state_text
 from inspectkit.units import format_value
@@ -138,6 +139,8 @@ class SiteScreen(Screen[None]):
                     yield DataTable(id="visits", cursor_type="row")
                 with TabPane("Schedule", id="tab-schedule"):
                     yield DataTable(id="schedule", cursor_type="row")
+                with TabPane("Roof plan", id="tab-plan"):
+                    yield RoofPlanPane(id="roof-plan")
         yield Footer()
 
     def on_mount(self) -> None:
@@ -181,6 +184,7 @@ class SiteScreen(Screen[None]):
         self._fill_findings(records)
         self._fill_visits(records)
         self._fill_schedule()
+        self.query_one(RoofPlanPane).show(records)
 
     def _fill_tree(self, records: SiteRecords, verdicts: dict[str, str], today: date) -> None:
         tree = self.tree
