@@ -179,3 +179,39 @@ def test_ground_alone_is_the_floor() -> None:
     found = envelope_height(Obstacles.build([]), 3.0, 4.0, 45.0)
     assert found.lo - EPS <= 0.0 <= found.hi + EPS
     assert found.resting == ()
+
+
+@settings(max_examples=20, deadline=None)
+@given(
+    r=st.sampled_from(RADII),
+    rods=st.lists(
+        st.tuples(st.floats(-30, 30), st.floats(-30, 30), st.floats(1.0, 15.0)),
+        min_size=2,
+        max_size=6,
+    ),
+    roof=st.floats(3.0, 30.0),
+    place=st.tuples(st.floats(-30, 30), st.floats(-30, 30)),
+)
+def test_random_rod_layouts_protect_at_least_what_each_rod_does_alone(
+    r: float, rods: list[tuple[float, float, float]], roof: float, place: tuple[float, float]
+) -> None:
+    # IEC 62305-3 Annex A (as quoted): a rod alone on a flat roof protects up to
+    # h(x) = r − √(r² − (√(h_t(2r − h_t)) − x)²) at distance x. More conductors only hold
+    # the sphere higher, so over a random layout of rods the protected volume's edge lies
+    # at or above the highest single-rod height, and reaches it where one rod alone
+    # holds the sphere there.
+    singles = []
+    for x, y, h_t in rods:
+        reach = math.sqrt(h_t * (2 * r - h_t))
+        d = math.dist(place, (x, y))
+        singles.append(roof + (r - math.sqrt(r * r - (reach - d) ** 2) if d < reach else 0.0))
+    obstacles = Obstacles.build(
+        [((x, y), (x, y), roof + h_t) for x, y, h_t in rods], _roof(roof, (0.0, 0.0))
+    )
+    found = envelope_height(obstacles, place[0], place[1], r)
+    assert found.hi + EPS >= max(singles)
+    for (x, y, h_t), single in zip(rods, singles, strict=True):
+        alone = envelope_height(
+            Obstacles.build([((x, y), (x, y), roof + h_t)], _roof(roof, (0.0, 0.0))), *place, r
+        )
+        assert alone.lo - EPS <= single <= alone.hi + EPS
