@@ -2,11 +2,17 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from typing import Any
 
+from textual.screen import Screen
+
+from inspectkit.engine.conformity import assess
 from inspectkit.geometry_model import HEIGHT_OF, POINTS_OF, Between, GeometryItem, GeometryKind
 from inspectkit.model import Component, ComponentKind
+from inspectkit.store import StoreError
+from inspectkit.store.geometry import save_geometry_item
+from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
 
 #: The components whose tags a geometry item may take over.
@@ -70,3 +76,40 @@ def geometry_dialog(
         base["points"] = "; ".join(f"{x:g},{y:g}" for x, y in item.points)
         title = f"Edit {item.tag} ({item.kind.label})"
     return GeometryDialog(title, GeometryItem, fields, base, components=lps)
+
+
+def edit_geometry(
+    screen: Screen[Any],
+    site_id: str,
+    item: GeometryItem | None = None,
+    saved: Callable[[GeometryItem], None] | None = None,
+) -> None:
+    """Open the form for a geometry item of a site; once saved, say its verdict at once.
+
+    Used by the site screen's roof plan and the walkdown, so an item added or edited on
+    the roof is judged the moment it is saved.
+    """
+    store = screen.app.store  # type: ignore[attr-defined]
+    records = load_site_records(store, site_id)
+
+    def done(record: GeometryItem | None) -> None:
+        if record is None:
+            return
+        try:
+            save_geometry_item(store, record)
+        except StoreError as error:
+            screen.notify(str(error), severity="error")
+            return
+        judged = load_site_records(store, site_id)
+        verdict = next(
+            (v for v in assess(judged.site, judged.geometry).items if v.tag == record.tag), None
+        )
+        if verdict is None:
+            screen.notify(f"{record.tag} saved")
+        else:
+            level = {"fail": "error", "watch": "warning"}.get(verdict.severity.value, "information")
+            screen.notify(f"{record.tag} saved. {verdict.message}", severity=level, timeout=12)
+        if saved is not None:
+            saved(record)
+
+    screen.app.push_screen(geometry_dialog(site_id, item, records.components), done)

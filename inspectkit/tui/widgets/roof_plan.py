@@ -21,9 +21,7 @@ from textual.widgets import DataTable, Static
 from inspectkit.engine.conformity import Conformity, assess
 from inspectkit.geometry_model import GeometryItem, GeometryKind
 from inspectkit.model import SiteRecords
-from inspectkit.store import StoreError
-from inspectkit.store.geometry import save_geometry_item
-from inspectkit.tui.dialogs.geometry import geometry_dialog
+from inspectkit.tui.dialogs.geometry import edit_geometry
 
 #: Fill letter and style of an item by verdict: the letter alone tells them apart.
 _FILL = {
@@ -267,22 +265,13 @@ class RoofPlanPane(Widget):
     def _open(self, item: GeometryItem | None) -> None:
         if self.records is None:
             return
-        records = self.records
 
-        def saved(record: GeometryItem | None) -> None:
-            if record is None:
-                return
-            try:
-                save_geometry_item(self.app.store, record)  # type: ignore[attr-defined]
-            except StoreError as error:
-                self.notify(str(error), severity="error")
-                return
-            self.notify(f"{record.tag} saved")
+        def saved(_: GeometryItem) -> None:
             reload = getattr(self.screen, "reload", None)
             if reload is not None:
                 reload()
 
-        self.app.push_screen(geometry_dialog(records.site.id, item, records.components), saved)
+        edit_geometry(self.screen, self.records.site.id, item, saved)
 
     def action_add(self) -> None:
         self._open(None)
