@@ -16,8 +16,7 @@ CORE = (
     "inspectkit.plan",
     "inspectkit.sync",
     "inspectkit.walkdown",
-    "inspectkit.tui.site_state",
-    "inspectkit.tui.preferences",
+    "inspectkit.site_states",
 )
 
 
