@@ -55,7 +55,7 @@ def geometry_dialog(
         Field("bonded", "Bonded to LPS", flag=True),
         Field(
             "separated_by",
-            "Between it and LPS",
+            "Separated by",
             choices=[
                 ("air", Between.AIR.value),
                 ("solid (brick, concrete, wood)", Between.SOLID.value),
