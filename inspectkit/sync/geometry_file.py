@@ -60,7 +60,7 @@ def read_geometry(
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise GeometryFileError(f"not a TOML file ({exc})") from None
-    unknown = sorted(set(data) - {k.value for k in GeometryKind} - {"site"})
+    unknown = sorted(set(data) - {k.value for k in GeometryKind})
     if unknown:
         kinds = ", ".join(f"[[{k.value}]]" for k in GeometryKind)
         raise GeometryFileError(f"{unknown[0]}: not a kind of geometry; use {kinds}")
