@@ -201,3 +201,27 @@ def test_check_reports_conformity_results() -> None:
 def test_layout_heights() -> None:
     layout = Layout.of(hall())
     assert layout.roof_height_at((5, 5)) == 10.0 and layout.roof_height_at((50, 5)) == 0.0
+
+
+@pytest.mark.parametrize("turn", [0.3, 0.7, 1.2])
+@pytest.mark.parametrize("level", list(ProtectionLevel))
+def test_mesh_cells_of_an_oblique_roof_are_measured_square_to_it(
+    turn: float, level: ProtectionLevel
+) -> None:
+    # A mesh of the level's size (IEC 62305-3 Table 2) on a roof turned off the site's
+    # axes measures the same, within the 0.25 m grid (our default resolution).
+    w = MESH_SIZE_M[level]
+
+    def at(x: float, y: float) -> tuple[float, float]:
+        c, s = math.cos(turn), math.sin(turn)
+        return (c * x - s * y + 3, s * x + c * y - 7)
+
+    corners = [at(0, 0), at(2 * w, 0), at(2 * w, 2 * w), at(0, 2 * w)]
+    roof = g("roof", "R1", corners, 10.0)
+    conductors = [
+        g("air_conductor", "EC", [*corners, corners[0]], 10.0),
+        g("air_conductor", "MX", [at(w, 0), at(w, 2 * w)], 10.0),
+        g("air_conductor", "MY", [at(0, w), at(2 * w, w)], 10.0),
+    ]
+    cells = mesh_cells(roof, conductors)
+    assert len(cells) == 4 and all(c == pytest.approx((w, w), abs=0.25) for c in cells)
