@@ -10,8 +10,8 @@ from textual.screen import Screen
 from inspectkit.engine.conformity import assess
 from inspectkit.geometry_model import HEIGHT_OF, POINTS_OF, Between, GeometryItem, GeometryKind
 from inspectkit.model import Component, ComponentKind
-from inspectkit.store import StoreError
-from inspectkit.store.geometry import save_geometry_item
+from inspectkit.store import Store, StoreError
+from inspectkit.store.geometry import save_geometry_item, site_geometry
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
 
@@ -113,3 +113,12 @@ def edit_geometry(
             saved(record)
 
     screen.app.push_screen(geometry_dialog(site_id, item, records.components), done)
+
+
+def geometry_for(store: Store, site_id: str, component: Component) -> GeometryItem | None:
+    """The geometry drawn for a component (linked to it, or under its tag), if any."""
+    drawn = site_geometry(store, site_id)
+    return next(
+        (g for g in drawn if g.component_id == component.id),
+        next((g for g in drawn if g.tag == component.tag), None),
+    )
