@@ -16,6 +16,7 @@ from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
 from inspectkit.engine.standing import WORDS_WORST_FIRST
+from inspectkit.printable import printable
 from inspectkit.site_states import ERROR, SiteState, assess_all
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
@@ -25,12 +26,8 @@ from inspectkit.tui.widgets.state_badge import state_text
 SORTS = ("state", "name", "due", "client", "town", "level")
 #: Columns of the list: heading, key (the key doubles as the sort name).
 COLUMNS = (
-    ("State", "state"),
-    ("Site", "name"),
-    ("Level", "level"),
-    ("Client", "client"),
-    ("Town", "town"),
-    ("Next due", "due"),
+    ("State", "state"), ("Site", "name"), ("Level", "level"),
+    ("Client", "client"), ("Town", "town"), ("Next due", "due"),
 )
 #: Shown too when the terminal is at least WIDE columns across.
 WIDE_COLUMNS = (("Inspection due", "kind"), ("Last visit", "last"))
@@ -98,33 +95,19 @@ class SitesScreen(Screen[None]):
     BINDINGS = [
         Binding("enter", "open_site", "Open", id="sites.open", tooltip="Open the highlighted site"),
         Binding(
-            "ctrl+o",
-            "cycle_sort",
-            "Sort",
-            id="sites.sort",
+            "ctrl+o", "cycle_sort", "Sort", id="sites.sort",
             tooltip="Order by state, name, due date, client, town or level in turn",
         ),
         Binding(
-            "ctrl+r",
-            "reverse_sort",
-            "Reverse",
-            id="sites.reverse",
+            "ctrl+r", "reverse_sort", "Reverse", id="sites.reverse",
             tooltip="Reverse the order of the list",
         ),
         Binding(
-            "ctrl+n",
-            "new_site",
-            "New site",
-            id="sites.new",
-            tooltip="Add a site to the list",
+            "ctrl+n", "new_site", "New site", id="sites.new", tooltip="Add a site to the list",
         ),
         Binding(
-            "escape",
-            "clear_filter",
-            "Clear filter",
-            id="sites.clear",
-            tooltip="Show every site again",
-            show=False,
+            "escape", "clear_filter", "Clear filter", id="sites.clear",
+            tooltip="Show every site again", show=False,
         ),
     ]
 
@@ -237,8 +220,7 @@ class SitesScreen(Screen[None]):
     def _tell_unjudged(self, states: dict[str, SiteState]) -> None:
         """Say which sites could not be judged and why; the rest of the list carries on."""
         failed = [
-            self.rows[site_id]
-            for site_id, state in states.items()
+            self.rows[site_id] for site_id, state in states.items()
             if state.word == ERROR and site_id in self.rows
         ]
         if not failed:
@@ -299,12 +281,8 @@ class SitesScreen(Screen[None]):
         state_cell, due_cell = self._state_cells(row)
         # Text, not str: names are shown as typed, never read as markup.
         cells: tuple[object, ...] = (
-            state_cell,
-            Text(row.name),
-            Text(row.level),
-            Text(row.client),
-            Text(row.town),
-            due_cell,
+            state_cell, Text(printable(row.name)), Text(row.level), Text(printable(row.client)),
+            Text(printable(row.town)), due_cell
         )
         if self.wide:
             kind = row.state.next_kind.replace("_", "-") if row.state else ""
@@ -321,7 +299,7 @@ class SitesScreen(Screen[None]):
         status = Text(f"{shown} of {len(self.rows)} sites · sorted by {order}{judging}")
         if row is not None and row.state is not None and row.state.reason:
             status = Text.assemble(
-                (f"{row.name}: {row.state.word}", "bold"), f" · {row.state.reason}"
+                (f"{printable(row.name)}: {row.state.word}", "bold"), f" · {row.state.reason}"
             )
         self.query_one("#status", Static).update(status)
 
