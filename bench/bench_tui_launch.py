@@ -67,25 +67,19 @@ def build(path: Path, sites: int) -> None:
         dc = Component(site_id=site.id, kind=ComponentKind.DOWN_CONDUCTOR, tag="DC-01")
         tj = Component(site_id=site.id, kind=ComponentKind.TEST_JOINT, tag="TJ-01")
         day = date(2020 + n % 6, 1 + n % 12, 1 + n % 28)
-        visit = Inspection(site_id=site.id, kind=InspectionKind.COMPLETE, date=day, finished=True)
+        visit = Inspection(
+            site_id=site.id, kind=InspectionKind.COMPLETE, date=day, finished=True
+        )
         at = datetime(day.year, day.month, day.day, 10, tzinfo=UTC)
         readings = [
             Reading(
-                inspection_id=visit.id,
-                component_id=tj.id,
-                quantity=Quantity.EARTH_ISOLATED,
-                value=2.0 + n % 15,
-                method=Method.FALL_OF_POTENTIAL_3P,
-                joint_state=JointState.OPEN,
-                taken_at=at,
+                inspection_id=visit.id, component_id=tj.id, quantity=Quantity.EARTH_ISOLATED,
+                value=2.0 + n % 15, method=Method.FALL_OF_POTENTIAL_3P,
+                joint_state=JointState.OPEN, taken_at=at,
             ),
             Reading(
-                inspection_id=visit.id,
-                component_id=dc.id,
-                quantity=Quantity.CONTINUITY,
-                value=0.05,
-                method=Method.LOW_OHM_4W,
-                taken_at=at,
+                inspection_id=visit.id, component_id=dc.id, quantity=Quantity.CONTINUITY,
+                value=0.05, method=Method.LOW_OHM_4W, taken_at=at,
             ),
         ]
         records += [site, dc, tj, visit, *readings]

@@ -146,7 +146,9 @@ def parse(text: str, quantity: Quantity) -> Measured:
     cleaned = " ".join(typed.translate(_LOOKALIKES).split())
     if not cleaned:
         hint = "" if quantity is Quantity.STRIKE_COUNT else ", or OL for over-range"
-        raise UnitError(f"nothing typed; type {_NOUN[quantity]}, e.g. {_EXAMPLE[quantity]}{hint}")
+        raise UnitError(
+            f"nothing typed; type {_NOUN[quantity]}, e.g. {_EXAMPLE[quantity]}{hint}"
+        )
     over_range_word = re.sub(r"[\s.\-]", "", cleaned).lower() in _OVER_RANGE_WORDS
     bound = None if over_range_word else _OVER_RANGE_BOUND.match(cleaned)
     if (over_range_word or bound) and quantity is Quantity.STRIKE_COUNT:
@@ -334,7 +336,9 @@ def format_value(
         return f"{_significant(value, sig)} Ω·m"
     if value == 0:
         return "0 Ω"
-    factor, symbol = next((f, s) for low, f, s in reversed(_RESISTANCE_PREFIXES) if value >= low)
+    factor, symbol = next(
+        (f, s) for low, f, s in reversed(_RESISTANCE_PREFIXES) if value >= low
+    )
     return f"{_significant(value / factor, sig)} {symbol}"
 
 

@@ -19,22 +19,8 @@ from inspectkit.cli.common import DbOption, resolve_db
 from inspectkit.printable import PrintableStream
 
 #: Modules under inspectkit.cli that add commands.
-COMMAND_MODULES = (
-    "sites",
-    "demo",
-    "plan",
-    "sync",
-    "check",
-    "readings",
-    "report",
-    "keys",
-    "verify",
-    "upkeep",
-    "inspection",
-    "entries",
-    "findings",
-    "geometry",
-)
+COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
+                   "upkeep", "inspection", "entries", "findings", "geometry")
 
 app = typer.Typer(
     name="inspectkit",

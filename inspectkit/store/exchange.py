@@ -105,8 +105,8 @@ def site_positions(store: Store) -> Iterator[tuple[Any, ...]]:
     """(id, name, client, address, town, lat, lon, level, profile, critical, explosive) per site."""
     return iter(
         store.db.execute(
-            "SELECT id, name, client, address, town, latitude, longitude, protection_level, "
-            "profile, critical, explosive_risk FROM site ORDER BY name COLLATE NOCASE"
+        "SELECT id, name, client, address, town, latitude, longitude, protection_level, "
+        "profile, critical, explosive_risk FROM site ORDER BY name COLLATE NOCASE"
         )
     )
 

@@ -67,7 +67,9 @@ def read_exif(path: Path) -> tuple[int, datetime | None, int, int]:
     taken_at = None
     if isinstance(stamp, str):
         try:
-            taken_at = datetime.strptime(stamp.strip(), "%Y:%m:%d %H:%M:%S").replace(tzinfo=UTC)
+            taken_at = datetime.strptime(stamp.strip(), "%Y:%m:%d %H:%M:%S").replace(
+                tzinfo=UTC
+            )
         except ValueError:
             taken_at = None
     return orientation, taken_at, width, height
@@ -202,8 +204,7 @@ def remove_unreferenced(store: Store, shas: list[str]) -> list[str]:
         chunk = shas[start : start + 500]
         marks = ",".join("?" * len(chunk))
         named.update(
-            sha
-            for (sha,) in store.db.execute(
+            sha for (sha,) in store.db.execute(
                 f"SELECT sha256 FROM photo WHERE sha256 IN ({marks})", chunk
             )
         )

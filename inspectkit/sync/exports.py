@@ -27,7 +27,6 @@ FINDING_FIELDS = (
 )  # fmt: skip
 _BOOLEANS = {"over_range", "unreliable"}
 
-
 def _query_rows(store: Store, which: str, site_id: str | None) -> list[dict[str, Any]]:
     return [
         {k: bool(v) if k in _BOOLEANS else v for k, v in row.items()}

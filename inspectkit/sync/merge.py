@@ -243,10 +243,8 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
             ours = ours_by_id.get(theirs["id"])
             # What a signed inspection recorded is final: the signed copy wins here too.
             final = table in _PARTS and theirs.get("inspection_id") in signed_there
-            if (
-                ours is None
-                and not final
-                and version_hash(theirs) in withdrawn.get(theirs["id"], ())
+            if ours is None and not final and version_hash(theirs) in withdrawn.get(
+                theirs["id"], ()
             ):
                 plan.kept_deleted += 1  # a version we withdrew: it stays withdrawn
             elif ours is None:

@@ -44,35 +44,22 @@ class InspectApp(App[None]):
 
     BINDINGS = [
         Binding(
-            "f1",
-            "cautions",
-            "Cautions",
-            id="app.cautions",
+            "f1", "cautions", "Cautions", id="app.cautions",
             tooltip="Show the safety cautions again",
         ),
         Binding("f2", "switch_mode('sites')", "Sites", id="app.sites", tooltip="Every site"),
         Binding(
-            "f3",
-            "switch_mode('findings')",
-            "Findings",
-            id="app.findings",
+            "f3", "switch_mode('findings')", "Findings", id="app.findings",
             tooltip="Open defects across all sites",
         ),
         Binding(
-            "f4",
-            "switch_mode('settings')",
-            "Settings",
-            id="app.settings",
+            "f4", "switch_mode('settings')", "Settings", id="app.settings",
             tooltip="Inspector, instrument, profiles and data folder",
         ),
         # The footer is full at 80 columns; the command palette lists it.
         Binding(
-            "f5",
-            "switch_mode('plan')",
-            "Plan",
-            id="app.plan",
-            tooltip="The next round of visits, day by day",
-            show=False,
+            "f5", "switch_mode('plan')", "Plan", id="app.plan",
+            tooltip="The next round of visits, day by day", show=False,
         ),
     ]
 

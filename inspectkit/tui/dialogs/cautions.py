@@ -28,10 +28,7 @@ class CautionsDialog(ModalScreen[bool]):
 
     BINDINGS = [
         Binding(
-            "enter,escape",
-            "acknowledge",
-            "I have read these",
-            id="cautions.ok",
+            "enter,escape", "acknowledge", "I have read these", id="cautions.ok",
             tooltip="Close the cautions; F1 shows them again",
         ),
     ]

@@ -39,9 +39,7 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("address", "Address"),
         Field("town", "Town"),
         Field(
-            "protection_level",
-            "Protection level",
-            "I, II, III or IV",
+            "protection_level", "Protection level", "I, II, III or IV",
             choices=[(level.value, level.value) for level in ProtectionLevel],
         ),
         Field("profile", "Profile", choices=profile_choices()),
@@ -60,10 +58,7 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("design_standard", "Designed to", "standard and edition, e.g. IEC 62305-3:2010"),
         Field("air_termination", "Air termination", "e.g. mesh on flat roof, rods on plant"),
         Field(
-            "earthing_arrangement",
-            "Earthing",
-            "A or B",
-            optional=True,
+            "earthing_arrangement", "Earthing", "A or B", optional=True,
             choices=ARRANGEMENT_CHOICES,
         ),
         Field("notes", "Notes"),
@@ -88,9 +83,7 @@ def component_dialog(
     """
     fields = [
         Field(
-            "kind",
-            "Kind",
-            "a component kind",
+            "kind", "Kind", "a component kind",
             choices=[(kind.label, kind.value) for kind in ComponentKind],
         ),
         Field("tag", "Tag", "the tag painted on site, e.g. TJ-03"),
@@ -98,16 +91,11 @@ def component_dialog(
         Field("material", "Material", "e.g. copper tape 25×3"),
         Field("installed_on", "Installed on", DATE_HINT, optional=True),
         Field(
-            "parent_id",
-            "Hangs off",
-            optional=True,
+            "parent_id", "Hangs off", optional=True,
             choices=[(f"{p.tag} ({p.kind.label})", p.id) for p in parents or []],
         ),
         Field(
-            "electrode_type",
-            "Electrode type",
-            "only for earth electrodes",
-            optional=True,
+            "electrode_type", "Electrode type", "only for earth electrodes", optional=True,
             choices=[(t.value, t.value) for t in ElectrodeType],
         ),
     ]

@@ -23,17 +23,11 @@ class FindingsScreen(Screen[None]):
 
     BINDINGS = [
         Binding(
-            "r",
-            "resolve",
-            "Resolve",
-            id="findings.resolve",
+            "r", "resolve", "Resolve", id="findings.resolve",
             tooltip="Record the inspection that put the highlighted finding right",
         ),
         Binding(
-            "enter",
-            "open_site",
-            "Open site",
-            id="findings.open",
+            "enter", "open_site", "Open site", id="findings.open",
             tooltip="Open the site of the highlighted finding",
         ),
     ]
@@ -56,12 +50,8 @@ class FindingsScreen(Screen[None]):
 
     def on_mount(self) -> None:
         for label, key in (
-            ("Due by", "due"),
-            ("Age", "age"),
-            ("Site", "site"),
-            ("Tag", "tag"),
-            ("Grade", "grade"),
-            ("Finding", "text"),
+            ("Due by", "due"), ("Age", "age"), ("Site", "site"), ("Tag", "tag"),
+            ("Grade", "grade"), ("Finding", "text"),
         ):
             self.table.add_column(label, key=key)
 

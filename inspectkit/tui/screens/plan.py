@@ -19,13 +19,8 @@ from inspectkit.tui.dialogs.confirm import ConfirmDialog
 WINDOWS = (14, 30, 60, 90)
 #: Columns: heading, key, width (None: a share of what the fixed ones leave).
 COLUMNS = (
-    ("#", "order", 2),
-    ("Site", "site", None),
-    ("Kind", "kind", None),
-    ("Time", "onsite", 5),
-    ("Drive", "drive", 5),
-    ("At", "arrive", 5),
-    ("Note", "note", 11),
+    ("#", "order", 2), ("Site", "site", None), ("Kind", "kind", None),
+    ("Time", "onsite", 5), ("Drive", "drive", 5), ("At", "arrive", 5), ("Note", "note", 11),
 )
 
 
@@ -53,31 +48,19 @@ class PlanScreen(Screen[None]):
 
     BINDINGS = [
         Binding(
-            "d",
-            "drop",
-            "Drop/keep",
-            id="plan.drop",
+            "d", "drop", "Drop/keep", id="plan.drop",
             tooltip="Take the highlighted site out of the round, or put it back",
         ),
         Binding(
-            "p",
-            "pin",
-            "Pin/unpin",
-            id="plan.pin",
+            "p", "pin", "Pin/unpin", id="plan.pin",
             tooltip="Put the highlighted site's day first, or let priority decide again",
         ),
         Binding(
-            "w",
-            "window",
-            "Window",
-            id="plan.window",
+            "w", "window", "Window", id="plan.window",
             tooltip="Plan over the next 14, 30, 60 or 90 days",
         ),
         Binding(
-            "c",
-            "drafts",
-            "Create drafts",
-            id="plan.drafts",
+            "c", "drafts", "Create drafts", id="plan.drafts",
             tooltip="Make a draft inspection for every planned visit",
         ),
     ]
@@ -138,11 +121,8 @@ class PlanScreen(Screen[None]):
         window = Window(self.app.today, self.days)
         try:
             self.plan = make_plan(
-                self.app.store,
-                window,
-                load_plan_settings(),
-                dropped=self.dropped,
-                pinned=self.pinned,
+                self.app.store, window, load_plan_settings(),
+                dropped=self.dropped, pinned=self.pinned,
             )
         except (PointError, PlanSettingsError) as exc:
             self.plan = None
@@ -166,37 +146,23 @@ class PlanScreen(Screen[None]):
                 Text("TOO LONG", style="bold red")
                 if day.too_long
                 else Text(f"{len(day.visits)} · {day.km:.0f} km", style="bold"),
-                "",
-                "",
-                Text(f"{day.back:%H:%M}", style="bold"),
-                "back",
+                "", "", Text(f"{day.back:%H:%M}", style="bold"), "back",
                 key=f"day:{day.day.isoformat()}",
             )
             for visit in day.visits:
                 c = visit.candidate
                 table.add_row(
-                    str(visit.order),
-                    c.site.name,
-                    _short(c.kind_label),
-                    _hhmm(c.onsite_minutes),
-                    _hhmm(visit.drive_minutes),
-                    visit.arrive.strftime("%H:%M"),
-                    self._note(c),
-                    key=c.site.id,
+                    str(visit.order), c.site.name, _short(c.kind_label),
+                    _hhmm(c.onsite_minutes), _hhmm(visit.drive_minutes),
+                    visit.arrive.strftime("%H:%M"), self._note(c), key=c.site.id,
                 )
         for title, group in (("no position", plan.no_position), ("dropped", plan.dropped)):
             if group:
                 table.add_row("", Text(title, style="bold italic"), key=f"day:{title}")
             for c in group:
                 table.add_row(
-                    "",
-                    c.site.name,
-                    _short(c.kind_label),
-                    _hhmm(c.onsite_minutes),
-                    "",
-                    "",
-                    self._note(c),
-                    key=c.site.id,
+                    "", c.site.name, _short(c.kind_label), _hhmm(c.onsite_minutes), "", "",
+                    self._note(c), key=c.site.id,
                 )
         late = len(plan.past_window)
         self.query_one("#summary", Static).update(

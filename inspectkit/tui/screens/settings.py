@@ -32,24 +32,15 @@ class SettingsScreen(Screen[None]):
 
     BINDINGS = [
         Binding(
-            "i",
-            "add_inspector",
-            "Add inspector",
-            id="settings.add_inspector",
+            "i", "add_inspector", "Add inspector", id="settings.add_inspector",
             tooltip="Add a person who inspects and signs, and choose them",
         ),
         Binding(
-            "m",
-            "add_instrument",
-            "Add instrument",
-            id="settings.add_instrument",
+            "m", "add_instrument", "Add instrument", id="settings.add_instrument",
             tooltip="Add a test instrument with its calibration date, and choose it",
         ),
         Binding(
-            "p",
-            "pick_profile",
-            "Site profile",
-            id="settings.profile",
+            "p", "pick_profile", "Site profile", id="settings.profile",
             tooltip="Choose the rule set the highlighted site is held to",
         ),
     ]
@@ -92,18 +83,14 @@ class SettingsScreen(Screen[None]):
         store, prefs = self.app.store, self.app.settings
         self._fill(
             "#inspector",
-            [
-                (i.name + (f" · {i.organisation}" if i.organisation else ""), i.id)
-                for i in store.select(Inspector, order_by="name")
-            ],
+            [(i.name + (f" · {i.organisation}" if i.organisation else ""), i.id)
+             for i in store.select(Inspector, order_by="name")],
             prefs.inspector_id,
         )
         self._fill(
             "#instrument",
-            [
-                (_instrument_label(i, self.app.today), i.id)
-                for i in store.select(Instrument, order_by="description")
-            ],
+            [(_instrument_label(i, self.app.today), i.id)
+             for i in store.select(Instrument, order_by="description")],
             prefs.instrument_id,
         )
         table = self.profiles_table
@@ -167,7 +154,9 @@ class SettingsScreen(Screen[None]):
                 self.notify(f"{site.name} is now held to {name}")
                 self.reload()
 
-        self.app.push_screen(ChoiceDialog(f"Rule set for {site.name}", profile_choices()), chosen)
+        self.app.push_screen(
+            ChoiceDialog(f"Rule set for {site.name}", profile_choices()), chosen
+        )
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()

@@ -73,40 +73,24 @@ class SiteScreen(Screen[None]):
     BINDINGS = [
         Binding("escape", "app.pop_screen", "Back", id="site.back", tooltip="Back to the list"),
         Binding(
-            "w",
-            "walkdown",
-            "Walkdown",
-            id="site.walkdown",
+            "w", "walkdown", "Walkdown", id="site.walkdown",
             tooltip="Start a walkdown, or continue the site's open draft",
         ),
         Binding("e", "edit_site", "Edit site", id="site.edit", tooltip="Change the site's details"),
         Binding(
-            "a",
-            "add_component",
-            "Add part",
-            id="site.add_component",
+            "a", "add_component", "Add part", id="site.add_component",
             tooltip="Add a component to the system",
         ),
         Binding(
-            "t",
-            "edit_component",
-            "Edit/re-tag",
-            id="site.edit_component",
+            "t", "edit_component", "Edit/re-tag", id="site.edit_component",
             tooltip="Change the highlighted component, its tag included",
         ),
         Binding(
-            "x",
-            "retire_component",
-            "Retire",
-            id="site.retire",
+            "x", "retire_component", "Retire", id="site.retire",
             tooltip="Retire the highlighted component; its history is kept",
         ),
         Binding(
-            "r",
-            "report",
-            "Report",
-            id="site.report",
-            show=False,
+            "r", "report", "Report", id="site.report", show=False,
             tooltip="Preview, sign and export the report of the visit highlighted in Visits",
         ),
     ]
@@ -165,8 +149,7 @@ class SiteScreen(Screen[None]):
         self.state = judge(records, today, ProfileCache())
         site = records.site
         flags = [
-            f
-            for f, on in (("critical", site.critical), ("explosive risk", site.explosive_risk))
+            f for f, on in (("critical", site.critical), ("explosive risk", site.explosive_risk))
             if on
         ]
         self.query_one("#state", StateBadge).show(self.state.word)
@@ -273,12 +256,13 @@ class SiteScreen(Screen[None]):
     def _fill_visits(self, records: SiteRecords) -> None:
         table = self.query_one("#visits", DataTable)
         table.clear()
-        names = {i.id: i.name for i in self.app.store.select(Inspector)}
+        names = {
+            i.id: i.name
+            for i in self.app.store.select(Inspector)
+        }
         for visit in sorted(records.inspections, key=lambda i: i.date, reverse=True):
-            state = (
-                visit.state.value
-                if visit.state is InspectionState.SIGNED
-                else ("finished" if visit.finished else "draft")
+            state = visit.state.value if visit.state is InspectionState.SIGNED else (
+                "finished" if visit.finished else "draft"
             )
             table.add_row(
                 visit.date.isoformat(),
@@ -311,8 +295,7 @@ class SiteScreen(Screen[None]):
 
     def _open_draft(self) -> Inspection | None:
         drafts = [
-            i
-            for i in (self.records.inspections if self.records else [])
+            i for i in (self.records.inspections if self.records else [])
             if i.state is InspectionState.DRAFT and not i.finished
         ]
         return max(drafts, key=lambda i: (i.date, i.created_at), default=None)
@@ -389,8 +372,7 @@ class SiteScreen(Screen[None]):
                 self.reload()
 
         parents = [
-            c
-            for c in self.records.components
+            c for c in self.records.components
             if c.retired_on is None and (component is None or c.id != component.id)
         ]
         near = self.highlighted_component()

@@ -25,6 +25,7 @@ from inspectkit.model import (
 from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.geometry import edit_geometry, geometry_for
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
@@ -137,6 +138,15 @@ class WalkdownScreen(Screen[None]):
             priority=True,
             show=False,
             tooltip="Take back the saved reading the cursor is on (typed on the wrong joint)",
+        ),
+        Binding(
+            "ctrl+o",
+            "rooftop_item",
+            "Rooftop item",
+            id="walkdown.rooftop_item",
+            priority=True,
+            show=False,
+            tooltip="Add a rooftop item to the roof plan, or edit this part's; judged at once",
         ),
         Binding(
             "escape",
@@ -529,6 +539,12 @@ class WalkdownScreen(Screen[None]):
                 self.notify("Visit details saved")
 
         self.app.push_screen(VisitDetailsDialog(self.inspection, save), done)
+
+    def action_rooftop_item(self) -> None:
+        """The geometry form for what is drawn for this part (a new rooftop item if none);
+        once saved, its protection verdict is said at once."""
+        site_id = self.inspection.site_id
+        edit_geometry(self, site_id, geometry_for(self.store, site_id, self.stop.component))
 
     def action_withdraw(self) -> None:
         """Take back the reading of the entry in focus, after asking."""
