@@ -5,7 +5,6 @@ from __future__ import annotations
 from datetime import date
 from pathlib import Path
 
-from textual.app import App
 from textual.notifications import Notify
 from textual.widgets import Checkbox, Input
 
@@ -15,20 +14,8 @@ from inspectkit.store.geometry import save_geometry_item, site_geometry
 from inspectkit.tui.dialogs.geometry import GeometryDialog
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.walkdown import start_inspection
+from tests.test_tui_walkdown import WalkHarness
 from tests.walkdown_factories import build_walk_site
-
-
-class Harness(App[None]):
-    """The walkdown alone, on a database of the small invented site."""
-
-    def __init__(self, path: Path, inspection_id: str) -> None:
-        super().__init__()
-        self.store = Store.open(path)
-        self.today = date.today()
-        self.inspection_id = inspection_id
-
-    def on_mount(self) -> None:
-        self.push_screen(WalkdownScreen(self.inspection_id))
 
 
 def _walk(tmp_path: Path) -> tuple[Path, str, str]:
@@ -50,7 +37,7 @@ def _walk(tmp_path: Path) -> tuple[Path, str, str]:
 async def test_a_rooftop_item_added_in_the_walkdown_is_judged_at_once(tmp_path: Path) -> None:
     path, visit_id, site_id = _walk(tmp_path)
     seen: list[object] = []
-    app = Harness(path, visit_id)
+    app = WalkHarness(path, visit_id)
     async with app.run_test(size=(80, 24), message_hook=seen.append) as pilot:
         await pilot.pause()
         await pilot.press("ctrl+o")
