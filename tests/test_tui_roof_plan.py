@@ -120,6 +120,13 @@ async def test_add_items_through_the_form_and_see_them_on_the_plan(tui_db: Path)
         assert "outside the protected volume" in said
         drawing = str(pane.query_one("#plan-drawing", Static).render())
         assert "X" in drawing and "A" in drawing and "D" in drawing and "N↑" in drawing
+        pane.table.focus()
+        await pilot.press("delete")
+        await pilot.pause()
+        await pilot.press("y")
+        await pilot.pause()
+        with Store.open(tui_db) as store:
+            assert "AHU-1" not in {g.tag for g in site_geometry(store, site_id)}
 
 
 def test_plan_text_marks_verdicts_with_letters_and_highlights_the_selected() -> None:

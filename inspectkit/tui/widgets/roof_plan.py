@@ -21,6 +21,8 @@ from textual.widgets import DataTable, Static
 from inspectkit.engine.conformity import Conformity, assess
 from inspectkit.geometry_model import GeometryItem, GeometryKind
 from inspectkit.model import SiteRecords
+from inspectkit.store.geometry import delete_geometry_item
+from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.geometry import edit_geometry
 
 #: Fill letter and style of an item by verdict: the letter alone tells them apart.
@@ -179,6 +181,13 @@ class RoofPlanPane(Widget):
             show=False,
             tooltip="Edit the highlighted geometry item",
         ),
+        Binding(
+            "delete",
+            "remove",
+            "Remove",
+            id="plan.remove",
+            tooltip="Remove the highlighted geometry item, drawn by mistake",
+        ),
     ]
 
     def __init__(self, **kwargs: object) -> None:
@@ -262,16 +271,29 @@ class RoofPlanPane(Widget):
     def on_resize(self) -> None:
         self._draw()
 
+    def _reload(self, *_: object) -> None:
+        """Read and judge the site again (the site screen does both)."""
+        reload = getattr(self.screen, "reload", None)
+        if reload is not None:
+            reload()
+
     def _open(self, item: GeometryItem | None) -> None:
-        if self.records is None:
+        if self.records is not None:
+            edit_geometry(self.screen, self.records.site.id, item, self._reload)
+
+    def action_remove(self) -> None:
+        item = self.selected_item()
+        if item is None:
             return
 
-        def saved(_: GeometryItem) -> None:
-            reload = getattr(self.screen, "reload", None)
-            if reload is not None:
-                reload()
+        def answered(yes: bool | None) -> None:
+            if yes:
+                delete_geometry_item(self.app.store, item.id)  # type: ignore[attr-defined]
+                self.notify(f"{item.tag} removed from the roof plan")
+                self._reload()
 
-        edit_geometry(self.screen, self.records.site.id, item, saved)
+        question = f"Remove {item.tag} ({item.kind.label}) from the roof plan?"
+        self.app.push_screen(ConfirmDialog(question, yes_label="Remove"), answered)
 
     def action_add(self) -> None:
         self._open(None)
