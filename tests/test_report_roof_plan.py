@@ -59,3 +59,25 @@ def test_plan_drawing_has_scale_bar_north_arrow_and_every_part(demo: Path) -> No
 def test_site_without_geometry_has_no_plan(demo: Path) -> None:
     content = _content(demo, "Aldermere")
     assert content.roof_plan is None
+
+
+def test_demo_check_finds_the_new_air_handler_and_the_cabinet_too_close(demo: Path) -> None:
+    # The invented scenario: Eskfold's air handler, added since the last visit, stands
+    # outside the protected volume; Hartle Cross's unbonded cabinet is closer to DC-02's
+    # run than the separation distance (IEC 62305-3 clause 6.3, simplified).
+    from inspectkit.cli.check import gather
+
+    with Store.open(demo, create=False) as store:
+        checks = {c.site_name: c for c in gather(store, ANCHOR)}
+    esk = [r for r in checks["Eskfold Civic Offices"].results if r.rule == "conformity"]
+    assert any(
+        r.component_tag == "AHU-1" and "outside the protected volume" in r.message for r in esk
+    )
+    hartle = [
+        r for r in checks["Hartle Cross Telephone Exchange"].results if r.rule == "conformity"
+    ]
+    assert any(
+        r.component_tag == "CAB-1" and "too close" in r.message and "DC-02" in r.message
+        for r in hartle
+    )
+    assert not [r for r in checks["Larkmoor Distribution Centre"].results if r.rule == "conformity"]
