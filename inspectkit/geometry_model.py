@@ -17,6 +17,7 @@ from typing import Any, ClassVar
 
 from pydantic import Field, field_serializer, field_validator, model_validator
 
+from inspectkit import model as _model
 from inspectkit.model import Record, SiteRecords, _enum_or_hint
 
 #: Coordinates beyond this many metres from the site's origin are typing slips (our default).
@@ -227,3 +228,9 @@ def _area(points: tuple[Point, ...]) -> float:
 
 
 SiteRecords.model_rebuild(_types_namespace={"GeometryItem": GeometryItem})
+
+# A record type like the others, registered where `model` lists them, so that bundles
+# carry a site's geometry and the audit check walks its table. Done here, once this
+# class exists, whichever of the two modules was imported first.
+_model.RECORD_TYPES = (*_model.RECORD_TYPES, GeometryItem)
+_model.MODEL_FOR_TABLE[GeometryItem.table] = GeometryItem

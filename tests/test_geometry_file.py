@@ -171,3 +171,24 @@ def test_database_of_the_previous_schema_gains_the_geometry_table(db_path: Path)
     with Store.open(db_path) as store:
         assert store.schema_version() == SCHEMA_VERSION
         assert site_geometry(store, SITE.id) == []
+
+
+def test_geometry_travels_in_a_bundle_and_an_edit_comes_back(store: Store, tmp_path: Path) -> None:
+    from inspectkit.sync.bundle import export_bundle
+    from inspectkit.sync.merge import import_bundle
+
+    path = tmp_path / "plan.toml"
+    path.write_text(GOOD)
+    runner.invoke(app, ["geometry", "import", str(path), "--site", "Mill", "--db", str(store.path)])
+    bundle = export_bundle(store, SITE.id, tmp_path / "to-laptop.zip").path
+    with Store.open(tmp_path / "laptop.sqlite", user="laptop") as laptop:
+        import_bundle(laptop, bundle)
+        arrived = {g.tag: g for g in site_geometry(laptop, SITE.id)}
+        assert set(arrived) == {g.tag for g in site_geometry(store, SITE.id)}
+        assert arrived["AT-01"].component_id == AT.id
+        save_geometry_item(laptop, arrived["AHU-1"].model_copy(update={"bonded": True}))
+        back = export_bundle(laptop, SITE.id, tmp_path / "back.zip").path
+        assert laptop.verify_audit() == []
+    import_bundle(store, back)
+    assert {g.tag: g for g in site_geometry(store, SITE.id)}["AHU-1"].bonded
+    assert store.verify_audit() == []

@@ -26,6 +26,7 @@ _SITE_WHERE = {
     "reading": _IN_SITE,
     "finding": _IN_SITE,
     "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
+    "geometry_item": "site_id = :site",
 }
 
 

@@ -89,6 +89,7 @@ REFERENCES: dict[str, dict[str, str]] = {
         "resolved_by": "inspection",
     },
     "photo": {"inspection_id": "inspection", "component_id": "component"},
+    "geometry_item": {"site_id": "site", "component_id": "component"},
 }
 
 
