@@ -20,7 +20,8 @@ from inspectkit.printable import PrintableStream
 
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
-                   "upkeep", "inspection", "entries", "findings", "geometry")
+                   "upkeep", "inspection", "entries", "findings", "safety",
+                   "organisations", "geometry")
 
 app = typer.Typer(
     name="inspectkit",

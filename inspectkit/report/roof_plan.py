@@ -24,7 +24,8 @@ from inspectkit.engine.lps_layout import Layout
 from inspectkit.engine.rolling_sphere import protected_radius
 from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import Severity
-from inspectkit.report.content import RoofPlan
+from inspectkit.report.content import ReportContent, RoofPlan
+from inspectkit.report.layout import Kit
 
 #: How each verdict is drawn: fill, outline width, dash pattern, and a cross or not.
 _LOOK = {
@@ -194,6 +195,11 @@ def _distance(point: tuple[float, float], polygon: Sequence[tuple[float, float]]
     cx = sum(p[0] for p in polygon) / len(polygon)
     cy = sum(p[1] for p in polygon) / len(polygon)
     return math.dist(point, (cx, cy))
+
+
+def roof_plan(content: ReportContent, kit: Kit) -> list[Flowable]:
+    """The report section: the site's roof plan and its verdicts, when it has geometry."""
+    return plan_section(content.roof_plan, kit.styles, kit.width)
 
 
 def plan_section(
