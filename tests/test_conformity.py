@@ -50,9 +50,9 @@ def site(level: ProtectionLevel) -> Site:
 
 @pytest.mark.parametrize("level", list(ProtectionLevel))
 def test_radius_is_the_table_and_near_the_striking_distance(level: ProtectionLevel) -> None:
-    # IEC 62305-3 Table 2 (published) gives r; IEC 62305-1's r = 10·I^0.65 at the level's
+    # IEC 62305-3 Table 2 (as quoted) gives r; IEC 62305-1's r = 10·I^0.65 at the level's
     # least current (IEC 62305-1 Table 5, from memory) lies within the table's rounding
-    # (±6 %, DOMAIN.md §4: 20.4, 28.5, 44.7, 60.6 m against 20, 30, 45, 60 m).
+    # (±6 %: 20.4, 28.5, 44.7, 60.6 m against 20, 30, 45, 60 m; docs/sources.md).
     judged = assess(site(level), hall())
     assert judged.radius_m == {I: 20, II: 30, III: 45, IV: 60}[level]
     formula = striking_distance_m(MIN_PEAK_CURRENT_KA[level])
@@ -114,7 +114,7 @@ def test_bonded_item_passes_with_a_note() -> None:
 
 @pytest.mark.parametrize("level", list(ProtectionLevel))
 def test_mesh_against_the_level_table(level: ProtectionLevel) -> None:
-    # IEC 62305-3 Table 2 (published): mesh 5, 10, 15, 20 m for levels I–IV. A mesh of
+    # IEC 62305-3 Table 2 (as quoted): mesh 5, 10, 15, 20 m for levels I–IV. A mesh of
     # exactly the table's size passes; 30 % larger fails (beyond our 10 % tolerance).
     size = MESH_SIZE_M[level]
     for factor, expected in ((1.0, Severity.OK), (1.3, Severity.FAIL)):
@@ -138,7 +138,7 @@ def test_mesh_against_the_level_table(level: ProtectionLevel) -> None:
 
 @pytest.mark.parametrize("level", list(ProtectionLevel))
 def test_down_conductor_spacing_against_the_level_table(level: ProtectionLevel) -> None:
-    # IEC 62305-3 Table 4 (published): typical spacing 10, 10, 15, 20 m. Down conductors
+    # IEC 62305-3 Table 4 (as quoted): typical spacing 10, 10, 15, 20 m. Down conductors
     # evenly round a 120 m outline at the table's spacing pass; at twice it they fail.
     spacing = DOWN_CONDUCTOR_SPACING_M[level]
     for gap, expected in ((spacing, Severity.OK), (2 * spacing, Severity.FAIL)):

@@ -42,7 +42,7 @@ def _roof(height: float, at: tuple[float, float]) -> list[tuple[list[tuple[float
 
 
 def test_closed_forms_worked_examples() -> None:
-    # DOMAIN.md §4 (computed from IEC 62305-3 Annex A's formula): r = 30 m, w = 10 m →
+    # Computed from IEC 62305-3 Annex A's formula (as quoted): r = 30 m, w = 10 m →
     # p ≈ 0.42 m; r = 45 m, w = 15 m → p ≈ 0.63 m.
     assert sag(30, 10) == pytest.approx(0.42, abs=0.005)
     assert sag(45, 15) == pytest.approx(0.63, abs=0.005)

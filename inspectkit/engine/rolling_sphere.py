@@ -1,6 +1,6 @@
 """The rolling sphere method: where a sphere of the level's radius can touch a roof.
 
-IEC 62305-3 Annex A (published, as quoted): a point is protected when a sphere of
+IEC 62305-3 Annex A (as quoted): a point is protected when a sphere of
 radius r, rolled over the ground, the structure and the air-termination system,
 cannot touch it. Here the sphere rolls over the ground (z = 0), the roofs (prisms
 standing on the ground) and the LPS conductors (air terminals and down conductors
@@ -67,7 +67,7 @@ class GeometryError(ValueError):
 def protected_radius(r: float, rod_height: float, height: float) -> float:
     """Radius protected by one vertical rod at a given height above its flat base.
 
-    IEC 62305-3 Annex A (published, as quoted), for a rod of height h_t ≤ r on
+    IEC 62305-3 Annex A (as quoted), for a rod of height h_t ≤ r on
     flat ground: d(h) = √(h_t(2r − h_t)) − √(h(2r − h)) at height h ≤ h_t.
     """
     if not 0 < rod_height <= r:
@@ -94,7 +94,7 @@ def rod_height_to_cover(r: float, distance: float, height: float) -> float | Non
 
 def sag(r: float, width: float) -> float:
     """Depth the sphere sinks below the line joining two conductors or rod tips `width`
-    apart: p = r − √(r² − (w/2)²) (IEC 62305-3 Annex A, published, as quoted)."""
+    apart: p = r − √(r² − (w/2)²) (IEC 62305-3 Annex A, as quoted)."""
     if not 0 < width <= 2 * r:
         raise GeometryError(f"width must be above 0 and at most 2r = {2 * r} m (got {width})")
     return r - math.sqrt(r * r - (width / 2) ** 2)
