@@ -12,6 +12,7 @@ from collections import Counter
 from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import check_site
+from inspectkit.engine.conformity import assess
 from inspectkit.engine.history import as_of, calibration_lapsed, usable
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
@@ -36,6 +37,7 @@ from inspectkit.report.content import (
     Field,
     Notice,
     ReportContent,
+    RoofPlan,
     TrendChart,
 )
 from inspectkit.report.findings import visit_findings
@@ -427,7 +429,15 @@ def build_report(
         actions=to_do,
         visits=visits(check),
         legend=legend(),
+        roof_plan=_roof_plan(records),
     )
+
+
+def _roof_plan(records: SiteRecords) -> RoofPlan | None:
+    """The site's geometry with its verdicts, for the plan page; None without geometry."""
+    if not records.geometry:
+        return None
+    return RoofPlan(tuple(records.geometry), assess(records.site, records.geometry))
 
 
 def _parts(
