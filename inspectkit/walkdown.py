@@ -17,8 +17,10 @@ from typing import Any
 
 from pydantic import ValidationError
 
+from inspectkit.earthing_values import Traverse
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
+from inspectkit.engine.earthing import EarthingError, plateau_check
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import Result
 from inspectkit.model import (
@@ -46,7 +48,7 @@ from inspectkit.model import (
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif
-from inspectkit.units import UnitError, format_value, parse
+from inspectkit.units import Measured, UnitError, format_value, parse
 
 #: What can be measured on each kind of component during a walkdown, in entry order.
 #: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
@@ -319,6 +321,7 @@ def record_reading(
     unreliable: bool = False,
     taken_at: datetime | None = None,
     context: SiteContext | None = None,
+    traverse: Traverse | None = None,
 ) -> ReadingOutcome:
     """Save what the inspector typed for one quantity of one component, and judge it.
 
@@ -335,6 +338,8 @@ def record_reading(
         taken_at: When it was read (default: now).
         context: The site's profile and parts, if the caller holds them already
             (the screen does, for the whole walk).
+        traverse: A fall-of-potential traverse (`earthing_input.parse_traverse`);
+            its value at 61.8 % of E–C is the reading, and `text` stays empty.
 
     Raises:
         WalkdownError: the text, method, state or note is not valid, or the
@@ -352,10 +357,14 @@ def record_reading(
             f"a {quantity.label} is not measured on a {component.kind.label}; "
             f"readings here: {allowed}",
         )
-    try:
-        measured = parse(text, quantity)
-    except UnitError as exc:
-        raise WalkdownError("value", str(exc)) from None
+    if traverse is not None:
+        measured = traverse_value(traverse, text, context.profile)
+        method = method or Method.FALL_OF_POTENTIAL_3P
+    else:
+        try:
+            measured = parse(text, quantity)
+        except UnitError as exc:
+            raise WalkdownError("value", str(exc)) from None
     now = utcnow()
     existing = _saved_readings(store, inspection_id, component_id, quantity)
     data: dict[str, Any] = {
@@ -371,12 +380,33 @@ def record_reading(
         "soil": soil or None,
         "note": note,
         "unreliable": unreliable,
+        "traverse": traverse.to_text() if traverse is not None else None,
     }
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
     reading = _save(store, _validated(Reading, data, now=now))
     return judge_reading(store, inspection, reading, context)
+
+
+def traverse_value(traverse: Traverse, text: str, profile: Profile) -> Measured:
+    """The reading a traverse gives: its value at 61.8 % of E–C, to four significant digits.
+
+    Raises:
+        WalkdownError: a value was typed as well, or the traverse does not
+            straddle 61.8 % of the E–C distance.
+    """
+    if text.strip():
+        raise WalkdownError(
+            "value", "a traverse gives the value (at 61.8 % of E–C); leave the value empty"
+        )
+    try:
+        value = plateau_check(
+            traverse.points, traverse.current_probe_m, profile.earthing.plateau_tolerance
+        ).resistance_ohm
+    except EarthingError as exc:
+        raise WalkdownError("traverse", str(exc)) from None
+    return Measured(float(f"{value:.4g}"))
 
 
 def withdraw_reading(

@@ -19,6 +19,7 @@ from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
+from inspectkit.demo.earthing import add_earthing
 from inspectkit.demo.ground import SOIL_FACTOR, soil_on, weather_in
 from inspectkit.demo.scenario import DriftingEarth, ScenarioError, SiteSpec
 from inspectkit.demo.system import System, lay_out
@@ -467,6 +468,7 @@ class SiteHistory:
             self._draft(count, usual)
         for visit in self.visits:
             visit.inspection = visit.inspection.model_copy(update={"updated_at": visit.clock})
+        surveys = add_earthing(self, latest.inspection.id)
         self.demo.out.records.extend(
             [
                 self.site,
@@ -474,6 +476,7 @@ class SiteHistory:
                 *(v.inspection for v in self.visits),
                 *self.readings,
                 *self.findings,
+                *surveys,
             ]
         )
 

@@ -44,7 +44,9 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
     its visit: it is kept or left out with it.
     """
     inspections = [i for i in records.inspections if i.date <= today]
-    if len(inspections) == len(records.inspections):
+    if len(inspections) == len(records.inspections) and all(
+        s.date <= today for s in records.surveys
+    ):
         return records
     known = {i.id for i in inspections}
     findings = [
@@ -62,6 +64,7 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         findings=findings,
         photos=[p for p in records.photos if p.inspection_id in known],
         instruments=records.instruments,
+        surveys=[s for s in records.surveys if s.date <= today],
     )
 
 

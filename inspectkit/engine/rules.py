@@ -14,6 +14,7 @@ from datetime import date
 from functools import cache
 from operator import attrgetter
 
+from inspectkit.engine.earthing_site import electrode_checks, traverse_plateaus
 from inspectkit.engine.history import (
     COMPLETE_KINDS,
     History,
@@ -417,6 +418,8 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     open_defects,
     schedule_items,
     drifting_electrodes,
+    traverse_plateaus,
+    electrode_checks,
 )
 
 #: The rules that speak about one reading or its series, not the site as a whole:
@@ -428,4 +431,5 @@ SERIES_RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     doubtful_readings,
     strike_counters,
     drifting_electrodes,
+    traverse_plateaus,
 )

@@ -20,12 +20,14 @@ _IN_SITE = "inspection_id IN (SELECT id FROM inspection WHERE site_id = :site)"
 _SITE_WHERE = {
     "site": "id = :site",
     "component": "site_id = :site",
-    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE})",
+    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE}) "
+    "OR id IN (SELECT instrument_id FROM soil_survey WHERE site_id = :site)",
     "inspector": "id IN (SELECT inspector_id FROM inspection WHERE site_id = :site)",
     "inspection": "site_id = :site",
     "reading": _IN_SITE,
     "finding": _IN_SITE,
     "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
+    "soil_survey": "site_id = :site",
 }
 
 

@@ -23,6 +23,7 @@ from inspectkit.model import (
     Record,
     Site,
     SiteRecords,
+    SoilSurvey,
 )
 from inspectkit.store.database import Store, StoreError
 from inspectkit.store.rows import from_row
@@ -105,6 +106,7 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         findings=store.select(Finding, in_site, [site_id]),
         photos=store.select(Photo, in_site, [site_id]),
         instruments=instruments,
+        surveys=store.select(SoilSurvey, "site_id = ?", [site_id], order_by="date, created_at"),
     )
 
 
@@ -126,6 +128,9 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
         "readings": _by_visit(store, Reading, "reading", site_of),
         "findings": _by_visit(store, Finding, "finding", site_of),
         "photos": _by_visit(store, Photo, "photo", site_of),
+        "surveys": _by_site(
+            store, SoilSurvey, "SELECT * FROM soil_survey ORDER BY site_id, date, created_at"
+        ),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
     for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
@@ -147,6 +152,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             findings=parts.get("findings", []),
             photos=parts.get("photos", []),
             instruments={key: instruments[key] for key in used if key in instruments},
+            surveys=parts.get("surveys", []),
         )
 
 

@@ -196,8 +196,13 @@ def _v3(db: sqlite_utils.Database) -> None:
     audit row saying so; otherwise the audit check would take the new columns for
     an edit made behind the tool's back.
     """
+    _add_columns(db, _V3_COLUMNS)
+
+
+def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
+    """Add columns to tables, with an audit row for every existing row they change."""
     at = utcnow().isoformat()
-    for table, columns in _V3_COLUMNS.items():
+    for table, columns in columns_by_table.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -220,6 +225,40 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
     return {row["id"]: row for row in rows}
 
 
+#: Columns for earthing work: a reading's traverse, an electrode's form and size.
+_EARTHING_COLUMNS = {
+    "reading": ("traverse TEXT",),
+    "component": (
+        "electrode_orientation TEXT",
+        "length_m REAL",
+        "diameter_m REAL",
+        "ring_radius_m REAL",
+    ),
+}
+
+_SOIL_SURVEY = f"""
+CREATE TABLE soil_survey (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    date TEXT NOT NULL,
+    direction TEXT NOT NULL DEFAULT '',
+    probe_depth_m REAL,
+    points TEXT NOT NULL,
+    chosen_spacing_m REAL,
+    instrument_id TEXT REFERENCES instrument(id),
+    note TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE INDEX soil_survey_site ON soil_survey(site_id, date);
+"""
+
+
+def _earthing(db: sqlite_utils.Database) -> None:
+    """Fall-of-potential traverses on readings, electrode form and size, Wenner surveys."""
+    _add_columns(db, _EARTHING_COLUMNS)
+    db.executescript(_SOIL_SURVEY)
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3, _earthing)
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -78,6 +78,7 @@ REFERENCES: dict[str, dict[str, str]] = {
         "resolved_by": "inspection",
     },
     "photo": {"inspection_id": "inspection", "component_id": "component"},
+    "soil_survey": {"site_id": "site", "instrument_id": "instrument"},
 }
 
 
