@@ -22,7 +22,7 @@ from inspectkit.units import UnitError, parse, parse_fraction, parse_length
 _SEPARATOR = re.compile(r"[;\n]")
 
 
-def _pairs(text: str, name: str, example: str) -> list[tuple[str, str]]:
+def _pairs(text: str, name: str, example: str, left_name: str) -> list[tuple[str, str]]:
     """`left=right` pieces of a series, each stripped; refuse one without `=`."""
     pieces = [p.strip() for p in _SEPARATOR.split(text or "") if p.strip()]
     if not pieces:
@@ -31,13 +31,16 @@ def _pairs(text: str, name: str, example: str) -> list[tuple[str, str]]:
     for piece in pieces:
         left, sep, right = (s.strip() for s in piece.partition("="))
         if not sep or not left or not right:
-            raise UnitError(f"{name}: {piece!r} must be position=reading, e.g. {example}")
+            raise UnitError(f"{name}: {piece!r} must be {left_name}=reading, e.g. {example}")
         pairs.append((left, right))
     return pairs
 
 
 def _ohms(text: str, name: str) -> float:
-    measured = parse(text, Quantity.EARTH_ISOLATED)
+    try:
+        measured = parse(text, Quantity.EARTH_ISOLATED)
+    except UnitError as exc:
+        raise UnitError(f"{name}: {exc}") from None
     if measured.over_range or measured.value is None or measured.value <= 0:
         raise UnitError(f"{name}: {text!r} must be a reading above zero, not over-range")
     return measured.value
@@ -57,7 +60,7 @@ def parse_traverse(points: str, current_probe: str) -> Traverse:
     example = "52%=10.1; 61.8%=10.3; 72%=10.6"
     c = parse_length(current_probe, "current probe distance")
     readings = []
-    for position, reading in _pairs(points, "traverse", example):
+    for position, reading in _pairs(points, "traverse", example, "position"):
         where = f"traverse point {position!r}"
         if position.endswith("%"):
             distance = parse_fraction(position, where) * c
@@ -80,7 +83,7 @@ def parse_survey(points: str) -> str:
         UnitError: a piece cannot be read, or two readings share a spacing.
     """
     readings = []
-    for spacing, reading in _pairs(points, "survey", "1 m=25.1; 2 m=11.9; 4 m=5.6"):
+    for spacing, reading in _pairs(points, "survey", "1 m=25.1; 2 m=11.9; 4 m=5.6", "spacing"):
         where = f"survey point {spacing!r}"
         readings.append((parse_length(spacing, where), _ohms(reading, where)))
     try:

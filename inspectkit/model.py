@@ -514,11 +514,11 @@ class Component(Record):
     #: A type A electrode's lie: vertical (driven rod), horizontal (strip), inclined.
     electrode_orientation: ElectrodeOrientation | None = None
     #: An electrode's length in m: a rod's driven length, a strip's run.
-    length_m: float | None = Field(default=None, gt=0, le=MAX_ELECTRODE_M)
+    length_m: float | None = None
     #: A driven rod's diameter in m (Dwight's formula needs it).
-    diameter_m: float | None = Field(default=None, gt=0, le=MAX_ROD_DIAMETER_M)
+    diameter_m: float | None = None
     #: A type B ring's mean radius r_e in m: that of a circle of the area it encloses.
-    ring_radius_m: float | None = Field(default=None, gt=0, le=MAX_ELECTRODE_M)
+    ring_radius_m: float | None = None
 
     @field_validator("kind", mode="before")
     @classmethod
@@ -531,6 +531,17 @@ class Component(Record):
         value = value.strip().upper()
         if not value:
             raise ValueError("must not be blank; type the tag painted on site, e.g. TJ-03")
+        return value
+
+    @field_validator("length_m", "diameter_m", "ring_radius_m")
+    @classmethod
+    def _size(cls, value: float | None, info: ValidationInfo) -> float | None:
+        most = MAX_ROD_DIAMETER_M if info.field_name == "diameter_m" else MAX_ELECTRODE_M
+        if value is not None and not 0 < value <= most:
+            raise ValueError(
+                f"{value:g} m is out of range; give metres above 0 and at most {most:g} "
+                "(16 mm is 0.016 m)"
+            )
         return value
 
     @model_validator(mode="after")

@@ -20,7 +20,8 @@ from pydantic import ValidationError
 from inspectkit.earthing_values import Traverse
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
-from inspectkit.engine.earthing import EarthingError, plateau_check
+from inspectkit.engine.earthing import EarthingError
+from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import Result
 from inspectkit.model import (
@@ -358,7 +359,7 @@ def record_reading(
             f"readings here: {allowed}",
         )
     if traverse is not None:
-        measured = traverse_value(traverse, text, context.profile)
+        measured = traverse_value(traverse, text)
         method = method or Method.FALL_OF_POTENTIAL_3P
     else:
         try:
@@ -389,7 +390,7 @@ def record_reading(
     return judge_reading(store, inspection, reading, context)
 
 
-def traverse_value(traverse: Traverse, text: str, profile: Profile) -> Measured:
+def traverse_value(traverse: Traverse, text: str) -> Measured:
     """The reading a traverse gives: its value at 61.8 % of E–C, to four significant digits.
 
     Raises:
@@ -401,12 +402,9 @@ def traverse_value(traverse: Traverse, text: str, profile: Profile) -> Measured:
             "value", "a traverse gives the value (at 61.8 % of E–C); leave the value empty"
         )
     try:
-        value = plateau_check(
-            traverse.points, traverse.current_probe_m, profile.earthing.plateau_tolerance
-        ).resistance_ohm
+        return Measured(traverse_reading(traverse))
     except EarthingError as exc:
         raise WalkdownError("traverse", str(exc)) from None
-    return Measured(float(f"{value:.4g}"))
 
 
 def withdraw_reading(

@@ -18,7 +18,7 @@ from inspectkit.cli.common import DbOption, resolve_db
 
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
-                   "upkeep", "inspection", "entries", "findings")
+                   "upkeep", "inspection", "entries", "findings", "calc", "earthing")
 
 app = typer.Typer(
     name="inspectkit",

@@ -58,6 +58,19 @@ class TraverseJudgement:
         return self.plateau.resistance_ohm
 
 
+def traverse_reading(traverse: Traverse) -> float:
+    """The reading a traverse gives: its value at 61.8 % of E–C, to four significant digits.
+
+    Source: IEEE Std 81, the 61.8 % rule (published); linear between the readings
+    either side. Four digits is what an earth tester shows (our default).
+
+    Raises:
+        EarthingError: the traverse does not straddle 61.8 % of the E–C distance.
+    """
+    value = plateau_check(traverse.points, traverse.current_probe_m).resistance_ohm
+    return float(f"{value:.4g}")
+
+
 def judge_traverse(
     traverse: Traverse,
     tolerance: float,

@@ -70,7 +70,7 @@ SELECT s.name AS site, i.date AS inspection_date, i.kind AS inspection_kind,
        c.tag AS component_tag, c.kind AS component_kind, r.quantity, r.value,
        r.over_range, r.method, r.joint_state, r.taken_at, r.soil, r.unreliable,
        m.serial AS instrument_serial, r.note, s.id AS site_id, i.id AS inspection_id,
-       c.id AS component_id, r.id AS reading_id
+       c.id AS component_id, r.id AS reading_id, r.traverse
 FROM reading r
 JOIN inspection i ON i.id = r.inspection_id
 JOIN site s ON s.id = i.site_id

@@ -27,6 +27,7 @@ from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
+from inspectkit.tui.screens.calculator import calculator_for
 from inspectkit.tui.site_state import (
     NO_PROFILE,
     ProfileCache,
@@ -34,6 +35,7 @@ from inspectkit.tui.site_state import (
     judge,
     reading_verdicts,
 )
+from inspectkit.tui.widgets.earthing_panel import EarthingPanel, earthing_for
 from inspectkit.tui.widgets.sparkline import sparkline
 from inspectkit.tui.widgets.state_badge import StateBadge, state_text
 from inspectkit.units import format_value
@@ -88,6 +90,10 @@ class SiteScreen(Screen[None]):
             tooltip="Retire the highlighted component; its history is kept",
         ),
         Binding(
+            "c", "calculators", "Calculators", id="site.calculators", show=False,
+            tooltip="Earthing calculators, filled in from the highlighted component",
+        ),
+        Binding(
             "r", "report", "Report", id="site.report", show=False,
             tooltip="Preview, sign and export the report of the visit highlighted in Visits",
         ),
@@ -122,6 +128,8 @@ class SiteScreen(Screen[None]):
                     yield DataTable(id="visits", cursor_type="row")
                 with TabPane("Schedule", id="tab-schedule"):
                     yield DataTable(id="schedule", cursor_type="row")
+                with TabPane("Earthing", id="tab-earthing"), VerticalScroll():
+                    yield EarthingPanel(id="earthing")
         yield Footer()
 
     def on_mount(self) -> None:
@@ -164,6 +172,7 @@ class SiteScreen(Screen[None]):
         self._fill_findings(records)
         self._fill_visits(records)
         self._fill_schedule()
+        self.query_one(EarthingPanel).show(earthing_for(records, today))
 
     def _fill_tree(self, records: SiteRecords, verdicts: dict[str, str], today: date) -> None:
         tree = self.tree
@@ -328,6 +337,13 @@ class SiteScreen(Screen[None]):
             ),
             begin,
         )
+
+    def action_calculators(self) -> None:
+        """The earthing calculators, filled in from the site and the highlighted component."""
+        if self.records is not None:
+            self.app.push_screen(
+                calculator_for(self.records, self.highlighted_component(), self.app.today)
+            )
 
     def action_report(self) -> None:
         """Open the report of the visit highlighted in the Visits tab (the latest by default)."""
