@@ -10,8 +10,12 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from inspectkit.cautions import CAUTIONS
+
+if TYPE_CHECKING:
+    from inspectkit.report.earthing_content import EarthingReport
 
 #: Said on every report beside the cautions (whose last one says who decides).
 DEFERRAL = (
@@ -153,6 +157,7 @@ class ReportContent:
     general_photos: tuple[PhotoItem, ...] = ()
     cautions: tuple[str, ...] = CAUTIONS
     deferral: str = DEFERRAL
+    earthing: EarthingReport | None = None
 
     def photos(self) -> list[PhotoItem]:
         """Every photo the report embeds, findings' first."""
@@ -224,6 +229,7 @@ def text_sections(content: ReportContent) -> list[Section]:
             tuple(t.summary for t in content.trends)
             or ("No electrode has enough readings for a trend.",),
         ),
+        *([Section("Earthing", content.earthing.lines())] if content.earthing else []),
         Section("Next inspections", fields(content.schedule)),
         *(
             [Section(CHANGES_TITLE, (content.changes_since_last,))]

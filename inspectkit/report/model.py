@@ -43,6 +43,7 @@ from inspectkit.report.content import (
     ReportContent,
     TrendChart,
 )
+from inspectkit.report.earthing_content import earthing_report
 from inspectkit.store import Store, StoreError
 from inspectkit.store.photos import photo_path
 from inspectkit.store.queries import load_site_records
@@ -526,6 +527,7 @@ def build_report(
         amends=amends_text,
         amendment=changes,
         general_photos=general_photos,
+        earthing=earthing_report(records, profile, inspection.date, inspection.id),
     )
 
 

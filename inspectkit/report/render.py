@@ -42,6 +42,7 @@ from reportlab.platypus import (
 from inspectkit.report.branding import Branding
 from inspectkit.report.charts import trend_drawing
 from inspectkit.report.content import CHANGES_TITLE, Field, PhotoItem, ReportContent
+from inspectkit.report.earthing_section import earthing_flowables
 from inspectkit.report.photos import downscale
 from inspectkit.report.sign import SignatureSlot
 
@@ -549,6 +550,7 @@ def _story(content: ReportContent, branding: Branding, slot: dict[str, Any]) -> 
         )
         add(grid)
 
+    story.extend(earthing_flowables(content.earthing, styles, width, branding.primary))
     if content.general_photos:
         add(CondPageBreak(80 * mm))
         add(Paragraph("Photos", styles["h1"]))
