@@ -1,40 +1,25 @@
 """Earthing from the command line: calculators, traverses, soil surveys, electrode sizes."""
 
+# ruff: noqa: F811 - the demo fixtures are imported, then named as arguments
+
 from __future__ import annotations
 
 import json
 import sqlite3
-from datetime import date
 from pathlib import Path
 
 import pytest
+from earthing_factories import ANCHOR, demo, demo_template  # noqa: F401
 from typer.testing import CliRunner
 
 from inspectkit.calculators import CALCULATORS
 from inspectkit.cli import app
-from inspectkit.demo.generate import build_demo
 from inspectkit.earthing_values import read_traverse
 from inspectkit.model import Component, Reading, SoilSurvey
 from inspectkit.store import Store
 
 runner = CliRunner()
-ANCHOR = date(2026, 6, 1)
 SITE = "Pellow Ridge Quarry Offices"
-
-
-@pytest.fixture(scope="module")
-def demo_template(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    return build_demo(tmp_path_factory.mktemp("demo") / "demo.sqlite", anchor=ANCHOR)
-
-
-@pytest.fixture
-def demo(demo_template: Path, tmp_path: Path) -> Path:
-    """A fresh copy of the demo for each test, so one test's writes never reach another."""
-    copy = tmp_path / "demo.sqlite"
-    with Store.open(demo_template) as source:
-        source.backup(copy)
-    return copy
-
 
 def run(db: Path | None, *args: str):
     prefix = ["--db", str(db)] if db is not None else []
@@ -198,27 +183,6 @@ def test_soil_record_and_list(demo: Path) -> None:
         assert store.get(SoilSurvey, data["id"]) is None
 
 
-@pytest.mark.parametrize(
-    ("extra", "says"),
-    [
-        (("--points", "1 m=3.1; 1=1.5"), "two readings at 1 m"),
-        (("--points", "1 m=3.1", "--choose", "5 m"), "--choose 5 m is not one"),
-        (("--points", "1 m=3.1", "--date", "2030-01-01"), "--date: 2030-01-01 is in the future"),
-        (("--points", "1 m=3.1", "--depth", "-1 m"), "--depth:"),
-        (("--points", "1 kg=3.1"), "not a length"),
-        (("--points", ""), "nothing typed"),
-    ],
-)
-def test_a_bad_survey_is_refused_and_nothing_written(
-    demo: Path, extra: tuple[str, ...], says: str
-) -> None:
-    before = fingerprint(demo)
-    result = run(demo, "soil", "record", "--site", SITE, *extra)
-    assert result.exit_code == 2, result.output
-    assert says in result.stderr
-    assert fingerprint(demo) == before
-
-
 # ---------------------------------------------------------------- electrodes
 
 
@@ -233,20 +197,30 @@ def test_electrode_size_and_check(demo: Path) -> None:
     assert e02.length_m == pytest.approx(2.4384)
 
 
+SURVEY = ("soil", "record", "--site", SITE)
+SIZE = ("electrode", "size", "--site", SITE)
+
+
 @pytest.mark.parametrize(
-    ("extra", "says"),
+    ("command", "says"),
     [
-        (("--tag", "TJ-02", "--length", "3 m"), "sizes are for earth electrodes"),
-        (("--tag", "E-02", "--diameter", "2 m"), "--diameter: 2 m is out of range"),
-        (("--tag", "E-02", "--orientation", "sideways"), "not an orientation"),
-        (("--tag", "E-02", "--length", "10 mm", "--diameter", "16 mm"), "not less than"),
+        ((*SURVEY, "--points", "1 m=3.1; 1=1.5"), "two readings at 1 m"),
+        ((*SURVEY, "--points", "1 m=3.1", "--choose", "5 m"), "--choose 5 m is not one"),
+        ((*SURVEY, "--points", "1 m=3.1", "--date", "2030-01-01"), "--date: 2030-01-01 is in"),
+        ((*SURVEY, "--points", "1 m=3.1", "--depth", "-1 m"), "--depth:"),
+        ((*SURVEY, "--points", "1 kg=3.1"), "not a length"),
+        ((*SURVEY, "--points", ""), "nothing typed"),
+        ((*SIZE, "--tag", "TJ-02", "--length", "3 m"), "sizes are for earth electrodes"),
+        ((*SIZE, "--tag", "E-02", "--diameter", "2 m"), "--diameter: 2 m is out of range"),
+        ((*SIZE, "--tag", "E-02", "--orientation", "sideways"), "not an orientation"),
+        ((*SIZE, "--tag", "E-02", "--length", "10 mm", "--diameter", "16 mm"), "not less than"),
     ],
 )
-def test_a_bad_size_is_refused_and_nothing_written(
-    demo: Path, extra: tuple[str, ...], says: str
+def test_a_bad_survey_or_size_is_refused_and_nothing_written(
+    demo: Path, command: tuple[str, ...], says: str
 ) -> None:
     before = fingerprint(demo)
-    result = run(demo, "electrode", "size", "--site", SITE, *extra)
+    result = run(demo, *command)
     assert result.exit_code == 2, result.output
     assert says in result.stderr
     assert fingerprint(demo) == before

@@ -1,39 +1,20 @@
 """Earthing on screen: the site's Earthing tab and the calculators, driven through the pilot."""
 
+# ruff: noqa: F811 - the demo fixtures are imported, then named as arguments
+
 from __future__ import annotations
 
-from datetime import date
 from pathlib import Path
 
-import pytest
+from earthing_factories import ANCHOR, demo, demo_template  # noqa: F401
 from textual.widgets import Input, Static
 
-from inspectkit.cautions import ACKNOWLEDGED_SETTING
-from inspectkit.demo.generate import build_demo
 from inspectkit.model import Site
 from inspectkit.store import Store
 from inspectkit.tui.app import make_app
 from inspectkit.tui.screens.calculator import CalculatorScreen
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.widgets.earthing_panel import EarthingPanel
-
-ANCHOR = date(2026, 6, 1)
-
-
-@pytest.fixture(scope="module")
-def demo_template(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    path = build_demo(tmp_path_factory.mktemp("demo") / "demo.sqlite", anchor=ANCHOR)
-    with Store.open(path) as store:
-        store.set_setting(ACKNOWLEDGED_SETTING, "yes")
-    return path
-
-
-@pytest.fixture
-def demo(demo_template: Path, tmp_path: Path) -> Path:
-    copy = tmp_path / "demo.sqlite"
-    with Store.open(demo_template) as source:
-        source.backup(copy)
-    return copy
 
 
 def _site_id(path: Path, start: str) -> str:
