@@ -7,14 +7,18 @@ from __future__ import annotations
 from pathlib import Path
 
 from earthing_factories import ANCHOR, demo, demo_template  # noqa: F401
+from textual.app import App
 from textual.widgets import Input, Static
 
+from inspectkit.earthing_values import Traverse, make_traverse
 from inspectkit.model import Site
 from inspectkit.store import Store
 from inspectkit.tui.app import make_app
+from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import CalculatorScreen
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.widgets.earthing_panel import EarthingPanel
+from inspectkit.tui.widgets.traverse_view import traverse_line
 
 
 def _site_id(path: Path, start: str) -> str:
@@ -96,3 +100,60 @@ async def test_a_refused_input_is_named_on_screen(demo: Path) -> None:
         assert "ends at 3000 Ω·m" in answer
         assert calc.query_one("#l1--resistivity", Input).has_class("-refused")
         assert pilot.app.focused is calc.query_one("#l1--resistivity", Input)
+
+
+class TraverseHarness(App[None]):
+    """Only the traverse dialog, and what it returned."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.returned: list[object] = []
+
+    def on_mount(self) -> None:
+        self.push_screen(TraverseDialog("E-01", 0.05), self.returned.append)
+
+
+async def test_the_traverse_dialog_judges_as_typed_and_returns_the_traverse() -> None:
+    app = TraverseHarness()
+    async with app.run_test(size=(80, 24)) as pilot:
+        dialog = app.screen
+        dialog.query_one("#traverse-c", Input).value = "40 m"
+        dialog.query_one("#traverse-points", Input).value = "52%=3.8; 60%=3.9; 64%=4.1"
+        await pilot.pause()
+        preview = _text(dialog.query_one("#traverse-preview", Static))
+        # None near 72 %: the plateau cannot be checked (common practice), said in words.
+        assert "NO PLATEAU: no reading near 72 %" in preview
+        dialog.query_one("#traverse-points", Input).value = "52%=3.8; 60%=3.9"
+        await pilot.pause()
+        assert "not yet: traverse: holds 2 reading(s)" in _text(
+            dialog.query_one("#traverse-preview", Static)
+        )
+        await pilot.press("ctrl+s")  # refused: the dialog stays
+        assert app.screen is dialog
+        dialog.query_one("#traverse-points", Input).value = "52%=3.8; 60%=3.9; 64%=4.1; 72%=4.0"
+        await pilot.pause()
+        # IEEE Std 81's 61.8 % position, linear between 60 % and 64 %: 3.99 Ω.
+        assert "3.99 Ω at 61.8 %, PLATEAU" in _text(dialog.query_one("#traverse-preview", Static))
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+    (traverse,) = app.returned
+    assert isinstance(traverse, Traverse) and traverse.current_probe_m == 40.0
+
+
+async def test_the_traverse_dialog_names_what_is_wrong() -> None:
+    app = TraverseHarness()
+    async with app.run_test(size=(80, 24)) as pilot:
+        dialog = app.screen
+        dialog.query_one("#traverse-c", Input).value = "40 kg"
+        dialog.query_one("#traverse-points", Input).value = "52%=3.8; 61.8%=3.9; 72%=4.0"
+        await pilot.pause()
+        assert "current probe distance" in _text(dialog.query_one("#traverse-preview", Static))
+        await pilot.press("escape")
+        await pilot.pause()
+    assert app.returned == [None]
+
+
+def test_the_traverse_line_says_no_plateau_in_words() -> None:
+    traverse = make_traverse(20.0, [(10.4, 3.0), (12.36, 3.9), (14.4, 5.2)])
+    line = traverse_line(traverse, 0.05).plain
+    assert "NO PLATEAU" in line and "at least 134 m" in line

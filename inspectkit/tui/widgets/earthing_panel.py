@@ -7,11 +7,11 @@ from datetime import date
 from rich.text import Text
 from textual.widgets import Static
 
-from inspectkit.earthing_values import Traverse
 from inspectkit.engine.earthing_site import SiteEarthing, site_earthing
 from inspectkit.engine.history import as_of
 from inspectkit.model import SiteRecords
 from inspectkit.profiles import ProfileError, load_profile
+from inspectkit.tui.widgets.traverse_view import traverse_curve
 
 
 def earthing_for(records: SiteRecords, today: date) -> SiteEarthing | None:
@@ -21,21 +21,6 @@ def earthing_for(records: SiteRecords, today: date) -> SiteEarthing | None:
     except ProfileError:
         return None
     return site_earthing(as_of(records, today), profile, today)
-
-
-_BLOCKS = "▁▂▃▄▅▆▇█"
-
-
-def traverse_curve(traverse: Traverse) -> Text:
-    """The traverse as blocks, nearest the electrode first, scaled from its lowest to highest.
-
-    Unlike a trend, a traverse is read for its shape: the flat middle is the
-    plateau, so the blocks span the traverse's own range.
-    """
-    values = [r for _, r in traverse.points]
-    low, high = min(values), max(values)
-    steps = [0 if high == low else round((v - low) / (high - low) * 7) for v in values]
-    return Text("".join(_BLOCKS[s] for s in steps), style="cyan")
 
 
 def earthing_text(earthing: SiteEarthing | None) -> Text:
