@@ -29,6 +29,7 @@ class TraverseDialog(ModalScreen[Traverse | None]):
         padding: 0 1;
     }
     TraverseDialog Input { height: 1; border: none; padding: 0 1; background: $boost; }
+    TraverseDialog Input:focus { border: none; background: $primary 30%; }
     TraverseDialog Label { margin-top: 1; }
     TraverseDialog #traverse-preview { height: auto; margin-top: 1; }
     TraverseDialog Horizontal { height: auto; align-horizontal: right; margin-top: 1; }
