@@ -6,12 +6,12 @@ their own crews without touching the program.
 
 from __future__ import annotations
 
-import tomllib
 from functools import cache
 from pathlib import Path
 
 from inspectkit.model import ComponentKind
 from inspectkit.paths import templates_dir
+from inspectkit.tomlfile import read_toml
 
 
 class ChecklistError(ValueError):
@@ -33,12 +33,9 @@ def load_checklist(kind: ComponentKind) -> tuple[str, ...]:
         ChecklistError: the file is missing, is not TOML, or holds no list of items.
     """
     path = checklists_dir() / f"{kind.value}.toml"
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise ChecklistError(f"{path}: missing; add a checklist for {kind.label}") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise ChecklistError(f"{path}: not valid TOML ({exc})") from exc
+    data = read_toml(
+        path, ChecklistError, "the checklist", missing=f"missing; add a checklist for {kind.label}"
+    )
     items = data.get("items")
     if not isinstance(items, list) or not all(isinstance(i, str) and i.strip() for i in items):
         raise ChecklistError(f"{path}: 'items' must be a list of non-empty texts")

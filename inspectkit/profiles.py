@@ -9,15 +9,15 @@ bad one is reported with the file and the key so it can be fixed.
 
 from __future__ import annotations
 
-import tomllib
 from pathlib import Path
 from typing import Any
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator
 
 from inspectkit.model import ProtectionLevel, Quantity
 from inspectkit.paths import templates_dir, user_config_dir
-from inspectkit.units import UnitError, parse
+from inspectkit.tomlfile import read_toml, validated
+from inspectkit.units import parse
 
 
 class ProfileError(ValueError):
@@ -165,30 +165,8 @@ def user_profiles_dir() -> Path:
 
 def load_profile_file(path: Path) -> Profile:
     """Read and check one profile file; errors name the file and the key."""
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise ProfileError(f"{path}: cannot read the profile ({exc.strerror})") from exc
-    except tomllib.TOMLDecodeError as exc:
-        raise ProfileError(f"{path}: not valid TOML ({exc})") from exc
-    try:
-        return Profile.model_validate({**data, "source": str(path)})
-    except ValidationError as exc:
-        problems = []
-        for item in exc.errors():
-            key = ".".join(str(p) for p in item["loc"])
-            problems.append(f"{path}: {key}: {_plain(item)}")
-        raise ProfileError("\n".join(problems)) from None
-
-
-def _plain(item: Any) -> str:
-    """A pydantic error message, shortened and with a hint for the usual slips."""
-    if item["type"] == "missing":
-        return "missing; add this key"
-    cause = item.get("ctx", {}).get("error")
-    if isinstance(cause, UnitError):
-        return str(cause)
-    return str(item["msg"]).removeprefix("Value error, ")
+    data = read_toml(path, ProfileError, "the profile")
+    return validated(Profile, {**data, "source": str(path)}, ProfileError, str(path))
 
 
 def profile_paths() -> dict[str, Path]:

@@ -102,8 +102,8 @@ async def test_export_draft_leaves_it_a_draft(harness, tmp_path: Path) -> None:
 async def test_the_site_screen_opens_the_latest_visits_report(tmp_path: Path) -> None:
     from test_report_factory import TODAY
 
+    from inspectkit.store.preferences import Preferences
     from inspectkit.tui.app import make_app
-    from inspectkit.tui.preferences import Preferences
     from inspectkit.tui.screens.site import SiteScreen
 
     db = tmp_path / "db.sqlite"

@@ -6,7 +6,8 @@ from datetime import date
 
 import pytest
 
-from inspectkit.engine.check import check_all, check_site, worst_first
+from inspectkit.engine.check import check_all, check_site
+from inspectkit.engine.standing import worst_first
 from inspectkit.model import ComponentKind, Grade, InspectionKind, Quantity, Severity
 from inspectkit.profiles import ProfileError, load_profile
 from tests.engine_factories import SiteBuilder

@@ -16,8 +16,11 @@ CORE = (
     "inspectkit.plan",
     "inspectkit.sync",
     "inspectkit.walkdown",
-    "inspectkit.tui.site_state",
-    "inspectkit.tui.preferences",
+    "inspectkit.site_states",
+    "inspectkit.calculators",
+    "inspectkit.earthing_jobs",
+    "inspectkit.earthing_input",
+    "inspectkit.earthing_values",
 )
 
 

@@ -11,8 +11,8 @@ from tui_factories import ANCHOR, settled, tui_db  # noqa: F401
 
 from inspectkit.model import Inspector, Instrument, Site
 from inspectkit.store import Store
+from inspectkit.store.preferences import INSPECTOR_SETTING, INSTRUMENT_SETTING
 from inspectkit.tui.app import make_app
-from inspectkit.tui.preferences import INSPECTOR_SETTING, INSTRUMENT_SETTING
 from inspectkit.tui.screens.settings import SettingsScreen
 
 
@@ -86,7 +86,7 @@ async def test_profile_per_site(tui_db: Path) -> None:
 
 
 async def test_keymap_setting_moves_a_key(tui_db: Path) -> None:
-    from inspectkit.tui.preferences import KEYMAP_SETTING
+    from inspectkit.store.preferences import KEYMAP_SETTING
     from inspectkit.tui.screens.findings import FindingsScreen
 
     with Store.open(tui_db) as store:

@@ -214,16 +214,16 @@ async def test_long_list_filters_once_typing_pauses(
 async def test_a_site_the_engine_fails_on_shows_error_and_the_rest_are_judged(
     tui_db: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    from inspectkit.tui import site_state
+    from inspectkit import site_states
 
-    real = site_state.assess
+    real = site_states.assess
 
     def failing_for_the_school(records, profile, today):  # type: ignore[no-untyped-def]
         if records.site.name == "Mill Lane School":
             raise ZeroDivisionError("division by zero in a trend [bug]")
         return real(records, profile, today)
 
-    monkeypatch.setattr(site_state, "assess", failing_for_the_school)
+    monkeypatch.setattr(site_states, "assess", failing_for_the_school)
     app = make_app(tui_db, today=ANCHOR)
     told: list[str] = []
     notify = app.notify

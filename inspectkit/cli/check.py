@@ -10,8 +10,18 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
-from inspectkit.engine.check import SiteCheck, check_all, worst_first
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    day_of,
+    emit_json,
+    fail,
+    open_store,
+    today_option,
+)
+from inspectkit.engine.check import SiteCheck, check_all
+from inspectkit.engine.standing import worst_first
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_all_profiles
 from inspectkit.store import Store
@@ -82,19 +92,11 @@ def check(
         str | None,
         typer.Option("--site", help="Check only this site (name, start of name, or id)."),
     ] = None,
-    today: Annotated[
-        datetime | None,
-        typer.Option(
-            "--today",
-            formats=["%Y-%m-%d"],
-            help="Judge as of this day, YYYY-MM-DD (default: today).",
-            show_default=False,
-        ),
-    ] = None,
+    today: Annotated[datetime | None, today_option("Judge")] = None,
     json_out: JsonOption = False,
 ) -> None:
     """Check readings, schedules and trends; exit 1 when anything fails or is overdue."""
-    day = today.date() if today is not None else date.today()
+    day = day_of(today)
     with open_store(ctx, db) as store:
         try:
             checks = gather(store, day, site)

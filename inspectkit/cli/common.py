@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import sys
+from datetime import date, datetime
 from enum import IntEnum
 from pathlib import Path
 from typing import Annotated, Any, NoReturn
@@ -37,6 +38,30 @@ DbOption = Annotated[
 JsonOption = Annotated[
     bool, typer.Option("--json", help="Print JSON for scripts instead of a table.")
 ]
+
+
+def output_option(help_text: str) -> Any:
+    """`-o/--output FILE` (`--out` is taken too), the same on every command that writes one."""
+    return typer.Option("-o", "--output", "--out", help=help_text, dir_okay=False)
+
+
+def today_option(purpose: str) -> Any:
+    """`--today YYYY-MM-DD`: the day a command works as of, so a script can replay a date.
+
+    Args:
+        purpose: what the day is for, as the start of the help ("Judge", "Count ages").
+    """
+    return typer.Option(
+        "--today",
+        formats=["%Y-%m-%d"],
+        help=f"{purpose} as of this day, YYYY-MM-DD (default: today).",
+        show_default=False,
+    )
+
+
+def day_of(today: datetime | None) -> date:
+    """The `--today` option's day, or the real one."""
+    return today.date() if today is not None else date.today()
 
 
 def resolve_db(ctx: typer.Context, db: Path | None) -> Path:

@@ -9,7 +9,7 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import fail
+from inspectkit.cli.common import fail, output_option
 
 
 def _parse_day(value: str | None) -> date | None:
@@ -24,11 +24,7 @@ def _parse_day(value: str | None) -> date | None:
 def demo(
     out: Annotated[
         Path | None,
-        typer.Option(
-            "--out",
-            help="Write the demo database (and its photos beside it) here and stop.",
-            dir_okay=False,
-        ),
+        output_option("Write the demo database (and its photos beside it) here and stop."),
     ] = None,
     anchor: Annotated[
         str | None,

@@ -23,7 +23,7 @@ from inspectkit.model import (
     Severity,
     SoilCondition,
 )
-from inspectkit.tui.preferences import Preferences
+from inspectkit.store.preferences import Preferences
 from inspectkit.units import UnitError, format_value
 from inspectkit.walkdown import (
     JOINT_FOR,

@@ -8,7 +8,16 @@ from typing import Annotated, Any
 import typer
 
 from inspectkit.cli import lookups
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    day_of,
+    emit_json,
+    fail,
+    open_store,
+    today_option,
+)
 from inspectkit.model import Finding
 from inspectkit.store import StoreError
 from inspectkit.store.queries import OpenFinding, later_inspections, open_findings
@@ -29,22 +38,14 @@ def findings(
     site: Annotated[
         str | None, typer.Option("--site", help="Only this site (name, start of name, or id).")
     ] = None,
-    today: Annotated[
-        datetime | None,
-        typer.Option(
-            "--today",
-            formats=["%Y-%m-%d"],
-            help="Count ages as of this day (default: today).",
-            show_default=False,
-        ),
-    ] = None,
+    today: Annotated[datetime | None, today_option("Count ages")] = None,
     db: DbOption = None,
     json_out: JsonOption = False,
 ) -> None:
     """List open findings; `findings resolve` records the visit that put one right."""
     if ctx.invoked_subcommand is not None:
         return
-    day = today.date() if today is not None else date.today()
+    day = day_of(today)
     with open_store(ctx, db) as store:
         items = open_findings(store)
         if site is not None:

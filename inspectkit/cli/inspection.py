@@ -13,7 +13,7 @@ from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
 from inspectkit.cli.entries import outcome_json, outcome_line
 from inspectkit.model import Inspection, Site
-from inspectkit.tui.preferences import Preferences
+from inspectkit.store.preferences import Preferences
 from inspectkit.walkdown import (
     DETAIL_LABELS,
     Missing,

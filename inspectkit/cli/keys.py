@@ -9,7 +9,7 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, fail, open_store
+from inspectkit.cli.common import DbOption, fail, open_store, output_option
 from inspectkit.model import Inspector
 from inspectkit.store import Store
 
@@ -60,12 +60,7 @@ def new(
     inspector: InspectorOption,
     output: Annotated[
         Path | None,
-        typer.Option(
-            "-o",
-            "--output",
-            dir_okay=False,
-            help="Key file to write (default: beside the database, in <db>-keys/).",
-        ),
+        output_option("Key file to write (default: beside the database, in <db>-keys/)."),
     ] = None,
     db: DbOption = None,
 ) -> None:

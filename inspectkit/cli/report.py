@@ -8,7 +8,15 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    emit_json,
+    fail,
+    open_store,
+    output_option,
+)
 from inspectkit.cli.keys import passphrase
 from inspectkit.model import Inspection
 from inspectkit.store import Store
@@ -56,12 +64,7 @@ def report(
     ] = None,
     output: Annotated[
         Path | None,
-        typer.Option(
-            "-o",
-            "--output",
-            dir_okay=False,
-            help="PDF file to write (default: <site>-<date>-r<revision>.pdf here).",
-        ),
+        output_option("PDF file to write (default: <site>-<date>-r<revision>.pdf here)."),
     ] = None,
     sign: Annotated[
         bool,

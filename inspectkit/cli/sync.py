@@ -11,7 +11,15 @@ from typing import Annotated, TextIO
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    emit_json,
+    fail,
+    open_store,
+    output_option,
+)
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.sync.guard import BundleError
@@ -55,10 +63,7 @@ def export(
         str | None, typer.Option("--site", help="Site name (or its start) or id.")
     ] = None,
     out: Annotated[
-        Path | None,
-        typer.Option(
-            "-o", "--out", help="File to write (default: stdout for tables).", dir_okay=False
-        ),
+        Path | None, output_option("File to write (default: stdout for tables).")
     ] = None,
     fmt: Annotated[
         Format, typer.Option("--format", help="bundle (records and photos) or a table.")

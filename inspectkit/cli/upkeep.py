@@ -8,7 +8,15 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    emit_json,
+    fail,
+    open_store,
+    output_option,
+)
 from inspectkit.store import StoreError
 from inspectkit.store.database import photos_dir_of
 from inspectkit.store.photos import copy_photos_for_backup, restore_photos
@@ -22,10 +30,7 @@ def default_backup_path(db_path: Path, now: datetime) -> Path:
 def backup(
     ctx: typer.Context,
     out: Annotated[
-        Path | None,
-        typer.Option(
-            "-o", "--out", help="Backup file (default: timestamped, beside the db).", dir_okay=False
-        ),
+        Path | None, output_option("Backup file (default: timestamped, beside the db).")
     ] = None,
     photos: Annotated[
         bool, typer.Option("--photos/--no-photos", help="Copy the photo files it names too.")

@@ -6,14 +6,14 @@ generator; a slip in it is reported with the key to fix, like a profile.
 
 from __future__ import annotations
 
-import tomllib
 from pathlib import Path
 from typing import Literal
 
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
+from pydantic import BaseModel, ConfigDict, Field, model_validator
 
 from inspectkit.model import ElectrodeType, Grade, ProtectionLevel
 from inspectkit.paths import demo_dir
+from inspectkit.tomlfile import read_toml, validated
 
 #: Names an inspection can be referred to by in the scenario file.
 InspectionRef = str
@@ -206,18 +206,5 @@ def scenario_path() -> Path:
 def load_scenario(path: Path | None = None) -> Scenario:
     """Read and check the scenario file; errors name the file and the key."""
     path = path or scenario_path()
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise ScenarioError(f"{path}: cannot read the scenario ({exc.strerror})") from exc
-    except tomllib.TOMLDecodeError as exc:
-        raise ScenarioError(f"{path}: not valid TOML ({exc})") from exc
-    try:
-        return Scenario.model_validate(data)
-    except ValidationError as exc:
-        lines = [
-            f"{path}: {'.'.join(str(p) for p in item['loc'])}: "
-            f"{str(item['msg']).removeprefix('Value error, ')}"
-            for item in exc.errors()
-        ]
-        raise ScenarioError("\n".join(lines)) from None
+    data = read_toml(path, ScenarioError, "the scenario")
+    return validated(Scenario, data, ScenarioError, str(path))

@@ -91,13 +91,6 @@ def check_all(
         yield check_site(records, profile, today)
 
 
-def worst_first(checks: Iterable[SiteCheck]) -> list[SiteCheck]:
-    """Sites in the order a person should look at them: worst, then most overdue, then name."""
-    return sorted(
-        checks, key=lambda c: (-c.worst.rank, -c.schedule.overdue_days, c.site_name.lower())
-    )
-
-
 def _summary(results: list[Result], schedule: SiteSchedule) -> str:
     counts: dict[Severity, int] = {}
     for result in results:

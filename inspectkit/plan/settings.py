@@ -8,7 +8,6 @@ and key.
 
 from __future__ import annotations
 
-import tomllib
 from datetime import time
 from pathlib import Path
 from typing import Any
@@ -17,6 +16,7 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_valida
 
 from inspectkit.model import ComponentKind, InspectionKind
 from inspectkit.paths import templates_dir, user_config_dir
+from inspectkit.tomlfile import read_toml, validated
 
 #: Inspection kinds a round plans time for; others are not visits the office books.
 TIMED_KINDS = (InspectionKind.VISUAL, InspectionKind.COMPLETE, InspectionKind.POST_STRIKE)
@@ -119,26 +119,11 @@ def load_plan_settings(user_file: Path | None = None) -> PlanSettings:
     if user.is_file():
         data = _merged(data, _read(user))
         sources = f"{user} (over {builtin_settings_path()})"
-    try:
-        return PlanSettings.model_validate(data)
-    except ValidationError as exc:
-        lines = [
-            f"{sources}: {'.'.join(str(p) for p in e['loc'])}: "
-            + ("missing; add this key" if e["type"] == "missing" else e["msg"]).removeprefix(
-                "Value error, "
-            )
-            for e in exc.errors()
-        ]
-        raise PlanSettingsError("\n".join(lines)) from None
+    return validated(PlanSettings, data, PlanSettingsError, sources)
 
 
 def _read(path: Path) -> dict[str, Any]:
-    try:
-        return tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise PlanSettingsError(f"{path}: cannot read it ({exc.strerror})") from exc
-    except tomllib.TOMLDecodeError as exc:
-        raise PlanSettingsError(f"{path}: not valid TOML ({exc})") from exc
+    return read_toml(path, PlanSettingsError, "it")
 
 
 def _merged(base: dict[str, Any], over: dict[str, Any]) -> dict[str, Any]:

@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import re
-import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from inspectkit.paths import templates_dir
+from inspectkit.tomlfile import read_toml
 
 _COLOUR = re.compile(r"^#[0-9a-fA-F]{6}$")
 
@@ -46,12 +46,7 @@ def load_branding(path: Path | None = None) -> Branding:
         BrandingError: the file is missing, not TOML, or a field is wrong.
     """
     path = path or default_branding_path()
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise BrandingError(f"{path}: cannot read the branding file ({exc.strerror})") from exc
-    except tomllib.TOMLDecodeError as exc:
-        raise BrandingError(f"{path}: not valid TOML ({exc})") from exc
+    data = read_toml(path, BrandingError, "the branding file")
     contractor = _table(data, "contractor", path)
     colours = _table(data, "colours", path)
     name = str(contractor.get("name", "")).strip()

@@ -9,9 +9,9 @@ from textual.app import App
 from textual.binding import Binding
 
 from inspectkit.store import Store
+from inspectkit.store.preferences import Preferences
 from inspectkit.tui.commands import ActionsProvider
 from inspectkit.tui.dialogs.cautions import CautionsDialog
-from inspectkit.tui.preferences import Preferences
 from inspectkit.tui.screens.findings import FindingsScreen
 from inspectkit.tui.screens.plan import PlanScreen
 from inspectkit.tui.screens.settings import SettingsScreen

@@ -23,18 +23,18 @@ from inspectkit.model import (
     Quantity,
     SiteRecords,
 )
-from inspectkit.store.queries import load_site_records
-from inspectkit.tui.dialogs.choice import ChoiceDialog
-from inspectkit.tui.dialogs.confirm import ConfirmDialog
-from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
-from inspectkit.tui.screens.calculator import calculator_for
-from inspectkit.tui.site_state import (
+from inspectkit.site_states import (
     NO_PROFILE,
     ProfileCache,
     SiteState,
     judge,
     reading_verdicts,
 )
+from inspectkit.store.queries import load_site_records
+from inspectkit.tui.dialogs.choice import ChoiceDialog
+from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
+from inspectkit.tui.screens.calculator import calculator_for
 from inspectkit.tui.widgets.earthing_panel import EarthingPanel, earthing_for
 from inspectkit.tui.widgets.sparkline import sparkline
 from inspectkit.tui.widgets.state_badge import StateBadge, state_text

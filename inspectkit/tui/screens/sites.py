@@ -15,9 +15,10 @@ from textual.timer import Timer
 from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
+from inspectkit.engine.standing import WORDS_WORST_FIRST
+from inspectkit.site_states import ERROR, SiteState, assess_all
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
-from inspectkit.tui.site_state import ERROR, WORDS_WORST_FIRST, SiteState, assess_all
 from inspectkit.tui.widgets.state_badge import state_text
 
 #: How the list can be ordered, in the order the sort key cycles through them.
@@ -72,9 +73,9 @@ class SiteRow:
     def sort_key(self, by: str) -> tuple[object, ...]:
         due = self.state.next_due if self.state and self.state.next_due else date.max
         if by == "state":
-            # Not yet judged sorts after every judged site.
-            rank = self.state.rank if self.state else len(WORDS_WORST_FIRST)
-            return (rank, due, self.name.lower())
+            if self.state is None:  # not yet judged: after every judged site
+                return (len(WORDS_WORST_FIRST), due, self.name.lower())
+            return self.state.order_key(self.name)
         if by == "due":
             return (due, self.name.lower())
         return (getattr(self, by).lower(), self.name.lower())

@@ -1,7 +1,8 @@
-"""One word per site for the lists (ok, watch, due soon, fail, overdue), from the engine.
+"""Each site's standing for the lists, judged from its stored records.
 
-Kept free of Textual so the sites list's background worker, the benchmark and the
-tests all compute states the same way.
+The word and the order come from `engine.standing`; this module loads the records, finds
+the profile and keeps one bad site from stopping a list. Free of Textual, so the sites
+screen's worker, `inspectkit sites`, the benchmark and the tests judge sites the same way.
 """
 
 from __future__ import annotations
@@ -13,14 +14,12 @@ from pathlib import Path
 
 from inspectkit.engine.check import SiteCheck, check_site
 from inspectkit.engine.history import series
-from inspectkit.engine.schedule import DueStatus
+from inspectkit.engine.standing import order_key, standing
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records
 
-#: Words from worst to best: the sites list sorts by this, worst first.
-WORDS_WORST_FIRST = ("overdue", "fail", "incomplete", "due soon", "watch", "ok")
 #: Shown when a site's profile cannot be read: it cannot be judged at all.
 NO_PROFILE = "no profile"
 #: Shown when judging a site failed for another reason (bad data, a bug): see `reason`.
@@ -32,7 +31,7 @@ class SiteState:
     """What the lists show about a site.
 
     Attributes:
-        word: one of WORDS_WORST_FIRST, NO_PROFILE or ERROR.
+        word: one of `engine.standing.WORDS_WORST_FIRST`, NO_PROFILE or ERROR.
         next_due: the date of the most urgent inspection the site owes.
         next_kind: which inspection that is (visual, complete, post_strike...).
         check: the engine's whole verdict, when the site's profile could be read.
@@ -45,28 +44,16 @@ class SiteState:
     check: SiteCheck | None = field(default=None, compare=False)
     reason: str = ""
 
-    @property
-    def rank(self) -> int:
-        """Smaller is worse; unknown words sort first, since nobody judged them."""
-        return WORDS_WORST_FIRST.index(self.word) if self.word in WORDS_WORST_FIRST else -1
+    def order_key(self, name: str) -> tuple[int, date, str]:
+        """Where the site named `name` goes in a list ordered worst first."""
+        return order_key(self.word, self.next_due, name)
 
 
 def assess(records: SiteRecords, profile: Profile, today: date) -> SiteState:
-    """The site's state: overdue beats a failing reading beats due soon beats watch."""
+    """The site's state, in the engine's words."""
     check = check_site(records, profile, today)
-    schedule, worst = check.schedule, check.worst
-    if schedule.status is DueStatus.OVERDUE or worst is Severity.OVERDUE:
-        word = "overdue"
-    elif worst in (Severity.FAIL, Severity.INCOMPLETE):
-        word = worst.value
-    elif schedule.status in (DueStatus.DUE, DueStatus.DUE_SOON):
-        word = "due soon"
-    elif worst is Severity.WATCH:
-        word = "watch"
-    else:
-        word = "ok"
-    item = schedule.next_due
-    return SiteState(word, item.due, item.kind.value, check)
+    item = check.schedule.next_due
+    return SiteState(standing(check), item.due, item.kind.value, check)
 
 
 class ProfileCache:
