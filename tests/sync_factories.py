@@ -38,6 +38,7 @@ RECORD_TABLES = (
     "reading",
     "finding",
     "photo",
+    "soil_survey",
 )
 
 

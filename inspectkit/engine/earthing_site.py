@@ -123,8 +123,10 @@ def site_earthing(
         (s, analyse_survey(s, figures.wenner_form_tolerance, figures.layered_ratio))
         for s in sorted(records.surveys, key=lambda s: (s.date, s.created_at))
     )
+    # Read once: a site's readings are thousands, its electrodes a dozen.
+    soil = [r for r in records.readings if r.quantity is Quantity.SOIL_RESISTIVITY]
     electrodes = tuple(
-        _electrode(records, c, latest.get((c.id, Quantity.EARTH_ISOLATED)), figures)
+        _electrode(records, soil, c, latest.get((c.id, Quantity.EARTH_ISOLATED)), figures)
         for c in records.components
         if c.kind is ComponentKind.EARTH_ELECTRODE and in_service(c, today)
     )
@@ -134,14 +136,18 @@ def site_earthing(
         for r in latest.values()
         if r.traverse is not None
     )
-    rho = design_resistivity(records.surveys, records.readings)
+    rho = design_resistivity(records.surveys, soil)
     return SiteEarthing(surveys, rho, electrodes, tuple(sorted(curves, key=lambda c: c.tag)))
 
 
 def _electrode(
-    records: SiteRecords, electrode: Component, measured: Reading | None, figures: EarthingFigures
+    records: SiteRecords,
+    soil: list[Reading],
+    electrode: Component,
+    measured: Reading | None,
+    figures: EarthingFigures,
 ) -> ElectrodeEarthing:
-    rho = design_resistivity(records.surveys, records.readings, electrode.length_m)
+    rho = design_resistivity(records.surveys, soil, electrode.length_m)
     if rho is None:
         return ElectrodeEarthing(electrode, None, None, None, measured)
     value = None if measured is None or measured.over_range else measured.value
