@@ -11,9 +11,10 @@ from textual.app import App
 from textual.widgets import Input, Static
 
 from inspectkit.earthing_values import Traverse, make_traverse
-from inspectkit.model import Site
+from inspectkit.model import Site, SoilSurvey
 from inspectkit.store import Store
 from inspectkit.tui.app import make_app
+from inspectkit.tui.dialogs.survey_entry import SurveyDialog
 from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import CalculatorScreen
 from inspectkit.tui.screens.site import SiteScreen
@@ -157,3 +158,29 @@ def test_the_traverse_line_says_no_plateau_in_words() -> None:
     traverse = make_traverse(20.0, [(10.4, 3.0), (12.36, 3.9), (14.4, 5.2)])
     line = traverse_line(traverse, 0.05).plain
     assert "NO PLATEAU" in line and "at least 134 m" in line
+
+
+async def test_a_soil_survey_is_recorded_from_the_site_screen(demo: Path) -> None:
+    app = make_app(demo, today=ANCHOR)
+    async with app.run_test(size=(100, 34)) as pilot:
+        screen = await _site(pilot, demo, "Pellow")
+        await pilot.press("s")
+        await pilot.pause()
+        dialog = pilot.app.screen
+        assert isinstance(dialog, SurveyDialog)
+        dialog.query_one("#survey-points", Input).value = "1 m=3.1; 2 m=1.5; 1=1.4"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert pilot.app.screen is dialog, "a refused survey keeps the dialog open"
+        assert "REFUSED Spacing a=reading R" in _text(dialog.query_one("#survey-error", Static))
+        with Store.open(demo) as store:
+            assert len(store.select(SoilSurvey)) == 2, "the demo's two surveys, nothing more"
+        dialog.query_one("#survey-points", Input).value = "1 m=3.1; 2 m=1.5; 4 m=0.8"
+        dialog.query_one("#survey-direction", Input).value = "N–S"
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert pilot.app.screen is screen
+        # IEEE Std 81, ρ = 2π·a·R: the highest is 2π × 4 × 0.8 = 20.1 Ω·m.
+        assert "Design ρ: 20.1 Ω·m (highest of the survey" in _text(screen.query_one(EarthingPanel))
+    with Store.open(demo) as store:
+        assert len(store.select(SoilSurvey)) == 3
