@@ -183,3 +183,9 @@ def test_exports_carry_the_traverse(demo: Path) -> None:
     exports.write_csv(traversed, exports.READING_FIELDS, out)
     assert out.getvalue().splitlines()[0].endswith(",traverse")
     assert json.loads(traversed[0]["traverse"])["current_probe_m"] in (50.0, 60.0)
+
+
+def test_a_series_reading_has_the_bound_of_any_reading() -> None:
+    from inspectkit import earthing_values, model
+
+    assert earthing_values.MAX_READING_OHM == model.MAX_RESISTANCE_OHM
