@@ -573,6 +573,9 @@ class Instrument(Record):
     description: str = Field(min_length=1, max_length=200)
     serial: str = Field(min_length=1, max_length=100)
     calibration_due: date | None = None
+    #: Set when the instrument is no longer used (or was added by mistake): kept for
+    #: the readings taken with it, no longer offered.
+    retired_on: date | None = None
 
 
 class Inspector(Record):
@@ -587,6 +590,9 @@ class Inspector(Record):
     signing_key: str = ""
     #: The inspector's certificate (PEM), so reports can be checked against it.
     certificate_pem: str = ""
+    #: Set when the person no longer inspects (or was added by mistake): kept for the
+    #: inspections they signed, no longer offered.
+    retired_on: date | None = None
 
 
 class Inspection(Record):

@@ -47,7 +47,7 @@ from inspectkit.model import (
     utcnow,
 )
 from inspectkit.profiles import Profile, ProfileError, load_profile
-from inspectkit.store import FrozenRecordError, Store, StoreError
+from inspectkit.store import FrozenRecordError, Store, StoreError, drafts
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif
 from inspectkit.units import Measured, UnitError, format_value, parse
 
@@ -1009,3 +1009,64 @@ def _update_inspection(store: Store, inspection_id: str, changes: dict[str, Any]
         return inspection
     data = {**inspection.model_dump(), **changes}
     return _save(store, _validated(Inspection, data, now=inspection.date))
+
+
+# ------------------------------------------------------------ what is not saved yet
+
+#: What the inspector calls each field a draft can be kept for, besides the readings.
+DRAFT_FIELDS: dict[str, str] = {
+    "finding-text": "note",
+    "finding-remedial": "remedial action",
+    "finding-due": "due date",
+    "photo": "photo path",
+}
+
+
+@dataclass(frozen=True)
+class Drafts:
+    """Text typed in a walkdown and not saved, and the component the walkdown was on.
+
+    Attributes:
+        texts: The text as typed, by (component id, field): `q-<quantity>` for a
+            reading, else a key of `DRAFT_FIELDS`.
+        place: The component the inspector was on, or None.
+    """
+
+    texts: dict[tuple[str, str], str]
+    place: str | None
+
+
+def keep_drafts(
+    store: Store, inspection_id: str, texts: dict[tuple[str, str], str], place: str | None
+) -> None:
+    """Keep what is typed and not saved (blank text is not kept), and where the walk is.
+
+    Drafts are not readings: nothing judges, counts, reports or sends them.
+    """
+    kept = {key: text for key, text in texts.items() if text.strip()}
+    drafts.save_drafts(store, inspection_id, kept, place)
+
+
+def drafts_for(store: Store, inspection_id: str) -> Drafts:
+    """What a walkdown of this inspection left unsaved, and where it was."""
+    texts, place = drafts.load_drafts(store, inspection_id)
+    return Drafts(texts, place)
+
+
+def forget_drafts(store: Store, inspection_id: str) -> None:
+    """Let go of the inspection's drafts (it was finished; what was saved is what counts)."""
+    drafts.drop_drafts(store, inspection_id)
+
+
+def drafts_told(texts: dict[tuple[str, str], str], tags: dict[str, str]) -> str:
+    """`2 entries were not saved: DC-06 continuity '70 mΩ', E-05 note 'clamp loose'`."""
+    named = []
+    for (component_id, field_key), text in texts.items():
+        if field_key.startswith("q-"):
+            what = Quantity(field_key.removeprefix("q-")).label
+        else:
+            what = DRAFT_FIELDS.get(field_key, field_key)
+        named.append(f"{tags.get(component_id, component_id)} {what} {text!r}")
+    count = len(named)
+    entries = "1 entry was" if count == 1 else f"{count} entries were"
+    return f"{entries} not saved: " + ", ".join(named)

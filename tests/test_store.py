@@ -16,6 +16,7 @@ from inspectkit.model import (
     Finding,
     Inspection,
     InspectionState,
+    Instrument,
     Photo,
     Reading,
     Site,
@@ -52,7 +53,7 @@ def file_bytes(path: Path) -> bytes:
     return path.read_bytes()
 
 
-def save_in_old_schema(db: sqlite_utils.Database, record: Site | Inspection) -> None:
+def save_in_old_schema(db: sqlite_utils.Database, record: Site | Inspection | Instrument) -> None:
     """Write a record as an older inspectkit did: only the columns its schema had, audited."""
     table = db[record.table]
     columns = {c.name for c in table.columns}
@@ -338,3 +339,19 @@ def test_rows_given_with_records_must_match_them_one_to_one(store: Store) -> Non
     with pytest.raises(ValueError, match="touch=False"):
         store.save_all([site], rows=[{}])
     assert store.select(Site) == []
+
+
+def test_a_database_from_before_drafts_and_retiring_migrates(db_path: Path) -> None:
+    from inspectkit.store.schema import MIGRATIONS, _entry_drafts
+
+    db = sqlite_utils.Database(db_path)
+    apply_migrations(db, upto=MIGRATIONS.index(_entry_drafts))
+    tester = Instrument(description="Earth tester", serial="ET-1")
+    save_in_old_schema(db, tester)
+    db.close()
+
+    with Store.open(db_path) as store:
+        assert store.schema_version() == SCHEMA_VERSION
+        assert store.get(Instrument, tester.id).retired_on is None
+        assert {"entry_draft", "walkdown_place"} <= set(store.db.table_names())
+        assert store.verify_audit() == [], "the new column is logged, not taken for an edit"

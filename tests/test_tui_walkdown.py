@@ -164,7 +164,7 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         for index, stop in enumerate(screen.stops):
             assert screen.stop.component.id == stop.component.id
             tag = stop.component.tag
-            for entry in screen.query(ReadingEntry):
+            for entry in screen.pane.entries:
                 if entry.quantity is Quantity.SOIL_RESISTIVITY:
                     continue
                 if tag == "E-02":
@@ -251,7 +251,7 @@ async def test_bad_input_says_what_is_expected_and_keeps_the_text(
         await screen.show_stop(
             next(i for i, s in enumerate(screen.stops) if s.component.tag == "ER-01")
         )
-        entry = screen.query_one("#q-earth_isolated", ReadingEntry)
+        entry = screen.pane.entry(Quantity.EARTH_ISOLATED)
         await type_into(pilot, entry, "3,9 k", keys=False)
         await type_into(pilot, entry, "four", keys=True)
         assert "✗ not saved" in status_of(entry)
@@ -272,7 +272,7 @@ async def test_unsaved_text_waits_and_moving_on_saves_it(walk_db: tuple[Path, st
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)  # RC-01, continuity
-        entry = screen.query_one(ReadingEntry)
+        entry = screen.pane.entries[0]
         entry.input.focus()
         await pilot.press(*"0.1")
         assert "not saved yet" in status_of(entry)
@@ -320,7 +320,7 @@ async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str])
     async with walking(walk_db) as (app, pilot, screen):
         assert "done" in str(screen.stop_list.get_option_at_index(2).prompt)
         await screen.show_stop(2)
-        entry = screen.query_one(ReadingEntry)
+        entry = screen.pane.entries[0]
         assert entry.input.value == "150 mΩ"
         assert "✓ saved" in status_of(entry)
 
@@ -345,7 +345,7 @@ async def test_a_folder_of_photos_is_matched_by_time(
     _, visit_id = walk_db
     async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)
-        await type_into(pilot, screen.query_one(ReadingEntry), "0.1")
+        await type_into(pilot, screen.pane.entries[0], "0.1")
         write_photo(tmp_path / "card" / "IMG_1.jpg", datetime.now(UTC))
         await type_into(pilot, screen.query_one("#photo", SavingField), str(tmp_path / "card"))
         await pilot.pause()
@@ -377,7 +377,7 @@ async def test_a_bad_due_date_is_marked_on_its_own_field(walk_db: tuple[Path, st
 async def entry_at(screen: WalkdownScreen, tag: str, quantity: Quantity) -> ReadingEntry:
     """Go to the component with that tag and give its entry for the quantity."""
     await screen.show_stop(next(i for i, s in enumerate(screen.stops) if s.component.tag == tag))
-    return screen.query_one(f"#q-{quantity.value}", ReadingEntry)
+    return screen.pane.entry(quantity)
 
 
 async def rod_reading_saved(pilot: Pilot[None], screen: WalkdownScreen, text: str) -> ReadingEntry:
@@ -483,7 +483,7 @@ async def test_continuity_offers_two_and_four_wire(walk_db: tuple[Path, str]) ->
         counter = screen.stops[-1]
         await screen.show_stop(len(screen.stops) - 1)
         assert counter.component.tag == "SC-01"
-        assert screen.query_one(ReadingEntry).method_select is None  # a counter is just read
+        assert screen.pane.entries[0].method_select is None  # a counter is just read
 
 
 async def test_marking_a_reading_doubtful_saves_it_and_the_verdict_says_so(
@@ -513,7 +513,7 @@ async def test_enter_on_a_value_goes_on_past_its_method_and_doubt(
         entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
         await type_into(pilot, entry, "4.2", keys=True)
         await pilot.pause()
-        assert app.focused is screen.query_one("#q-soil_resistivity", ReadingEntry).input
+        assert app.focused is screen.pane.entry(Quantity.SOIL_RESISTIVITY).input
 
 
 async def test_a_continued_draft_shows_the_method_and_doubt_saved(

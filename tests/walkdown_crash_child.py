@@ -11,7 +11,6 @@ import sys
 from pathlib import Path
 
 from inspectkit.store import Store
-from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.walkdown import start_inspection
 from tests.test_tui_walkdown import WalkHarness
 from tests.walkdown_factories import build_walk_site
@@ -28,7 +27,7 @@ async def walk(path: Path) -> None:
         print("ready", flush=True)
         for index, stop in enumerate(screen.stops):  # type: ignore[attr-defined]
             await screen.show_stop(index)  # type: ignore[attr-defined]
-            for n, entry in enumerate(screen.query(ReadingEntry)):
+            for n, entry in enumerate(screen.pane.entries):  # type: ignore[attr-defined]
                 text = f"{index + 1}.{n}" if entry.quantity.value != "strike_count" else "8"
                 entry.input.focus()
                 entry.input.value = text

@@ -199,10 +199,10 @@ def _v3(db: sqlite_utils.Database) -> None:
     _add_columns(db, _V3_COLUMNS)
 
 
-def _add_columns(db: sqlite_utils.Database, columns_by_table: dict[str, tuple[str, ...]]) -> None:
-    """Add columns to tables, with an audit row for every existing row they change."""
+def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> None:
+    """Add columns to record tables, with an audit row for every row that gains them."""
     at = utcnow().isoformat()
-    for table, columns in columns_by_table.items():
+    for table, columns in new.items():
         before = _rows(db, table)
         for column in columns:
             db.execute(f"ALTER TABLE [{table}] ADD COLUMN {column}")
@@ -223,6 +223,37 @@ def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]
     names = [d[0] for d in cursor.description]
     rows = (dict(zip(names, values, strict=True)) for values in cursor)
     return {row["id"]: row for row in rows}
+
+
+_ENTRY_DRAFTS = """
+CREATE TABLE entry_draft (
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    field TEXT NOT NULL,
+    text TEXT NOT NULL,
+    updated_at TEXT NOT NULL,
+    PRIMARY KEY (inspection_id, component_id, field)
+);
+CREATE TABLE walkdown_place (
+    inspection_id TEXT PRIMARY KEY REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    updated_at TEXT NOT NULL
+);
+"""
+
+
+def _entry_drafts(db: sqlite_utils.Database) -> None:
+    """Text typed in a walkdown and not saved yet, and the component the inspector is on.
+
+    Neither is a record: no audit rows, never in a bundle or a report; they only let a
+    walkdown killed mid-way offer back what was typed, where it was typed.
+    """
+    db.executescript(_ENTRY_DRAFTS)
+
+
+def _retired_people_and_instruments(db: sqlite_utils.Database) -> None:
+    """Inspectors and instruments can be retired: kept for the history, left out of pickers."""
+    _add_columns(db, {"inspector": ("retired_on TEXT",), "instrument": ("retired_on TEXT",)})
 
 
 #: Columns for earthing work: a reading's traverse, an electrode's form and size.
@@ -260,5 +291,12 @@ def _earthing(db: sqlite_utils.Database) -> None:
 
 
 #: Step N (1-based) brings a database from version N-1 to N.
-MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (_v1, _v2, _v3, _earthing)
+MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
+    _v1,
+    _v2,
+    _v3,
+    _entry_drafts,
+    _retired_people_and_instruments,
+    _earthing,
+)
 SCHEMA_VERSION = len(MIGRATIONS)

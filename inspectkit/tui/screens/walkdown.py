@@ -2,16 +2,18 @@
 
 from __future__ import annotations
 
+import asyncio
+
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import Footer, Header, OptionList, Select, Static
+from textual.widgets import Header, OptionList, Select, Static
 from textual.widgets.option_list import Option
 
-from inspectkit.checklists import ChecklistError, load_checklist
+from inspectkit.earthing_values import Traverse
 from inspectkit.model import (
     Finding,
     Grade,
@@ -19,16 +21,18 @@ from inspectkit.model import (
     Instrument,
     Method,
     Quantity,
-    Severity,
     SoilCondition,
 )
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
-from inspectkit.tui.widgets.finding_form import FindingForm
+from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
-from inspectkit.tui.widgets.saving_field import SavingField
+from inspectkit.tui.widgets.steady_footer import SteadyFooter
+from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
+from inspectkit.tui.widgets.stop_pane import StopPane, StopView, photo_label
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
+from inspectkit.tui.widgets.walkdown_earthing import EARTHING_BINDINGS, WalkdownEarthing
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
@@ -38,8 +42,12 @@ from inspectkit.walkdown import (
     Stop,
     WalkdownError,
     attach_photos,
+    drafts_for,
+    drafts_told,
     finish_inspection,
+    forget_drafts,
     grade_component,
+    keep_drafts,
     missing_for_completion,
     record_reading,
     saved_entries,
@@ -55,19 +63,13 @@ INSTRUMENT_SETTING = "instrument_id"
 #: How many ungraded tags the finish question names before "and N more".
 _UNGRADED_SHOWN = 20
 
-#: A stop's state in the list: the word carries the meaning, the colour repeats it.
-_MARK_STYLES = {
-    "todo": "dim",
-    "part": "yellow",
-    "done": "bold green",
-    "WATCH": "bold yellow",
-    "ATTN": "bold yellow",
-    "FAIL": "bold white on red",
-    "DEFECT": "bold white on red",
-}
+#: How long a move waits at most for keys sent to the field being left (seconds).
+_SETTLE_TIMEOUT = 0.5
+#: How often what is typed and not saved is kept in the database (seconds).
+_DRAFT_EVERY = 0.5
 
 
-class WalkdownScreen(Screen[None]):
+class WalkdownScreen(WalkdownEarthing, Screen[None]):
     """One visit, walked component by component; nothing typed here waits for a Save key.
 
     A field saves when it is left (Tab, Enter, a click elsewhere, or moving to
@@ -144,6 +146,7 @@ class WalkdownScreen(Screen[None]):
             id="walkdown.back",
             tooltip="Save and leave the walkdown; it can be continued later",
         ),
+        *EARTHING_BINDINGS,
     ]
 
     def __init__(self, inspection_id: str) -> None:
@@ -156,6 +159,11 @@ class WalkdownScreen(Screen[None]):
         self.drafts: dict[tuple[str, str], str] = {}
         #: Method and doubt picked before a value was typed, by (component id, quantity).
         self.choices: dict[tuple[str, Quantity], tuple[Method, bool]] = {}
+        self._by_id: dict[str, Stop] = {}
+        self._done: int | None = None
+        self._place: str | None = None
+        #: What `keep_typing` last kept: the unsaved texts and the component in view.
+        self._kept: tuple[dict[tuple[str, str], str], str] = ({}, "")
 
     # ------------------------------------------------------------ accessors
 
@@ -168,12 +176,12 @@ class WalkdownScreen(Screen[None]):
         return self.stops[self.index]
 
     @property
-    def stop_list(self) -> OptionList:
-        return self.query_one("#stops", OptionList)
+    def stop_list(self) -> StopList:
+        return self._stop_list
 
     @property
-    def detail(self) -> VerticalScroll:
-        return self.query_one("#detail", VerticalScroll)
+    def pane(self) -> StopPane:
+        return self._pane
 
     @property
     def inspection(self) -> Inspection:
@@ -188,28 +196,40 @@ class WalkdownScreen(Screen[None]):
         self.context = site_context(self.store, inspection.site_id)
         site = self.context.site
         self.stops = walk_for(self.store, self.inspection_id)
+        self._by_id = {s.component.id: s for s in self.stops}
         self.saved = saved_entries(self.store, self.inspection_id)
+        kept = drafts_for(self.store, self.inspection_id)
+        self.drafts = {key: text for key, text in kept.texts.items() if key[0] in self._by_id}
+        self._place = kept.place
         self.title = site.name
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
         with Horizontal(id="bar"):
-            yield Static(id="where")
-            yield Select(
+            self._where = Static(id="where")
+            yield self._where
+            yield PickList(
                 self._instrument_options(),
                 prompt="instrument…",
                 value=self._instrument_in_use() or Select.NULL,
                 id="instrument",
             )
-            yield Select(
+            yield PickList(
                 [(f"ground {s.value}", s.value) for s in SoilCondition],
                 prompt="ground…",
                 value=inspection.soil.value if inspection.soil else Select.NULL,
                 id="soil",
             )
         with Horizontal(id="body"):
-            yield OptionList(*self._options(), id="stops")
-            yield VerticalScroll(id="detail")
-        yield Footer()
+            self._stop_list = StopList(*self._options(), id="stops")
+            self._stop_list.on_go = self.move_now
+            yield self._stop_list
+            self._pane = StopPane(self._save_reading, self._save_finding, self._save_photo,
+                                  id="detail")  # fmt: skip
+            if self.stops:
+                yield self._pane
+            else:
+                yield Static("This site has no components in service to inspect.", id="detail")
+        yield SteadyFooter()
 
     def _instrument_options(self) -> list[tuple[str, str]]:
         today = self.app.today if hasattr(self.app, "today") else None
@@ -231,11 +251,42 @@ class WalkdownScreen(Screen[None]):
         # Components may have been edited on another screen meanwhile.
         self.context = site_context(self.store, self.context.site.id)
 
-    async def on_mount(self) -> None:
+    def on_mount(self) -> None:
         if not self.stops:
-            self.detail.mount(Static("This site has no components in service to inspect."))
             return
-        await self.show_stop(0)
+        where = next((i for i, s in enumerate(self.stops) if s.component.id == self._place), 0)
+        self.move_now(where)
+        self._kept = self._unsaved()
+        if self.drafts:
+            tags = {cid: stop.component.tag for cid, stop in self._by_id.items()}
+            self.notify(
+                drafts_told(self.drafts, tags) + ". Save them with Enter, or clear the field.",
+                title="Typed before the walkdown closed",
+                severity="warning",
+                timeout=30,
+            )
+        self.set_interval(_DRAFT_EVERY, self.keep_typing)
+
+    # ---------------------------------------------------- what is not saved
+
+    def _unsaved(self) -> tuple[dict[tuple[str, str], str], str]:
+        """Everything typed and not saved (on every component), and the component in view."""
+        pane = self.pane
+        cid = pane.component_id
+        texts = {key: text for key, text in self.drafts.items() if key[0] != cid}
+        for field in pane.fields():
+            if field.dirty and field.value.strip():
+                texts[(cid, field.draft_key)] = field.value
+        return texts, cid
+
+    def keep_typing(self) -> None:
+        """Keep in the database what is typed and not saved, if it changed since last time."""
+        if not self.stops or not self.pane.component_id:
+            return
+        unsaved = self._unsaved()
+        if unsaved != self._kept:
+            keep_drafts(self.store, self.inspection_id, *unsaved)
+            self._kept = unsaved
 
     # ---------------------------------------------------------- the stop list
 
@@ -243,44 +294,14 @@ class WalkdownScreen(Screen[None]):
         return [Option(self._prompt(i), id=f"stop-{i}") for i in range(len(self.stops))]
 
     def _prompt(self, index: int) -> Text:
-        stop = self.stops[index]
-        component = stop.component
-        mark = self._mark(stop)
-        text = Text("  " * stop.depth)
-        text.append(component.tag.ljust(12 - 2 * stop.depth), style="bold")
-        text.append(f"{mark:<6}", style=_MARK_STYLES[mark])
-        if self.has_class("-wide"):
-            text.append(f" {component.kind.label}", style="dim")
-        return text
-
-    def _mark(self, stop: Stop) -> str:
-        """One word for how far a component is: todo, part, done, or the worst found."""
-        cid = stop.component.id
-        outcomes = [o for (c, _), o in self.saved.readings.items() if c == cid]
-        finding = self.saved.findings.get(cid)
-        if finding is not None and finding.grade is Grade.DEFECT:
-            return "DEFECT"
-        worst = max((o.severity for o in outcomes), key=lambda s: s.rank, default=Severity.OK)
-        if worst.rank >= Severity.FAIL.rank:
-            return "FAIL"
-        if finding is not None and finding.grade is Grade.NEEDS_ATTENTION:
-            return "ATTN"
-        if worst is Severity.WATCH:
-            return "WATCH"
-        if self._complete(stop):
-            return "done"
-        return "part" if finding is not None or outcomes else "todo"
+        return prompt(self.stops[index], self.saved, wide=self.has_class("-wide"))
 
     def _complete(self, stop: Stop) -> bool:
-        """Graded, and every reading but the optional soil resistivity taken."""
-        cid = stop.component.id
-        required = {q for q in stop.quantities if q is not Quantity.SOIL_RESISTIVITY}
-        taken = {q for (c, q) in self.saved.readings if c == cid}
-        return cid in self.saved.findings and required <= taken
+        return complete(stop, self.saved)
 
     def _refresh_mark(self) -> None:
         self.stop_list.replace_option_prompt_at_index(self.index, self._prompt(self.index))
-        self._show_where()
+        self._show_where(count=True)
 
     def on_resize(self) -> None:
         if self.stops:
@@ -288,123 +309,115 @@ class WalkdownScreen(Screen[None]):
                 self.stop_list.replace_option_prompt_at_index(index, self._prompt(index))
 
     @on(OptionList.OptionSelected, "#stops")
-    async def _picked(self, event: OptionList.OptionSelected) -> None:
-        await self.show_stop(event.option_index)
+    def _picked(self, event: OptionList.OptionSelected) -> None:
+        if event.option_index != self.index:
+            self.move_now(event.option_index)
 
     # ------------------------------------------------------------- one stop
 
     async def show_stop(self, index: int, *, focus_entry: bool = True) -> None:
-        """Leave the current component (saving what can be saved) and show another."""
-        if self.detail.children:
+        """Leave the current component (saving what can be saved) and show another.
+
+        Keys already handed to the field being left are let in first, so they are
+        saved on the component they were typed for; keys arriving meanwhile wait in
+        the app's queue and reach the next component's first field.
+        """
+        await self._settle()
+        self.move_now(index, focus_entry=focus_entry)
+
+    async def _settle(self) -> None:
+        """Wait until the widget in focus has handled every key already sent to it."""
+        loop = asyncio.get_running_loop()
+        for _ in range(8):
+            widget = self.focused
+            if widget is None or not getattr(widget, "keys_waiting", 0):
+                return
+            handled = loop.create_future()
+            widget.call_later(handled.set_result, None)
+            try:
+                await asyncio.wait_for(handled, _SETTLE_TIMEOUT)
+            except TimeoutError:
+                return
+            if self.focused is widget:
+                return
+
+    def move_now(self, index: int, *, focus_entry: bool = True) -> None:
+        """Leave the current component and show another, in one step with nothing awaited."""
+        if not self.stops:
+            return
+        if self.pane.component_id:
             self.keep_unsaved()
         self.index = max(0, min(index, len(self.stops) - 1))
-        stop = self.stop
         self.stop_list.highlighted = self.index
-        await self.detail.remove_children()
-        await self.detail.mount_all(self._stop_widgets(stop))
-        for (cid, field_id), text in self.drafts.items():
-            if cid == stop.component.id:
-                field = self.detail.query_one(f"#{field_id}", SavingField)
-                field.input.value = text
+        self.pane.show(self._view(self.stop))
         self._show_where()
-        self.detail.scroll_home(animate=False)
         if focus_entry:
-            entries = self.detail.query(ReadingEntry)
-            target = entries.first().input if entries else self.query_one("#grade")
-            target.focus()
+            self.set_focus(self.pane.first_field(), scroll_visible=False)
 
-    def _stop_widgets(self, stop: Stop) -> list[Static | Vertical | SavingField]:
-        component = stop.component
-        heading = Text(f"{component.tag}", style="bold reverse")
-        heading.append(f"  {component.kind.label}", style="bold")
-        if component.location:
-            heading.append(f", {component.location}")
-        parent = next(
-            (s.component for s in self.stops if s.component.id == component.parent_id), None
-        )
-        if parent is not None:
-            heading.append(f"  (on {parent.tag})", style="dim")
-        widgets: list[Static | Vertical | SavingField] = [Static(heading, id="heading")]
-        entries = [
-            ReadingEntry(
-                quantity,
-                lambda text, method, doubtful, q=quantity: self._save_reading(
-                    q, text, method, doubtful
-                ),
-                outcome=self.saved.readings.get((component.id, quantity)),
-                choices=self.choices.get((component.id, quantity)),
-                id=f"q-{quantity.value}",
-            )
-            for quantity in stop.quantities
-        ]
-        finding = FindingForm(self._save_finding, self.saved.findings.get(component.id))
-        photo = SavingField(
-            f"photo: a file, or a folder of new photos matched by time ({self._photo_count()})",
-            self._save_photo,
-            placeholder="e.g. ~/card/DCIM/IMG_0412.jpg or ~/card/DCIM",
-            id="photo",
-        )
-        work = Vertical(*entries, finding, photo, id="work")
-        widgets.append(Horizontal(Static(self._checklist(stop), id="checklist"), work, id="split"))
-        return widgets
+    def _view(self, stop: Stop) -> StopView:
+        cid = stop.component.id
+        parent = self._by_id.get(stop.component.parent_id or "")
+        return StopView(
+            stop=stop,
+            parent_tag=parent.component.tag if parent else None,
+            outcomes={q: o for q in stop.quantities
+                      if (o := self.saved.readings.get((cid, q))) is not None},
+            choices={q: c for q in stop.quantities if (c := self.choices.get((cid, q)))},
+            finding=self.saved.findings.get(cid),
+            photos=self.saved.photos.get(cid, 0),
+            typed={field: text for (c, field), text in self.drafts.items() if c == cid},
+        )  # fmt: skip
 
-    def _checklist(self, stop: Stop) -> Text:
-        try:
-            items = load_checklist(stop.component.kind)
-        except ChecklistError as exc:
-            return Text(str(exc), style="bold red")
-        text = Text("Check:\n", style="bold")
-        for item in items:
-            text.append(f" • {item}\n")
-        return text
-
-    def _photo_count(self) -> str:
-        count = self.saved.photos.get(self.stop.component.id, 0)
-        return "none yet" if count == 0 else f"{count} attached"
-
-    def _show_where(self) -> None:
-        done = sum(1 for s in self.stops if self._complete(s))
-        self.query_one("#where", Static).update(
+    def _show_where(self, *, count: bool = False) -> None:
+        """The position on the walk, and how many components are done (counted after a save)."""
+        if count or self._done is None:
+            self._done = sum(1 for s in self.stops if self._complete(s))
+        self._where.update(
             Text.assemble(
                 (f" {self.index + 1} of {len(self.stops)} ", "bold reverse"),
-                f"  {done} done",
+                f"  {self._done} done",
             )
         )
 
     def keep_unsaved(self) -> None:
         """Save every changed field of the stop in view; keep refused text as typed."""
-        cid = self.stop.component.id
+        pane = self.pane
+        cid = pane.component_id
         refused = 0
-        for field in self.detail.query(SavingField):
-            key = (cid, field.id or "")
+        for field in pane.fields():
+            key = (cid, field.draft_key)
             if field.dirty and not field.commit():
                 self.drafts[key] = field.value
                 refused += 1
             else:
                 self.drafts.pop(key, None)
-        for entry in self.detail.query(ReadingEntry):
+        for entry in pane.entries:
             key = (cid, entry.quantity)
             if (choices := entry.pending_choices) is not None:
                 self.choices[key] = choices
             else:
                 self.choices.pop(key, None)
         if refused:
-            self.notify(
-                f"{self.stop.component.tag}: {refused} field(s) not saved, kept as typed",
-                severity="warning",
-            )
+            tag = self._by_id[cid].component.tag
+            self.notify(f"{tag}: {refused} field(s) not saved, kept as typed", severity="warning")
 
     # -------------------------------------------------------------- saving
 
     def _save_reading(
-        self, quantity: Quantity, text: str, method: Method, doubtful: bool
+        self,
+        component_id: str,
+        quantity: Quantity,
+        text: str,
+        method: Method,
+        doubtful: bool,
+        traverse: Traverse | None = None,
     ) -> ReadingOutcome:
         soil = self.query_one("#soil", Select).value
         instrument = self.query_one("#instrument", Select).value
         outcome = record_reading(
             self.store,
             self.inspection_id,
-            self.stop.component.id,
+            component_id,
             quantity,
             text,
             method=method,
@@ -412,49 +425,50 @@ class WalkdownScreen(Screen[None]):
             soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
             unreliable=doubtful,
             context=self.context,
+            traverse=traverse,
         )
-        self.saved.readings[(self.stop.component.id, quantity)] = outcome
+        self.saved.readings[(component_id, quantity)] = outcome
         self._refresh_mark()
         return outcome
 
-    def _save_finding(self, grade: Grade, text: str, remedial: str, due: str) -> Finding:
+    def _save_finding(
+        self, component_id: str, grade: Grade, text: str, remedial: str, due: str
+    ) -> Finding:
         finding = grade_component(
-            self.store,
-            self.inspection_id,
-            self.stop.component.id,
-            grade,
-            text,
-            remedial,
+            self.store, self.inspection_id, component_id, grade, text, remedial,
             due.strip() or None,
-        )
-        self.saved.findings[self.stop.component.id] = finding
+        )  # fmt: skip
+        self.saved.findings[component_id] = finding
         self._refresh_mark()
         return finding
 
-    def _save_photo(self, text: str) -> Text:
+    def _save_photo(self, here: str, text: str) -> Text:
         if not text.strip():
             return Text("")
-        here = self.stop.component.id
         matches = attach_photos(self.store, self.inspection_id, text.strip(), here)
         counts = self.saved.photos
         for match in matches:
             counts[match.component_id] = counts.get(match.component_id, 0) + 1
+        tag = self._by_id[here].component.tag
         if len(matches) == 1 and matches[0].component_id == here:
             status = f"✓ saved photo {matches[0].photo.original_name}"
         else:
             matched = sum(1 for m in matches if m.component_id == here)
-            status = (
-                f"✓ saved {len(matches)} new photo(s), {matched} matched by time to "
-                f"{self.stop.component.tag}"
-            )
-        self.call_after_refresh(self._clear_photo_field)
-        return Text(f"{status} ({self._photo_count()} here)", style="bold green")
+            status = f"✓ saved {len(matches)} new photo(s), {matched} matched by time to {tag}"
+        count = counts.get(here, 0)
+        self.call_after_refresh(self._photo_saved, here, count)
+        return Text(f"{status} ({count} attached here)", style="bold green")
 
-    def _clear_photo_field(self) -> None:
-        """Empty the path once attached, ready for the next photo; the status stays."""
-        for field in self.detail.query("#photo").results(SavingField):
-            field.saved_value = ""
-            field.input.value = ""
+    def _photo_saved(self, here: str, count: int) -> None:
+        """Empty the path once attached, ready for the next; the label and status stay in view."""
+        pane = self.pane
+        if pane.component_id != here:
+            return
+        field = pane.photo
+        field.saved_value = ""
+        field.input.value = ""
+        field.set_label(photo_label(count))
+        field.query_one(".status").scroll_visible(animate=False)
 
     @on(Select.Changed, "#instrument")
     def _instrument_changed(self, event: Select.Changed) -> None:
@@ -505,6 +519,7 @@ class WalkdownScreen(Screen[None]):
             except WalkdownError as exc:
                 self.notify(str(exc), severity="error")
                 return
+            forget_drafts(self.store, self.inspection_id)
             self.notify("Inspection marked complete")
             self.dismiss()
 
@@ -560,6 +575,7 @@ class WalkdownScreen(Screen[None]):
     def action_leave(self) -> None:
         if self.stops:
             self.keep_unsaved()
+            self.keep_typing()
         self.dismiss()
 
 

@@ -7,9 +7,10 @@ from collections.abc import Callable
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import Vertical
-from textual.widgets import Label, RadioButton, RadioSet, Static
+from textual.widgets import Label, Static
 
 from inspectkit.model import Finding, Grade
+from inspectkit.tui.widgets.held_keys import GradeButton, GradeButtons
 from inspectkit.tui.widgets.saving_field import SAVED, SavingField
 from inspectkit.walkdown import WalkdownError
 
@@ -36,14 +37,18 @@ _FIELDS = (
 #: Which of the form's fields a refusal from the record's model is about.
 _FIELD_OF = {"text": "text", "remedial_action": "remedial", "due_by": "due"}
 
-#: Saves grade, text, remedial action and due date together; raises WalkdownError.
-FindingSaver = Callable[[Grade, str, str, str], Finding]
+#: Saves, for a component, grade, text, remedial action and due date together;
+#: raises WalkdownError.
+FindingSaver = Callable[[str, Grade, str, str, str], Finding]
 
 
 class FindingForm(Vertical):
     """The grade buttons and the finding's words, saved as one finding whenever one is left.
 
+    The walkdown `load`s each component's finding into the same form as it moves.
+
     Attributes:
+        component_id: The component the form shows and saves the finding of.
         finding: The finding as last saved, or None before the component is graded.
     """
 
@@ -56,42 +61,55 @@ class FindingForm(Vertical):
     FindingForm.-sound > .only-not-sound { display: none; }
     """
 
-    def __init__(self, save: FindingSaver, finding: Finding | None) -> None:
+    def __init__(self, save: FindingSaver) -> None:
         super().__init__(id="finding")
         self._save_finding = save
-        self.finding = finding
+        self.component_id = ""
+        self.finding: Finding | None = None
+        self.chosen: Grade | None = None
+        """The grade whose button is on, saved or not."""
+        self._grade_shown = self._grade_text()
+        self._fields: dict[str, SavingField] = {}
 
     def compose(self) -> ComposeResult:
-        chosen = self.finding.grade if self.finding else None
         yield Label("grade")
-        with RadioSet(id="grade"):
-            for grade, word in GRADE_WORDS.items():
-                yield RadioButton(word, value=grade is chosen, id=f"grade-{grade.value}")
+        buttons = GradeButtons(
+            *(GradeButton(word, id=f"grade-{grade.value}") for grade, word in GRADE_WORDS.items()),
+            id="grade",
+        )
+        buttons.on_pick = self._picked
+        yield buttons
         yield Static(self._grade_text(), id="grade-status")
-        finding = self.finding
-        saved = {
-            "text": finding.text if finding else "",
-            "remedial": finding.remedial_action if finding else "",
-            "due": finding.due_by.isoformat() if finding and finding.due_by else "",
-        }
         for key, label, example in _FIELDS:
             field = SavingField(
                 label,
                 lambda t, key=key: self._save(key, t),
-                value=saved[key],
                 placeholder=example,
                 id=f"finding-{key}",
             )
             yield field.set_class(key != "text", "only-not-sound")
 
-    def on_mount(self) -> None:
+    def load(self, component_id: str, finding: Finding | None, typed: dict[str, str]) -> None:
+        """Show one component's finding (and words typed but not saved) in place of the last."""
+        self.component_id = component_id
+        self.finding = finding
+        self.chosen = finding.grade if finding else None
+        buttons = self.query_one(GradeButtons)
+        pressed = _GRADES.index(self.chosen) if self.chosen else None
+        buttons.show_pressed(pressed)
+        self._show_grade()
+        saved = {
+            "text": finding.text if finding else "",
+            "remedial": finding.remedial_action if finding else "",
+            "due": finding.due_by.isoformat() if finding and finding.due_by else "",
+        }
+        for key, _, _ in _FIELDS:
+            field = self._field(key)
+            field.load(saved[key], typed=typed.get(key))
         self.set_class(self.chosen in (None, Grade.SOUND), "-sound")
 
-    @property
-    def chosen(self) -> Grade | None:
-        """The grade whose button is on, saved or not."""
-        index = self.query_one(RadioSet).pressed_index
-        return _GRADES[index] if index >= 0 else None
+    def fields(self) -> list[SavingField]:
+        return [self._field(key) for key, _, _ in _FIELDS]
 
     def _grade_text(self) -> Text:
         if self.finding is None:
@@ -102,7 +120,9 @@ class FindingForm(Vertical):
         return text.append_text(SAVED)
 
     def _field(self, key: str) -> SavingField:
-        return self.query_one(f"#finding-{key}", SavingField)
+        if key not in self._fields:
+            self._fields[key] = self.query_one(f"#finding-{key}", SavingField)
+        return self._fields[key]
 
     def _save(self, changed: str, text: str) -> Text:
         """Save the finding with `text` in the field `changed`; the status for that field."""
@@ -113,7 +133,7 @@ class FindingForm(Vertical):
         values[changed] = text
         try:
             self.finding = self._save_finding(
-                grade, values["text"], values["remedial"], values["due"]
+                self.component_id, grade, values["text"], values["remedial"], values["due"]
             )
         except WalkdownError as exc:
             at_fault = _FIELD_OF.get(exc.field)
@@ -137,12 +157,16 @@ class FindingForm(Vertical):
 
     def _show_grade(self) -> None:
         status = self.query_one("#grade-status", Static)
-        status.remove_class("-error")
-        status.update(self._grade_text())
+        shown = self._grade_text()
+        if status.has_class("-error") or shown != self._grade_shown:
+            status.remove_class("-error")
+            status.update(shown)
+            self._grade_shown = shown
 
-    def on_radio_set_changed(self, event: RadioSet.Changed) -> None:
-        event.stop()
-        grade = _GRADES[event.index]
+    def _picked(self, index: int) -> None:
+        """A grade was chosen (key or click): save it with the words, as it happens."""
+        grade = _GRADES[index]
+        self.chosen = grade
         self.set_class(grade is Grade.SOUND, "-sound")
         if self.finding is not None and self.finding.grade is grade:
             return
@@ -154,4 +178,3 @@ class FindingForm(Vertical):
             status.update(
                 Text(f"✗ {GRADE_WORDS[grade]} not saved: {exc}\n  type what was found below")
             )
-            return

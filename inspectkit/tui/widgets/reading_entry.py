@@ -3,20 +3,23 @@
 from __future__ import annotations
 
 from collections.abc import Callable
+from functools import cache
 
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal
-from textual.widgets import Checkbox, Input, Label, Select, Static
+from textual.widgets import Checkbox, Label, Select, Static
 
 from inspectkit.model import METHODS_FOR, JointState, Method, Quantity, Severity
+from inspectkit.tui.widgets.held_keys import PickList, ShownCheckbox
 from inspectkit.tui.widgets.saving_field import SAVED, SavingField
 from inspectkit.units import format_value
 from inspectkit.walkdown import DEFAULT_METHOD, JOINT_FOR, ReadingOutcome, WalkdownError
 
-#: Saves the text typed with the method chosen and whether it is doubtful, and judges it.
-Recorder = Callable[[str, Method, bool], ReadingOutcome]
+#: Saves, for a component and quantity, the text typed with the method chosen and whether
+#: it is doubtful, and judges it.
+Recorder = Callable[[str, Quantity, str, Method, bool], ReadingOutcome]
 
 #: Short names for the method pick list, narrow enough to sit beside the value at 80 columns.
 METHOD_NAMES: dict[Method, str] = {
@@ -84,18 +87,24 @@ def format_unit(quantity: Quantity) -> str:
     return "count" if quantity is Quantity.STRIKE_COUNT else quantity.unit
 
 
+@cache
+def method_options(quantity: Quantity) -> list[tuple[str, str]]:
+    """The pick list's choices for a quantity's methods, in the order of `Method`."""
+    return [(METHOD_NAMES[m], m.value) for m in Method if m in METHODS_FOR[quantity]]
+
+
 class ReadingEntry(SavingField):
-    """One quantity of the component in view: type what the instrument shows, then leave.
+    """One reading of the component in view: type what the instrument shows, then leave.
 
     Beside the value: the measuring method, where the quantity allows more than one,
     and a box to mark the reading doubtful. Changing either saves at once, with the
     value already saved, and the verdict says so; Enter on the value skips them.
-
-    Args:
-        choices: Method and doubt picked earlier for a value not yet typed.
+    The walkdown keeps a few entries for the whole walk and `load`s each component's
+    readings into them, so an entry always saves on the component and quantity it shows.
 
     Attributes:
-        quantity: What this entry measures.
+        quantity: What this entry measures now.
+        component_id: The component whose reading the entry shows and saves.
         outcome: The verdict on what was last saved, or None before the first save.
         method: How the reading is (or will be) taken.
         doubtful: Whether the inspector doubts it (`Reading.unreliable`).
@@ -111,64 +120,123 @@ class ReadingEntry(SavingField):
     ReadingEntry.-error > .reading-row > Input { border: tall $error; }
     """
 
-    def __init__(
-        self,
-        quantity: Quantity,
-        record: Recorder,
-        *,
-        outcome: ReadingOutcome | None = None,
-        choices: tuple[Method, bool] | None = None,
-        id: str | None = None,
-    ) -> None:
+    def __init__(self, quantity: Quantity, record: Recorder, *, id: str | None = None) -> None:
         self.quantity = quantity
-        self.outcome = outcome
+        self.component_id = ""
+        self.outcome: ReadingOutcome | None = None
         self._record = record
-        self.methods = [m for m in Method if m in METHODS_FOR[quantity]]
-        self.method, self.doubtful = choices or (DEFAULT_METHOD[quantity], False)
-        typed = ""
-        if outcome is not None:
-            reading = outcome.reading
-            typed = format_value(reading.value, quantity, reading.over_range)
-            self.method, self.doubtful = reading.method, reading.unreliable
+        self.method, self.doubtful = DEFAULT_METHOD[quantity], False
+        self._box: Checkbox | None = None
+        self._select: Select[str] | None = None
         super().__init__(
             entry_label(quantity),
             self._save,
-            value=typed,
-            saved_status=outcome_text(outcome) if outcome else KEPT_FOR_VALUE if choices else None,
             placeholder=PLACEHOLDERS[quantity],
             allow_blank=False,
             id=id,
         )
 
+    @property
+    def methods(self) -> list[Method]:
+        """The methods the quantity can be measured by."""
+        return [m for m in Method if m in METHODS_FOR[self.quantity]]
+
+    @property
+    def draft_key(self) -> str:
+        return f"q-{self.quantity.value}"
+
     def compose(self) -> ComposeResult:
         yield Label(self.label)
         with Horizontal(classes="reading-row"):
-            yield Input(self._initial, placeholder=self._placeholder)
-            if len(self.methods) > 1:
-                yield Select(
-                    [(METHOD_NAMES[m], m.value) for m in self.methods],
-                    value=self.method.value,
-                    allow_blank=False,
-                    classes="method",
-                    tooltip="How the reading was taken",
-                )
-            yield Checkbox(
+            yield self.make_input()
+            select = PickList(
+                method_options(self.quantity),
+                value=self.method.value,
+                allow_blank=False,
+                classes="method",
+                tooltip="How the reading was taken (Enter to choose)",
+            )
+            select.display = len(self.methods) > 1
+            yield select
+            box = ShownCheckbox(
                 "doubtful",
                 self.doubtful,
                 classes="doubtful",
                 tooltip="Keep the reading, but not as a pass: re-test next visit",
             )
-        yield Static(self._initial_status or "", classes="status")
+            box.on_toggle = self._doubt_changed
+            yield box
+        yield Static("", classes="status")
+
+    def load(  # type: ignore[override]
+        self,
+        component_id: str,
+        quantity: Quantity,
+        outcome: ReadingOutcome | None,
+        choices: tuple[Method, bool] | None = None,
+        typed: str | None = None,
+    ) -> None:
+        """Show one component's reading of a quantity, in place of the last one shown.
+
+        Args:
+            outcome: The saved reading judged, or None when there is none yet.
+            choices: Method and doubt picked earlier for a value not yet typed.
+            typed: Text typed earlier and not saved (kept as typed).
+        """
+        if quantity is not self.quantity:
+            self._measure(quantity)
+        self.component_id = component_id
+        self.outcome = outcome
+        self.method, self.doubtful = choices or (DEFAULT_METHOD[quantity], False)
+        saved = ""
+        if outcome is not None:
+            reading = outcome.reading
+            saved = format_value(reading.value, quantity, reading.over_range)
+            self.method, self.doubtful = reading.method, reading.unreliable
+        self._show_choices()
+        status = outcome_text(outcome) if outcome else KEPT_FOR_VALUE if choices else None
+        super().load(saved, status, typed=typed)
+
+    def _measure(self, quantity: Quantity) -> None:
+        """Make the entry one for another quantity: label, example and methods."""
+        before = method_options(self.quantity)
+        self.quantity = quantity
+        self.set_label(entry_label(quantity))
+        self.input.placeholder = PLACEHOLDERS[quantity]
+        select = self._method_list()
+        options = method_options(quantity)
+        if options != before:
+            with select.prevent(Select.Changed):
+                select.set_options(options)
+                select.value = DEFAULT_METHOD[quantity].value
+        if select.display != (len(options) > 1):
+            select.display = len(options) > 1
+
+    def _show_choices(self) -> None:
+        select = self.method_select
+        if select is not None and select.value != self.method.value:
+            with select.prevent(Select.Changed):
+                select.value = self.method.value
+        box = self.doubt_box
+        if box.value != self.doubtful:
+            with box.prevent(Checkbox.Changed):
+                box.value = self.doubtful
+
+    def _method_list(self) -> Select[str]:
+        if self._select is None:
+            self._select = self.query_one(".method", Select)
+        return self._select
 
     @property
     def method_select(self) -> Select[str] | None:
         """The method pick list, or None where the quantity has only one method."""
-        found = self.query(".method").results(Select)
-        return next(iter(found), None)
+        return self._method_list() if len(self.methods) > 1 else None
 
     @property
     def doubt_box(self) -> Checkbox:
-        return self.query_one(".doubtful", Checkbox)
+        if self._box is None:
+            self._box = self.query_one(".doubtful", Checkbox)
+        return self._box
 
     @property
     def pending_choices(self) -> tuple[Method, bool] | None:
@@ -182,23 +250,17 @@ class ReadingEntry(SavingField):
 
     def withdrawn(self) -> None:
         """The saved reading was taken back: the field is empty, the choices the usual."""
-        self.outcome = None
-        self.saved_value = ""
-        self.input.value = ""
-        self.method, self.doubtful = DEFAULT_METHOD[self.quantity], False
-        if (select := self.method_select) is not None:
-            select.value = self.method.value
-        self.doubt_box.value = False
+        self.load(self.component_id, self.quantity, None)
         self.show_status(Text("withdrawn: nothing recorded", style="dim"))
 
     def _save(self, text: str) -> Text:
-        self.outcome = self._record(text, self.method, self.doubtful)
+        self.outcome = self._record(
+            self.component_id, self.quantity, text, self.method, self.doubtful
+        )
         return outcome_text(self.outcome)
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
+    def submit(self) -> None:
         """Enter saves and goes on to the next entry, past this one's method and doubt."""
-        event.stop()
-        event.prevent_default()
         if self.commit():
             self.screen.set_focus(self.doubt_box, scroll_visible=False)
             self.screen.focus_next()
@@ -208,15 +270,22 @@ class ReadingEntry(SavingField):
         event.stop()
         if event.value is Select.NULL or event.value == self.method.value:
             return
+        if event.select.value != event.value:
+            return  # an old choice, made before this entry showed another component
         self.method = Method(str(event.value))
         self.save_choices()
 
     @on(Checkbox.Changed, ".doubtful")
-    def _doubt_changed(self, event: Checkbox.Changed) -> None:
+    def _doubt_heard(self, event: Checkbox.Changed) -> None:
+        """A change made by the program; a key or a click was handled as it happened."""
         event.stop()
-        if event.value == self.doubtful:
+        if event.value == event.checkbox.value:  # not an old change, before a `load`
+            self._doubt_changed(event.value)
+
+    def _doubt_changed(self, value: bool) -> None:
+        if value == self.doubtful:
             return
-        self.doubtful = event.value
+        self.doubtful = value
         self.save_choices()
 
     def save_choices(self) -> None:

@@ -10,6 +10,7 @@ from textual.containers import Vertical
 from textual.message import Message
 from textual.widgets import Input, Label, Static
 
+from inspectkit.tui.widgets.held_keys import FieldInput
 from inspectkit.walkdown import WalkdownError
 
 #: Takes the text as typed, saves it, and returns what to show under the field;
@@ -25,7 +26,9 @@ class SavingField(Vertical):
 
     The status line under the input shows a problem in words ("expected …"), or
     what was saved, and only after the save committed. Text that could not be saved
-    stays as typed so it can be corrected.
+    stays as typed so it can be corrected. Enter and Tab save and move on as each key
+    arrives (see `held_keys`), and `load` shows other content in the same widgets, so
+    a form can follow the inspector from one component to the next without rebuilding.
     """
 
     DEFAULT_CSS = """
@@ -71,15 +74,63 @@ class SavingField(Vertical):
         self._initial = value
         self._initial_status = saved_status
         self._placeholder = placeholder
+        self._input: Input | None = None
+        self._status: Static | None = None
+        self._shown: Text | str = saved_status or ""
 
     def compose(self) -> ComposeResult:
         yield Label(self.label)
-        yield Input(self._initial, placeholder=self._placeholder)
+        yield self.make_input()
         yield Static(self._initial_status or "", classes="status")
+
+    def make_input(self) -> FieldInput:
+        """The field's input, wired to save on Enter and Tab the moment they arrive."""
+        field = FieldInput(self._initial, placeholder=self._placeholder)
+        field.on_enter = self.submit
+        field.on_tab = self.tab
+        return field
+
+    @property
+    def draft_key(self) -> str:
+        """What text typed here and not saved is kept under, for the component in view."""
+        return self.id or ""
 
     @property
     def input(self) -> Input:
-        return self.query_one(Input)
+        if self._input is None:
+            self._input = self.query_one(Input)
+        return self._input
+
+    @property
+    def status(self) -> Static:
+        if self._status is None:
+            self._status = self.query_one(".status", Static)
+        return self._status
+
+    def _show(self, status: Text | str) -> None:
+        """Put `status` under the field, unless it is there already (no repaint then)."""
+        if status != self._shown:
+            self._shown = status
+            self.status.update(status)
+
+    def load(
+        self, value: str, status: Text | str | None = None, *, typed: str | None = None
+    ) -> None:
+        """Show another saved value (and text typed but not saved) in the same widgets."""
+        self.saved_value = value
+        self.remove_class("-error")
+        field = self.input
+        text = value if typed is None else typed
+        if field.value != text:
+            with field.prevent(Input.Changed):
+                field.value = text
+            field.cursor_position = len(text)
+        self._show(UNSAVED if typed is not None and typed != value else status or "")
+
+    def set_label(self, label: str) -> None:
+        if label != self.label:
+            self.label = label
+            self.query_one(Label).update(label)
 
     @property
     def value(self) -> str:
@@ -92,11 +143,11 @@ class SavingField(Vertical):
 
     def show_status(self, status: Text | str) -> None:
         self.remove_class("-error")
-        self.query_one(".status", Static).update(status)
+        self._show(status)
 
     def show_error(self, message: str) -> None:
         self.add_class("-error")
-        self.query_one(".status", Static).update(Text(f"✗ not saved: {message}"))
+        self._show(Text(f"✗ not saved: {message}"))
 
     def commit(self) -> bool:
         """Save the text if it changed; False when it was refused (nothing saved)."""
@@ -123,12 +174,24 @@ class SavingField(Vertical):
         event.stop()
         if self.dirty:
             self.remove_class("-error")
-            self.query_one(".status", Static).update(UNSAVED)
+            self._show(UNSAVED)
+
+    def submit(self) -> None:
+        """Enter: save, and on success go to the next field."""
+        if self.commit():
+            self.screen.focus_next()
+
+    def tab(self, step: int) -> None:
+        """Tab or shift+Tab: save what can be saved, and move on either way."""
+        self.commit()
+        if step > 0:
+            self.screen.focus_next()
+        else:
+            self.screen.focus_previous()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
-        if self.commit():
-            self.screen.focus_next()
+        self.submit()
 
     def on_input_blurred(self, event: Input.Blurred) -> None:
         event.stop()

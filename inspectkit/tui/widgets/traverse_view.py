@@ -2,12 +2,19 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 from rich.text import Text
 from textual.widgets import Static
 
 from inspectkit.earthing_values import SeriesError, Traverse, read_traverse
 from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import judge_traverse
+from inspectkit.model import Quantity
+from inspectkit.walkdown import ReadingOutcome
+
+#: Earth readings a traverse can give, in the order the walkdown asks for them.
+EARTH = (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED)
 
 _BLOCKS = "▁▂▃▄▅▆▇█"
 
@@ -42,24 +49,41 @@ def traverse_line(traverse: Traverse, tolerance: float) -> Text:
 
 
 class TraverseView(Static):
-    """The traverse of the reading in hand, or nothing when it was a single typed value."""
+    """The traverse of the earth reading in view, or nothing for a single typed value.
 
-    DEFAULT_CSS = """
-    TraverseView { height: auto; padding: 0 1; }
+    Only the curve and its figures: the reading's entry above it says the
+    engine's verdict (on the plateau, or where to move the current probe).
     """
 
-    def show(self, stored: str | None, tolerance: float = 0.05) -> None:
-        """Draw a reading's stored traverse (`Reading.traverse`); None clears the view."""
-        if stored is None:
-            self.update("")
+    DEFAULT_CSS = """
+    TraverseView { height: auto; padding: 0 1; display: none; }
+    """
+
+    #: The reading drawn (id and stored traverse), so a move to a part without one is free.
+    _drawn: tuple[str, str] | None = None
+
+    def show_outcomes(self, outcomes: Mapping[Quantity, ReadingOutcome]) -> None:
+        """Draw the first earth reading's traverse among a component's saved readings."""
+        reading = next(
+            (o.reading for q in EARTH if (o := outcomes.get(q)) and o.reading.traverse), None
+        )
+        key = None if reading is None else (reading.id, reading.traverse or "")
+        if key == self._drawn:
+            return
+        self._drawn = key
+        if reading is None:
             self.display = False
             return
+        stored = key[1]
+        line = Text("traverse ", style="bold")
         try:
             traverse = read_traverse(stored)
         except SeriesError as exc:
-            self.update(Text(f"traverse cannot be read: {exc}"))
+            line.append(f"cannot be read: {exc}")
         else:
-            line = Text("traverse ", style="bold")
-            line.append_text(traverse_line(traverse, tolerance))
-            self.update(line)
+            line.append_text(traverse_curve(traverse))
+            line.append(
+                f"  {reading.value or 0:.4g} Ω at 61.8 %, C at {traverse.current_probe_m:g} m"
+            )
+        self.update(line)
         self.display = True

@@ -1,14 +1,13 @@
 """Earthing in the walkdown: a traverse as the earth reading (ctrl+r), the calculators (ctrl+o).
 
 Kept out of the walkdown screen's own module: the screen mixes `WalkdownEarthing`
-in, adds `EARTHING_BINDINGS` to its keys and `traverse_views(stop)` to a stop's
-widgets. The traverse is saved through the screen's own `_save_reading`, so it is
-judged and marked on the walk like any typed reading.
+in and adds `EARTHING_BINDINGS` to its keys; its stop pane holds a
+`TraverseView`. The traverse is saved through the screen's own `_save_reading`,
+so it is judged and marked on the walk like any typed reading.
 """
 
 from __future__ import annotations
 
-from collections.abc import Awaitable
 from datetime import date
 from typing import Any, Protocol
 
@@ -21,11 +20,8 @@ from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import calculator_for
-from inspectkit.tui.widgets.traverse_view import TraverseView
+from inspectkit.tui.widgets.traverse_view import EARTH
 from inspectkit.walkdown import ReadingOutcome, SavedEntries, SiteContext, Stop, WalkdownError
-
-#: Earth readings a traverse can give, in the order the walkdown asks for them.
-EARTH = (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED)
 
 EARTHING_BINDINGS = [
     Binding(
@@ -52,35 +48,19 @@ class _Walkdown(Protocol):
     @property
     def stop(self) -> Stop: ...
     def notify(self, message: str, *, severity: str = ...) -> None: ...
-    def run_worker(self, work: Awaitable[None]) -> object: ...
-    def show_stop(self, index: int) -> Awaitable[None]: ...
+    def move_now(self, index: int, *, focus_entry: bool = ...) -> None: ...
     def _save_reading(
-        self, quantity: Quantity, text: str, method: Method, doubtful: bool,
+        self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool,
         traverse: Traverse | None = None,
     ) -> ReadingOutcome: ...  # fmt: skip
-    def _tolerance(self) -> float: ...
     def _save_traverse(self, quantity: Quantity, traverse: Traverse | None) -> None: ...
 
 
 class WalkdownEarthing:
     """The walkdown's earthing actions, mixed into the walkdown screen (`_Walkdown`)."""
 
-    def traverse_views(self: _Walkdown, stop: Stop) -> list[TraverseView]:
-        """A view of each saved earth reading of the stop that was taken by traverse."""
-        views = []
-        for quantity in EARTH:
-            outcome = self.saved.readings.get((stop.component.id, quantity))
-            if outcome is not None and outcome.reading.traverse:
-                view = TraverseView(id=f"traverse-{quantity.value}")
-                view.show(outcome.reading.traverse, self._tolerance())
-                views.append(view)
-        return views
-
-    def _tolerance(self: _Walkdown) -> float:
-        return float(self.context.profile.earthing.plateau_tolerance)
-
     def action_traverse(self: _Walkdown) -> None:
-        stop: Stop = self.stop
+        stop = self.stop
         quantity = next((q for q in EARTH if q in stop.quantities), None)
         if quantity is None:
             self.notify(
@@ -96,26 +76,26 @@ class WalkdownEarthing:
                 start = (f"{series.current_probe_m:g} m", traverse_as_typed(series))
             except SeriesError:
                 pass
-        dialog = TraverseDialog(stop.component.tag, self._tolerance(), *start)
-        self.app.push_screen(
-            dialog, lambda traverse: self._save_traverse(quantity, traverse)
-        )
+        tolerance = self.context.profile.earthing.plateau_tolerance
+        dialog = TraverseDialog(stop.component.tag, tolerance, *start)
+        self.app.push_screen(dialog, lambda traverse: self._save_traverse(quantity, traverse))
 
     def _save_traverse(self: _Walkdown, quantity: Quantity, traverse: Traverse | None) -> None:
         if traverse is None:
             return
+        tag = self.stop.component.tag
         try:
             outcome = self._save_reading(
-                quantity, "", Method.FALL_OF_POTENTIAL_3P, False, traverse=traverse
-            )
+                self.stop.component.id, quantity, "", Method.FALL_OF_POTENTIAL_3P, False,
+                traverse=traverse,
+            )  # fmt: skip
         except WalkdownError as exc:
-            self.notify(str(exc), severity="error")
+            self.notify(f"{tag}: {exc}", severity="error")
             return
-        self.notify(f"{self.stop.component.tag}: {outcome.verdict}, saved")
-        self.run_worker(self.show_stop(self.index))
+        self.notify(f"{tag}: {outcome.verdict}, saved")
+        self.move_now(self.index)
 
     def action_calculators(self: _Walkdown) -> None:
         records = load_site_records(self.store, self.context.site.id)
-        component = self.stop.component
         today: date = self.app.today
-        self.app.push_screen(calculator_for(records, component, today))
+        self.app.push_screen(calculator_for(records, self.stop.component, today))
