@@ -47,7 +47,6 @@ from inspectkit.model import (
     Grade,
     Inspection,
     InspectionKind,
-    InspectionState,
     JointState,
     Method,
     Photo,
@@ -55,10 +54,13 @@ from inspectkit.model import (
     Reading,
     Site,
 )
+from inspectkit.report.keys import new_key
+from inspectkit.report.publish import seal_signed
 from inspectkit.store import Store
 from inspectkit.store.database import apply_migrations
 from inspectkit.store.photos import file_sha256, photo_path, put_file
 from inspectkit.store.schema import SCHEMA_VERSION
+from inspectkit.store.seal import covered_now
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
 
@@ -67,6 +69,7 @@ MEASURED = (
     (Quantity.EARTH_ISOLATED, Method.FALL_OF_POTENTIAL_3P, JointState.OPEN, 4.0, 40.0),
     (Quantity.CONTINUITY, Method.LOW_OHM_4W, None, 0.01, 0.3),
 )
+PASSPHRASE = b"bench passphrase"
 TABLES = ("site", "component", "instrument", "inspector", "inspection", "reading", "finding",
           "photo")  # fmt: skip
 
@@ -134,11 +137,14 @@ def build(
         records.append(Photo(sha256=sha, original_name=path.name, inspection_id=inspection.id,
                              component_id=tjs[n % joints].id))  # fmt: skip
     store.save_all(records)
-    # The last years' visits are signed, as the office would hold them.
-    signed = [i.model_copy(update={"state": InspectionState.SIGNED,
-                                   "signed_at": datetime(i.date.year, i.date.month, i.date.day,
-                                                         17, tzinfo=UTC)})
-              for i in inspections[-8:]]  # fmt: skip
+    # The last years' visits are signed and sealed, as the office would hold them.
+    key = root / "keys" / "bench.p12"
+    new_key(key, PASSPHRASE, name="Bench Inspector")
+    signed = [
+        seal_signed(i, covered_now(store, i.id), key, PASSPHRASE, report_sha256="0" * 64,
+                    signed_at=datetime(i.date.year, i.date.month, i.date.day, 17, tzinfo=UTC))
+        for i in inspections[-8:]
+    ]  # fmt: skip
     store.save_all(signed)
     return store, site.id
 
@@ -283,6 +289,8 @@ def main() -> None:
     args = parser.parse_args()
     with tempfile.TemporaryDirectory(prefix="bench-sync-") as tmp:
         root = Path(tmp)
+        # The trust list and audit key it makes are the benchmark's, not the user's.
+        os.environ["XDG_CONFIG_HOME"] = str(root / "config")
         source, site_id = build(root, args.years, args.photos, args.joints, phone=args.phone_photos)
         counts = {t: source.db.execute(f"SELECT COUNT(*) FROM [{t}]").fetchone()[0]
                   for t in TABLES}  # fmt: skip

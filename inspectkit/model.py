@@ -38,6 +38,12 @@ from inspectkit.earthing_values import (
 #: A reading may carry a time this far past the laptop's clock before it is refused:
 #: instrument clocks and laptop clocks drift apart, and time zones get mixed up.
 CLOCK_SKEW = timedelta(hours=12)
+#: Longest name of a site, an inspector or a client (our default).
+NAME_MAX = 200
+#: Longest free-text notes on a site or an inspection (our default: a few pages).
+NOTES_MAX = 10_000
+#: Largest seal: about 100 characters per record an inspection holds (our default).
+SEAL_MAX = 4_000_000
 
 #: Above this an earth, continuity or bonding resistance is not a resistance an
 #: instrument shows but a typing slip (our default).
@@ -391,8 +397,8 @@ class Site(Record):
 
     table: ClassVar[str] = "site"
 
-    name: str = Field(min_length=1, max_length=200)
-    client: str = Field(default="", max_length=200)
+    name: str = Field(min_length=1, max_length=NAME_MAX)
+    client: str = Field(default="", max_length=NAME_MAX)
     address: str = Field(default="", max_length=500)
     town: str = Field(default="", max_length=200)
     latitude: float | None = None
@@ -402,7 +408,7 @@ class Site(Record):
     critical: bool = False
     explosive_risk: bool = False
     height_m: float | None = None
-    notes: str = ""
+    notes: str = Field(default="", max_length=NOTES_MAX)
     #: Date of the last alteration to the structure; it calls for an inspection.
     altered_on: date | None = None
     #: Who installed the LPS (firm or person), for the report's general part.
@@ -587,9 +593,9 @@ class Inspector(Record):
     organisation: str = Field(default="", max_length=200)
     qualification: str = Field(default="", max_length=200)
     #: Path of the inspector's PKCS#12 key file, relative to the data folder.
-    signing_key: str = ""
+    signing_key: str = Field(default="", max_length=1000)
     #: The inspector's certificate (PEM), so reports can be checked against it.
-    certificate_pem: str = ""
+    certificate_pem: str = Field(default="", max_length=20_000)
     #: Set when the person no longer inspects (or was added by mistake): kept for the
     #: inspections they signed, no longer offered.
     retired_on: date | None = None
@@ -615,12 +621,14 @@ class Inspection(Record):
     #: The signed inspection this one corrects (kind amendment).
     amends_id: str | None = None
     #: What could not be inspected and why (no roof access, buried, locked).
-    not_inspected: str = ""
+    not_inspected: str = Field(default="", max_length=2000)
     #: Who went round with the inspector (site manager, client's engineer).
     accompanied_by: str = Field(default="", max_length=200)
     #: Changes to the structure since the last visit that need more protection.
     changes_since_last: str = Field(default="", max_length=2000)
-    notes: str = ""
+    notes: str = Field(default="", max_length=NOTES_MAX)
+    #: The signer's seal over what the signature covers (see `store.seal`); set at signing.
+    seal: str = Field(default="", max_length=SEAL_MAX)
 
     @field_validator("kind", mode="before")
     @classmethod

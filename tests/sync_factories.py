@@ -18,7 +18,6 @@ from inspectkit.model import (
     Grade,
     Inspection,
     InspectionKind,
-    InspectionState,
     Instrument,
     JointState,
     Method,
@@ -26,8 +25,11 @@ from inspectkit.model import (
     Reading,
     Site,
 )
+from inspectkit.report.keys import new_key
+from inspectkit.report.publish import seal_signed
 from inspectkit.store import Store
 from inspectkit.store.photos import attach_photo
+from inspectkit.store.seal import covered_now
 
 RECORD_TABLES = (
     "site",
@@ -112,17 +114,29 @@ def build_site(store: Store, tmp: Path, *, joints: int = 3, name: str = "Harbour
     return SiteSet(site, components, instrument, inspection, readings, finding)
 
 
+#: The passphrase of the keys these tests sign with.
+PASSPHRASE = b"harbour-mill-key"
+
+
+def signing_key(store: Store) -> Path:
+    """A key made on this machine (so trusted here) beside the database, made once."""
+    path = store.path.with_name(f"{store.path.stem}-keys") / "inspector.p12"
+    if not path.exists():
+        new_key(path, PASSPHRASE, name="Ines Okafor")
+    return path
+
+
 def sign(store: Store, inspection: Inspection) -> Inspection:
-    """The inspection, signed (as the report step would leave it)."""
-    return store.save(
-        inspection.model_copy(
-            update={
-                "state": InspectionState.SIGNED,
-                "signed_at": datetime(2026, 6, 3, tzinfo=UTC),
-                "finished": True,
-            }
-        )
+    """The inspection, signed and sealed as the report step leaves it (without the PDF)."""
+    sealed = seal_signed(
+        inspection,
+        covered_now(store, inspection.id),
+        signing_key(store),
+        PASSPHRASE,
+        report_sha256=hashlib.sha256(inspection.id.encode()).hexdigest(),
+        signed_at=datetime(2026, 6, 3, tzinfo=UTC),
     )
+    return store.save(sealed)
 
 
 def record_rows(store: Store) -> dict[str, list[tuple]]:

@@ -23,7 +23,7 @@ def db(tmp_path: Path) -> Path:
     return path
 
 
-def run(*args: str, passphrase: str | None = "s3cret", input: str | None = None):
+def run(*args: str, passphrase: str | None = "s3cret-words", input: str | None = None):
     env = {"INSPECTKIT_PASSPHRASE": passphrase} if passphrase is not None else {}
     return CliRunner().invoke(app, list(args), env=env, input=input)
 
@@ -66,7 +66,7 @@ def test_passphrase_is_prompted_for_without_the_variable(db: Path, tmp_path: Pat
         "--db",
         str(db),
         passphrase=None,
-        input="pw\npw\n",
+        input="pass-word\npass-word\n",
     )
     assert made.exit_code == 0, made.output
     out = tmp_path / "r.pdf"
@@ -80,10 +80,10 @@ def test_passphrase_is_prompted_for_without_the_variable(db: Path, tmp_path: Pat
         "--db",
         str(db),
         passphrase=None,
-        input="pw\n",
+        input="pass-word\n",
     )
     assert signed.exit_code == 0, signed.output
-    assert "pw" not in signed.output.replace("Key passphrase", "")
+    assert "pass-word" not in signed.output.replace("Key passphrase", "")
 
 
 def test_bad_input_exits_2_with_the_field_named(db: Path, tmp_path: Path) -> None:

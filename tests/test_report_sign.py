@@ -138,8 +138,16 @@ def test_a_damaged_signature_is_altered(signed) -> None:
     assert not result.intact and not result.ok and result.problem
 
 
-def test_unknown_signer_exits_1_and_a_given_certificate_is_trusted(signed, tmp_path) -> None:
+def _other_machine(monkeypatch: pytest.MonkeyPatch, tmp_path: Path) -> None:
+    """A user config folder of its own: a client's computer, which trusts nobody yet."""
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "client-config"))
+
+
+def test_unknown_signer_exits_1_and_a_given_certificate_is_trusted(
+    signed, tmp_path, monkeypatch
+) -> None:
     _, _, inspector, out, _ = signed
+    _other_machine(monkeypatch, tmp_path)
     alone = CliRunner().invoke(app, ["verify", str(out)])
     assert alone.exit_code == 1 and "NOT KNOWN" in alone.output
     cert = tmp_path / "inspector.pem"
@@ -150,7 +158,7 @@ def test_unknown_signer_exits_1_and_a_given_certificate_is_trusted(signed, tmp_p
 
 def test_a_stranger_with_a_key_is_not_trusted(signed, tmp_path) -> None:
     store, made, _, out, db = signed
-    other = new_key(tmp_path / "other.p12", b"x", name="Zoë Ångström-Müller", now=NOW)
+    other = new_key(tmp_path / "other.p12", PASSPHRASE, name="Zoë Ångström-Müller", now=NOW)
     result = verify_pdf(out.read_bytes(), [other.certificate_pem])
     assert result.intact and not result.trusted and not result.ok
 
@@ -172,7 +180,7 @@ def test_key_files_refuse_wrong_passphrases_and_overwrites(tmp_path: Path) -> No
         read_key(path, b"nope")
     with pytest.raises(KeyProblem, match="exists already"):
         new_key(path, PASSPHRASE, name="A. Inspector")
-    with pytest.raises(KeyProblem, match="empty"):
+    with pytest.raises(KeyProblem, match="at least 8"):
         new_key(tmp_path / "e.p12", b"", name="A. Inspector")
 
 

@@ -253,11 +253,13 @@ def test_a_photo_refused_with_its_signed_inspection_leaves_no_file_behind(office
     sign(store, store.get(Inspection, records.inspection.id))
     late = attach_photo(other, jpeg(tmp_path / "late.jpg", 7), inspection_id=records.inspection.id)
     files_before = photo_files(store)
+    tree_before = set(store.photos_dir.rglob("*"))
 
     report = import_bundle(store, export_bundle(other, records.site.id, tmp_path / "x.zip").path)
 
     assert any(late.id in message for message in report.kept_signed)
     assert photo_files(store) == files_before and report.photos_added == 0
+    assert set(store.photos_dir.rglob("*")) == tree_before, "an empty folder was left behind"
     assert check_health(store) == []
 
 
@@ -314,3 +316,47 @@ def test_every_demo_site_travels_to_a_fresh_database_and_back_unchanged(tmp_path
         assert not report.changed, report.lines()
     source.close()
     target.close()
+
+
+def test_a_correction_saved_while_an_import_plans_is_never_overwritten(
+    office, tmp_path, monkeypatch
+):
+    """The walkdown saves a correction at the worst moment: after the merge read our rows.
+
+    The plan is made inside the import's write transaction, so the correction
+    waits for the lock and lands after the import, instead of being overwritten
+    by the other laptop's older value.
+    """
+    import sqlite3
+
+    from inspectkit.sync import merge
+
+    store, records = office
+    laptop = _laptop(tmp_path, store)
+    reading = records.readings[0]
+    laptop.save(laptop.get(Reading, reading.id).model_copy(update={"note": "laptop's value"}))
+    bundle = export_bundle(laptop, records.site.id, tmp_path / "back.zip").path
+    walkdown = Store.open(tmp_path / "office.sqlite", user="walkdown")
+    walkdown.db.execute("PRAGMA busy_timeout = 0")
+    correction = store.get(Reading, reading.id).model_copy(update={"value": 12.5})
+    waiting = []
+    real_plan = merge._plan
+
+    def plan_then_correct(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202 - wraps _plan
+        made = real_plan(*args, **kwargs)
+        try:
+            walkdown.save(correction)  # the forced interleaving: between plan and write
+        except sqlite3.OperationalError as exc:
+            assert "locked" in str(exc)
+            waiting.append(correction)
+        return made
+
+    monkeypatch.setattr(merge, "_plan", plan_then_correct)
+    import_bundle(store, bundle)
+    for late in waiting:
+        walkdown.save(late)  # the walkdown tries again once the lock is free
+    assert waiting, "the correction got in between the plan and the write"
+    assert store.get(Reading, reading.id).value == 12.5
+    assert store.verify_audit() == []
+    walkdown.close()
+    laptop.close()

@@ -10,6 +10,8 @@ import zipfile
 from pathlib import Path
 
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from sync_factories import build_site, file_hash, photo_files
 
 from inspectkit.model import new_id
@@ -168,9 +170,11 @@ def _unlisted_photo(tmp, members):
 
 def _photo_file_missing(tmp, members):
     content = _records(members)
-    content["tables"]["photo"][0]["id"] = new_id()
-    content["tables"]["photo"][0]["sha256"] = "ab" * 32
-    return _write(tmp / "b.zip", _with_records(members, content))
+    photos = content["tables"]["photo"]
+    photos.append({**photos[0], "id": new_id(), "sha256": "ab" * 32})
+    manifest = json.loads(members["manifest.json"])
+    manifest["counts"]["photo"] = len(photos)
+    return _write(tmp / "b.zip", _with_records(members, content), manifest=manifest)
 
 
 def _duplicate_member(tmp, members):
@@ -198,6 +202,43 @@ def _deleted_and_present(tmp, members):
     return _write(tmp / "b.zip", _with_records(members, content))
 
 
+#: A time no clock reaches yet: rows dated so would win every comparison.
+_FAR = "2099-01-01T00:00:00Z"
+
+
+def _future_edit(tmp, members):
+    content = _records(members)
+    content["tables"]["reading"][0].update(note="later than anything", updated_at=_FAR)
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
+def _future_reading(tmp, members):
+    content = _records(members)
+    content["tables"]["reading"][0]["taken_at"] = _FAR
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
+def _future_visit(tmp, members):
+    content = _records(members)
+    content["tables"]["inspection"][0].update(date="2099-01-01", finished=1)
+    return _write(tmp / "b.zip", _with_records(members, content))
+
+
+def _unnamed_photos(tmp, members):
+    """Photo files that no record names, each a valid member with its hash listed."""
+    extra = {}
+    for n in range(8):
+        data = hashlib.sha256(str(n).encode()).digest() * 2048  # 64 KiB, packs 1 to 1
+        extra[f"photos/{hashlib.sha256(data).hexdigest()}"] = data
+    return _write(tmp / "b.zip", {**members, **extra})
+
+
+def _huge_site_name(tmp, members):
+    manifest = json.loads(members["manifest.json"])
+    manifest["site_name"] = "M" * 1_000_000
+    return _write(tmp / "b.zip", members, manifest=manifest)
+
+
 CASES = {
     "path with ..": (_escape, "leads out of the bundle"),
     "absolute path": (_absolute, "absolute path"),
@@ -220,7 +261,17 @@ CASES = {
     "unknown table": (_unknown_table, "unknown table 'invoice'"),
     "site deleted": (_deleted_site, "deleted for unknown table 'site'"),
     "deleted yet present": (_deleted_and_present, "is both in the bundle and deleted"),
+    "edit dated 2099": (_future_edit, "reading record 1 .*updated_at 2099-01-01.* in the future"),
+    "reading taken 2099": (_future_reading, "(?s)reading record 1 .*taken_at: 2099-01-01"),
+    "visit dated 2099": (_future_visit, "(?s)inspection record 1 .*date: 2099-01-01 is in the"),
+    "unnamed photo files": (_unnamed_photos, "a photo file no record of the bundle names"),
+    "huge site name": (_huge_site_name, "'site_name' is 1,000,000 characters; .* at most 200"),
 }
+
+
+def _tree(folder: Path) -> set[Path]:
+    """Every file and folder under `folder`: an empty folder left behind shows too."""
+    return set(folder.rglob("*")) if folder.exists() else set()
 
 
 @pytest.mark.parametrize("case", list(CASES))
@@ -231,9 +282,10 @@ def test_hostile_bundle_is_refused_and_the_database_is_unchanged(setup, tmp_path
     before = file_hash(db)
     with Store.open(db) as store:
         photos = photo_files(store)
+        tree = _tree(store.photos_dir)
         with pytest.raises(BundleError, match=message):
             import_bundle(store, bundle)
-        assert photo_files(store) == photos
+        assert photo_files(store) == photos and _tree(store.photos_dir) == tree
     assert file_hash(db) == before
     assert not list(tmp_path.glob(".bundle-*")), "staging folder left behind"
     assert not (tmp_path / "evil").exists() and not Path("/tmp/evil").exists()
@@ -248,6 +300,24 @@ def test_an_oversized_member_is_refused_before_it_is_read(setup, tmp_path):
     assert file_hash(db) == before
 
 
+def test_one_import_writes_no_more_than_its_cap_and_says_so(setup, tmp_path):
+    db, members = setup
+    content = _records(members)
+    photos = content["tables"]["photo"]
+    # A photo this database does not hold yet: the import would have to write it.
+    data = b"a photo not held here " * 100
+    new = hashlib.sha256(data).hexdigest()
+    photos.append({**photos[0], "id": new_id(), "sha256": new})
+    manifest = json.loads(members["manifest.json"])
+    manifest["counts"]["photo"] = len(photos)
+    bundle = _write(tmp_path / "b.zip", {**_with_records(members, content), f"photos/{new}": data},
+                    manifest=manifest)  # fmt: skip
+    before = file_hash(db)
+    with Store.open(db) as store, pytest.raises(BundleError, match="more than the 1,000 bytes one"):
+        import_bundle(store, bundle, limits=Limits(write_bytes=1000))
+    assert file_hash(db) == before
+
+
 def test_a_member_larger_than_its_header_says_is_stopped_while_reading():
     with pytest.raises(BundleError, match="more than the 10 bytes"):
         b"".join(read_capped(io.BytesIO(b"x" * 11), "photos/x", 10))
@@ -259,3 +329,38 @@ def test_a_good_bundle_from_the_same_members_is_accepted(setup, tmp_path):
     with Store.open(db) as store:
         report = import_bundle(store, _write(tmp_path / "b.zip", members))
     assert not report.changed
+
+
+_JSON = st.recursive(
+    st.none() | st.booleans() | st.integers() | st.floats(allow_nan=False) | st.text(max_size=8),
+    lambda inner: (
+        st.lists(inner, max_size=3) | st.dictionaries(st.text(max_size=4), inner, max_size=3)
+    ),
+    max_leaves=6,
+)
+
+
+@settings(
+    max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(data=st.data())
+def test_fuzz_a_bundle_with_any_field_changed_is_taken_or_refused_cleanly(setup, tmp_path, data):
+    """Any one value of any row replaced by any JSON value: a refusal, or a clean import."""
+    db, members = setup
+    content = _records(members)
+    tables = [t for t, rows in content["tables"].items() if rows]
+    table = data.draw(st.sampled_from(tables))
+    row = data.draw(st.sampled_from(content["tables"][table]))
+    field = data.draw(st.sampled_from(sorted(row)))
+    row[field] = data.draw(_JSON)
+    bundle = _write(tmp_path / "fuzz.zip", _with_records(members, content))
+    before = file_hash(db)
+    with Store.open(db) as store:
+        try:
+            import_bundle(store, bundle)
+        except BundleError:
+            refused = True
+        else:
+            refused = False
+    if refused:
+        assert file_hash(db) == before

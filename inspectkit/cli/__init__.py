@@ -8,6 +8,7 @@ command's heavy imports happen when that command runs.
 from __future__ import annotations
 
 import importlib
+import sys
 from pathlib import Path
 from typing import Annotated
 
@@ -15,6 +16,7 @@ import typer
 
 from inspectkit import __version__
 from inspectkit.cli.common import DbOption, resolve_db
+from inspectkit.printable import PrintableStream
 
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
@@ -49,6 +51,10 @@ def root(
     ctx.obj = {"db": db}
     if ctx.invoked_subcommand is None:
         open_tui(resolve_db(ctx, db))
+    elif not isinstance(sys.stdout, PrintableStream):
+        # Names, notes and messages come from bundles and files: no command prints
+        # a control character raw (the TUI draws on the terminal through its own stream).
+        sys.stdout = PrintableStream(sys.stdout)  # type: ignore[assignment]
 
 
 def open_tui(db_path: Path) -> None:

@@ -12,6 +12,7 @@ from typing import Annotated, Any, NoReturn
 import typer
 
 from inspectkit.paths import default_db_path
+from inspectkit.printable import printable
 from inspectkit.store import Store, StoreError
 
 
@@ -24,6 +25,9 @@ class Exit(IntEnum):
     #: Bad input: a wrong option, a file that cannot be read, a record that does not validate.
     BAD_INPUT = 2
 
+
+#: At most this many lines of problems are printed, then how many more there are.
+MAX_LINES = 20
 
 DbOption = Annotated[
     Path | None,
@@ -82,8 +86,8 @@ def open_store(ctx: typer.Context, db: Path | None, *, create: bool = False) -> 
 
 
 def fail(message: str, code: Exit = Exit.BAD_INPUT) -> NoReturn:
-    """Print the message on stderr and stop."""
-    typer.echo(f"inspectkit: {message}", err=True)
+    """Print the message on stderr (control characters escaped) and stop."""
+    typer.echo(f"inspectkit: {printable(message)}", err=True)
     raise typer.Exit(int(code))
 
 

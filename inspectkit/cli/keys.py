@@ -9,7 +9,15 @@ from typing import Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, fail, open_store, output_option
+from inspectkit.cli.common import (
+    DbOption,
+    Exit,
+    JsonOption,
+    emit_json,
+    fail,
+    open_store,
+    output_option,
+)
 from inspectkit.model import Inspector
 from inspectkit.store import Store
 
@@ -112,6 +120,7 @@ def import_key(
 ) -> None:
     """Use a key and certificate issued by a certificate authority for an inspector."""
     from inspectkit.report.keys import KeyProblem, read_key, stored_key_path
+    from inspectkit.store.trust import trust
 
     with open_store(ctx, db) as store:
         person = find_inspector(store, inspector)
@@ -119,6 +128,8 @@ def import_key(
             key = read_key(file, passphrase())
         except KeyProblem as exc:
             fail(str(exc))
+        # The user holds the key itself and chose to use it here: it is theirs to trust.
+        trust(key.certificate_pem, "key imported on this machine")
         store.save(
             person.model_copy(
                 update={
@@ -138,6 +149,85 @@ def show(ctx: typer.Context, inspector: InspectorOption, db: DbOption = None) ->
     if not person.certificate_pem:
         fail(f"{person.name} has no certificate yet; run `inspectkit keys new --inspector ...`")
     typer.echo(person.certificate_pem, nl=False)
+
+
+@keys_app.command("trust")
+def trust_certificate(
+    file: Annotated[
+        Path, typer.Argument(help="The certificate (PEM) to trust.", dir_okay=False)
+    ],
+    yes: Annotated[
+        bool, typer.Option("--yes", help="Trust without asking (the fingerprint was checked).")
+    ] = False,
+) -> None:
+    """Trust a certificate to sign reports, after comparing its fingerprint with its owner."""
+    from inspectkit.store.trust import (
+        TrustError,
+        fingerprint,
+        is_trusted,
+        spaced,
+        subject_of,
+        trust,
+    )
+
+    try:
+        pem = file.read_text(encoding="ascii")
+        fp, subject = fingerprint(pem), subject_of(pem)
+    except (OSError, UnicodeDecodeError) as exc:
+        fail(f"{file}: cannot read it as a PEM certificate ({exc})")
+    except TrustError as exc:
+        fail(f"{file}: {exc}")
+    typer.echo(f"Certificate of {subject}")
+    typer.echo(f"Fingerprint (SHA-256): {spaced(fp)}")
+    if is_trusted(pem):
+        typer.echo("Already trusted here.")
+        return
+    typer.echo("Compare the fingerprint with its owner (by phone, in person) before you trust it.")
+    if not yes and not typer.confirm("Trust this certificate to sign reports?", default=False):
+        fail("not trusted; nothing was changed", Exit.ACT)
+    trust(pem, "trusted by hand")
+    typer.echo(f"Trusted: reports signed by {subject} with this key now verify here.")
+
+
+@keys_app.command("list")
+def list_keys(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = False) -> None:
+    """Inspectors' certificates and the certificates trusted here, each trusted or not."""
+    from inspectkit.store.trust import TrustError, fingerprint, spaced, trusted
+
+    try:
+        known = trusted()
+    except TrustError as exc:
+        fail(str(exc))
+    with open_store(ctx, db) as store:
+        people = store.select(Inspector, "certificate_pem != ''", order_by="name")
+    rows = []
+    for person in people:
+        try:
+            fp = fingerprint(person.certificate_pem)
+        except TrustError:
+            fp = ""
+        how = known[fp].how if fp in known else ""
+        rows.append(
+            {"inspector": person.name, "id": person.id, "fingerprint": fp,
+             "trusted": fp in known, "how": how}
+        )  # fmt: skip
+    named = {row["fingerprint"] for row in rows}
+    rows += [
+        {"inspector": None, "id": None, "fingerprint": fp, "trusted": True, "how": entry.how,
+         "subject": entry.subject}  # fmt: skip
+        for fp, entry in known.items()
+        if fp not in named
+    ]
+    if json_out:
+        emit_json(rows)
+        return
+    for row in rows:
+        who = row["inspector"] or f"{row.get('subject')} (no inspector here)"
+        state = f"TRUSTED ({row['how']})" if row["trusted"] else "NOT TRUSTED"
+        typer.echo(f"{who}: {state}")
+        typer.echo(f"  fingerprint {spaced(row['fingerprint']) if row['fingerprint'] else '?'}")
+    if not rows:
+        typer.echo("No certificates yet: make a key with `inspectkit keys new --inspector NAME`.")
 
 
 def register(app: typer.Typer) -> None:

@@ -12,6 +12,7 @@ from typing import Annotated, TextIO
 import typer
 
 from inspectkit.cli.common import (
+    MAX_LINES,
     DbOption,
     Exit,
     JsonOption,
@@ -20,6 +21,7 @@ from inspectkit.cli.common import (
     open_store,
     output_option,
 )
+from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.sync.guard import BundleError
@@ -113,7 +115,8 @@ def export(
             if unlocated:
                 typer.echo(
                     f"{len(unlocated)} site(s) without coordinates, written with a null geometry: "
-                    f"{', '.join(unlocated)}; set their latitude and longitude to map them",
+                    f"{printable(', '.join(unlocated))}; set their latitude and longitude to "
+                    "map them",
                     err=True,
                 )
             return
@@ -178,10 +181,17 @@ def import_(
                 "photos_added": report.photos_added,
                 "kept_signed": report.kept_signed,
                 "conflicts": [c.__dict__ for c in report.conflicts],
+                "removed": dict(report.removed),
+                "kept_deleted": report.kept_deleted,
+                "kept_edited": report.kept_edited,
+                "notices": report.notices,
             }
         )
     else:
-        typer.echo("\n".join(report.lines()))
+        lines = report.lines()
+        typer.echo("\n".join(lines[:MAX_LINES]))
+        if len(lines) > MAX_LINES:
+            typer.echo(f"  … and {len(lines) - MAX_LINES} more lines (all of them: --json)")
     if report.kept_signed or report.conflicts:
         raise typer.Exit(int(Exit.ACT))
 

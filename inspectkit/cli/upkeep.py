@@ -9,6 +9,7 @@ from typing import Annotated
 import typer
 
 from inspectkit.cli.common import (
+    MAX_LINES,
     DbOption,
     Exit,
     JsonOption,
@@ -127,8 +128,10 @@ def doctor(
     elif not problems:
         typer.echo("No problems found: database intact, audit log matches, photos all present.")
     else:
-        for p in problems:
+        for p in problems[:MAX_LINES]:
             typer.echo(f"{p.check}: {p.subject}: {p.message}\n  fix: {p.fix}")
+        if len(problems) > MAX_LINES:
+            typer.echo(f"… and {len(problems) - MAX_LINES} more (all of them: --json)")
         typer.echo(f"{len(problems)} problem(s) found.")
     if problems:
         raise typer.Exit(int(Exit.ACT))

@@ -3,11 +3,22 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated
+from typing import TYPE_CHECKING, Annotated
 
 import typer
 
-from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, resolve_db
+from inspectkit.cli.common import (
+    MAX_LINES,
+    DbOption,
+    Exit,
+    JsonOption,
+    emit_json,
+    fail,
+    resolve_db,
+)
+
+if TYPE_CHECKING:
+    from inspectkit.report.verify import DatabaseCheck
 
 
 def verify(
@@ -33,17 +44,21 @@ def verify(
     from inspectkit.report.keys import certificate_from_pem
     from inspectkit.report.verify import (
         NO_SIGNATURE,
-        inspection_for_file,
-        inspector_certificates,
+        check_database,
+        trusted_certificates,
         verify_pdf,
     )
     from inspectkit.store import Store, StoreError
+    from inspectkit.store.trust import TrustError
 
     try:
         data = file.read_bytes()
     except OSError as exc:
         fail(f"{file}: cannot read it ({exc.strerror})")
-    trusted: list[str] = []
+    try:
+        trusted = trusted_certificates()
+    except TrustError as exc:
+        fail(str(exc))
     if cert is not None:
         try:
             text = cert.read_text(encoding="ascii")
@@ -51,8 +66,9 @@ def verify(
         except (OSError, ValueError) as exc:
             fail(f"--cert {cert}: not a PEM certificate ({exc})")
         trusted.append(text)
-    record = None
+    checked = None
     site_name = None
+    result = verify_pdf(data, trusted)
     db_given = db is not None or (ctx.find_root().obj or {}).get("db") is not None
     if db_given:
         try:
@@ -60,15 +76,12 @@ def verify(
         except StoreError as exc:
             fail(str(exc))
         with store:
-            trusted += [i.certificate_pem for i in inspector_certificates(store)]
-            result = verify_pdf(data, trusted)
-            record = inspection_for_file(store, result.sha256)
-            if record is not None:
-                site = store.get(Site, record.site_id)
+            checked = check_database(store, data, result.sha256)
+            if checked.inspection is not None:
+                site = store.get(Site, checked.inspection.site_id)
                 site_name = site.name if site else None
-    else:
-        result = verify_pdf(data, trusted)
-    matches = record is not None if db_given else None
+    record = checked.inspection if checked is not None else None
+    matches = checked.matches if checked is not None else None
     ok = result.ok and matches is not False
     if json_out:
         emit_json(
@@ -82,6 +95,7 @@ def verify(
                 "sha256": result.sha256,
                 "matches_database": matches,
                 "inspection": record.id if record else None,
+                "differences": checked.differences if checked else [],
                 "problem": result.problem,
                 "ok": ok,
             }
@@ -97,15 +111,41 @@ def verify(
             when = result.signed_at.isoformat(timespec="minutes") if result.signed_at else "?"
             typer.echo(f"Signed by {result.signer} at {when}")
         if result.signer and not result.trusted:
-            typer.echo("Signer NOT KNOWN: the certificate is not one given by --db or --cert")
-        if matches is True and record is not None:
             typer.echo(
-                f"Matches the database: inspection {record.id} of {record.date.isoformat()}"
-                f" at {site_name}, revision {record.report_revision}"
+                "Signer NOT KNOWN: the certificate is not one made on this machine, trusted "
+                "with `inspectkit keys trust FILE`, or given with --cert"
             )
-        elif matches is False:
-            typer.echo("Does NOT match the database: no signed inspection has this file's sha256")
+        if checked is not None:
+            _database_lines(checked, site_name)
     raise typer.Exit(int(Exit.OK if ok else Exit.ACT))
+
+
+def _database_lines(checked: DatabaseCheck, site_name: str | None) -> None:
+    record = checked.inspection
+    if record is None:
+        typer.echo("Does NOT match the database: no signed inspection has this file's sha256")
+        return
+    if checked.matches:
+        typer.echo(
+            f"Matches the database: inspection {record.id} of {record.date.isoformat()}"
+            f" at {site_name}, revision {record.report_revision}"
+        )
+    else:
+        typer.echo(
+            f"Does NOT match the database: inspection {record.id} holds records other than "
+            "those the signature covers"
+        )
+    for line in checked.differences[:MAX_LINES]:
+        typer.echo(f"  {line}")
+    if len(checked.differences) > MAX_LINES:
+        typer.echo(f"  … and {len(checked.differences) - MAX_LINES} more")
+    if checked.audit_head_held is False:
+        typer.echo(
+            "  the audit log no longer holds the row that was its head at signing: "
+            "it was rewritten or cut short since"
+        )
+    if not checked.covered:
+        typer.echo("  (the report does not say which records it covers: signed by an old version)")
 
 
 def register(app: typer.Typer) -> None:

@@ -14,17 +14,21 @@ from pathlib import Path
 
 from cryptography import x509
 from cryptography.hazmat.primitives import hashes, serialization
-from cryptography.hazmat.primitives.asymmetric import rsa
+from cryptography.hazmat.primitives.asymmetric import ec, padding, rsa
 from cryptography.hazmat.primitives.serialization import pkcs12
 from cryptography.x509.oid import NameOID
 
 from inspectkit.model import Inspector
 from inspectkit.store import Store
+from inspectkit.store.trust import private_folder, trust, write_private
 
 #: A self-signed inspector certificate is good for this long (our default).
 VALID_DAYS = 5 * 365
 #: RSA key size; 2048 bits is the usual floor for document signatures (common practice).
 KEY_BITS = 2048
+#: Shortest passphrase for a new key: NIST SP 800-63B §5.1.1.2 asks at least 8
+#: characters of a secret a person chooses.
+MIN_PASSPHRASE = 8
 
 
 class KeyProblem(Exception):
@@ -60,11 +64,18 @@ def new_key(
         qualification: Licence or qualification, kept in the certificate's title.
         now: Start of validity (tests pass a fixed time).
 
+    The file is created readable by this user only (0600), in a folder only this
+    user can open (0700) when the folder is new; the certificate is trusted on
+    this machine from then on, since it was made here.
+
     Raises:
-        KeyProblem: empty passphrase, or the file exists already.
+        KeyProblem: passphrase shorter than `MIN_PASSPHRASE`, or the file exists already.
     """
-    if not passphrase:
-        raise KeyProblem("passphrase is empty; give one to protect the key")
+    if len(passphrase.decode("utf-8", "replace")) < MIN_PASSPHRASE:
+        raise KeyProblem(
+            f"the passphrase has {len(passphrase.decode('utf-8', 'replace'))} characters; "
+            f"a new key needs at least {MIN_PASSPHRASE}"
+        )
     if path.exists():
         raise KeyProblem(f"{path} exists already; choose another file with -o")
     start = (now or dt.datetime.now(dt.UTC)).replace(microsecond=0)
@@ -108,11 +119,15 @@ def new_key(
         None,
         serialization.BestAvailableEncryption(passphrase),
     )
-    path.parent.mkdir(parents=True, exist_ok=True)
-    with path.open("xb") as handle:
-        handle.write(blob)
-    path.chmod(0o600)
-    return _describe(path, certificate)
+    if not path.parent.exists():
+        private_folder(path.parent)
+    try:
+        write_private(path, blob, exclusive=True)
+    except FileExistsError:
+        raise KeyProblem(f"{path} exists already; choose another file with -o") from None
+    made = _describe(path, certificate)
+    trust(made.certificate_pem, "made on this machine")
+    return made
 
 
 def read_key(path: Path, passphrase: bytes) -> SigningKey:
@@ -132,6 +147,31 @@ def read_key(path: Path, passphrase: bytes) -> SigningKey:
     if key is None or certificate is None:
         raise KeyProblem(f"{path}: holds no private key and certificate; export both from the CA")
     return _describe(path, certificate)
+
+
+def sign_payload(path: Path, passphrase: bytes, data: bytes) -> tuple[bytes, str]:
+    """Sign bytes with the key in a PKCS#12 file (the seal of a signed inspection).
+
+    Returns:
+        The signature, and the file's certificate (PEM) that checks it.
+
+    Raises:
+        KeyProblem: see `read_key`.
+    """
+    try:
+        key, certificate, _ = pkcs12.load_key_and_certificates(path.read_bytes(), passphrase)
+    except OSError as exc:
+        raise KeyProblem(f"{path}: cannot read the key file ({exc.strerror})") from exc
+    except ValueError as exc:
+        raise KeyProblem(f"{path}: wrong passphrase, or not a PKCS#12 (.p12/.pfx) file") from exc
+    if certificate is None:
+        raise KeyProblem(f"{path}: holds no certificate; export the key with its certificate")
+    pem = certificate.public_bytes(serialization.Encoding.PEM).decode("ascii")
+    if isinstance(key, rsa.RSAPrivateKey):
+        return key.sign(data, padding.PKCS1v15(), hashes.SHA256()), pem
+    if isinstance(key, ec.EllipticCurvePrivateKey):
+        return key.sign(data, ec.ECDSA(hashes.SHA256())), pem
+    raise KeyProblem(f"{path}: holds a kind of key inspectkit cannot sign with (RSA or EC only)")
 
 
 def certificate_from_pem(pem: str) -> x509.Certificate:
@@ -155,10 +195,10 @@ def _describe(path: Path, certificate: x509.Certificate) -> SigningKey:
 
 
 def keys_dir(store: Store) -> Path:
-    """Folder for key files beside the database (`demo.sqlite` → `demo-keys/`)."""
+    """Folder for key files beside the database (`demo.sqlite` → `demo-keys/`), only ours (0700)."""
     if store.path is None:
         raise KeyProblem("an in-memory database has no folder for keys; give -o FILE")
-    return store.path.with_name(f"{store.path.stem}-keys")
+    return private_folder(store.path.with_name(f"{store.path.stem}-keys"))
 
 
 def key_path(store: Store, inspector: Inspector) -> Path:

@@ -8,19 +8,24 @@ way is the same file: `export_report` for the command line, and
 from __future__ import annotations
 
 import asyncio
+import json
 import re
 from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
+from typing import Any
 
 from inspectkit.model import Inspection, InspectionState, Inspector, utcnow
 from inspectkit.report.branding import Branding, load_branding
 from inspectkit.report.content import ReportContent
-from inspectkit.report.keys import key_path
+from inspectkit.report.keys import KeyProblem, key_path, sign_payload
 from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
-from inspectkit.report.sign import SignedReport, async_sign_pdf, sign_pdf
+from inspectkit.report.sign import SignedReport, SignError, async_sign_pdf, sign_pdf
 from inspectkit.store import Store
+from inspectkit.store.audit_key import anchor
+from inspectkit.store.rows import to_row
+from inspectkit.store.seal import covered_now, make_seal, payload_text
 
 
 @dataclass(frozen=True)
@@ -32,6 +37,13 @@ class Prepared:
     rendered: RenderedReport
     key: Path | None
     signing_at: datetime | None
+    #: What the signature will cover in the database (`store.seal`); None when not signing.
+    covered: dict[str, Any] | None = None
+
+    def covered_text(self) -> str:
+        if not self.covered:
+            return ""
+        return json.dumps(self.covered, sort_keys=True, separators=(",", ":"))
 
 
 def default_file_name(site_name: str, inspection: Inspection) -> str:
@@ -104,7 +116,8 @@ def prepare(
     """
     inspection, content, key, signing_at = _plan(store, inspection_id, sign, keep_photos, now)
     rendered = render_report(content, branding or load_branding())
-    return Prepared(inspection, content, rendered, key, signing_at)
+    covered = covered_now(store, inspection_id) if sign else None
+    return Prepared(inspection, content, rendered, key, signing_at, covered)
 
 
 def reason(prepared: Prepared) -> str:
@@ -115,22 +128,69 @@ def reason(prepared: Prepared) -> str:
     )
 
 
-def _finish(store: Store, prepared: Prepared, output: Path, signed: SignedReport | None) -> bytes:
-    """Write the file, then (when signed) freeze the inspection: a failed write leaves a draft."""
+def _finish(
+    store: Store,
+    prepared: Prepared,
+    output: Path,
+    signed: SignedReport | None,
+    passphrase: bytes | None = None,
+) -> bytes:
+    """Write the file, then (when signed) seal and freeze the inspection.
+
+    A failed write leaves a draft. The seal signs what the report's signature
+    covers, with the report's hash and signing time, so the signed inspection
+    can travel to another database and be checked there.
+    """
     data = signed.data if signed is not None else prepared.rendered.data
+    if signed is None or prepared.key is None or passphrase is None:
+        output.write_bytes(data)
+        return data
+    sealed = seal_signed(
+        prepared.inspection,
+        prepared.covered or {},
+        prepared.key,
+        passphrase,
+        report_sha256=signed.sha256,
+        signed_at=prepared.signing_at or utcnow(),
+    )
     output.write_bytes(data)
-    if signed is not None:
-        frozen = prepared.inspection.model_copy(
-            update={
-                "state": InspectionState.SIGNED,
-                "finished": True,
-                "signed_at": prepared.signing_at or utcnow(),
-                "report_sha256": signed.sha256,
-                "report_revision": revision_of(prepared.inspection),
-            }
-        )
-        store.save(frozen)
+    store.save(sealed)
+    anchor(store, f"inspection {sealed.id} was signed")
     return data
+
+
+def seal_signed(
+    inspection: Inspection,
+    covered: dict[str, Any],
+    key: Path,
+    passphrase: bytes,
+    *,
+    report_sha256: str,
+    signed_at: datetime,
+) -> Inspection:
+    """The inspection as signed: frozen fields set, and its seal over what the report covers.
+
+    Raises:
+        SignError: the key file cannot sign (see `keys.sign_payload`).
+    """
+    frozen = inspection.model_copy(
+        update={
+            "state": InspectionState.SIGNED,
+            "finished": True,
+            "signed_at": signed_at,
+            "report_sha256": report_sha256,
+            "report_revision": revision_of(inspection),
+        }
+    )
+    row = to_row(frozen)
+    payload = payload_text(
+        {**covered, "report_sha256": row["report_sha256"], "signed_at": row["signed_at"]}
+    )
+    try:
+        signature, certificate = sign_payload(key, passphrase, payload.encode("utf-8"))
+    except KeyProblem as exc:
+        raise SignError(str(exc)) from None
+    return frozen.model_copy(update={"seal": make_seal(payload, signature, certificate)})
 
 
 def export_report(
@@ -165,8 +225,9 @@ def export_report(
             prepared.rendered.signature_slot,
             reason=reason(prepared),
             location=prepared.content.site_name,
+            covered=prepared.covered_text(),
         )
-    return prepared, _finish(store, prepared, output, signed)
+    return prepared, _finish(store, prepared, output, signed, passphrase)
 
 
 async def export_report_async(
@@ -189,7 +250,8 @@ async def export_report_async(
         store, inspection_id, passphrase is not None, keep_photos, now
     )
     rendered = await asyncio.to_thread(render_report, content, branding or load_branding())
-    prepared = Prepared(inspection, content, rendered, key, signing_at)
+    covered = covered_now(store, inspection_id) if passphrase is not None else None
+    prepared = Prepared(inspection, content, rendered, key, signing_at, covered)
     signed = None
     if passphrase is not None and key is not None:
         signed = await async_sign_pdf(
@@ -199,5 +261,6 @@ async def export_report_async(
             rendered.signature_slot,
             reason=reason(prepared),
             location=content.site_name,
+            covered=prepared.covered_text(),
         )
-    return prepared, _finish(store, prepared, output, signed)
+    return prepared, _finish(store, prepared, output, signed, passphrase)

@@ -2,21 +2,38 @@
 
 The decision rests on pyHanko's `intact` and `bottom_line` only: after a byte
 inside the signed range is changed, `valid` may still read True. A damaged
-signature blob raises instead of returning a status; that too means altered.
+signature blob raises instead of returning a status; that too means altered,
+and so does a change in the zero padding around the signature, which the
+signature itself does not cover.
+
+Signers are trusted only through this user's own list (`store.trust`), never
+through the certificates a database holds: a bundle can bring those. With the
+database, the records the signature covers are compared one by one with what
+the database holds now, and the audit chain must still hold its head at signing.
 """
 
 from __future__ import annotations
 
 import hashlib
-import logging
+import json
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
 from io import BytesIO
 from typing import Any
 
-from inspectkit.model import Inspection, Inspector
+from inspectkit.model import Inspection
+from inspectkit.report.sign import COVERED_KEY, quiet_pyhanko
 from inspectkit.store import Store
+from inspectkit.store.audit_key import stored_id
+from inspectkit.store.seal import (
+    covered_digests,
+    differences,
+    digest_map,
+    part_labels,
+    stored_parts,
+)
+from inspectkit.store.trust import trusted
 
 #: The problem reported for a PDF that was never signed.
 NO_SIGNATURE = "the file carries no signature"
@@ -62,12 +79,6 @@ def _context(trust_pems: Sequence[str]) -> Any:
     return ValidationContext(trust_roots=roots, allow_fetching=False)
 
 
-def _quiet() -> None:
-    """An untrusted self-signed signer makes the validator log a traceback; we report it."""
-    for name in ("pyhanko", "pyhanko_certvalidator"):
-        logging.getLogger(name).setLevel(logging.CRITICAL)
-
-
 def _embedded(data: bytes) -> tuple[Any, str]:
     """The file's signature, or None and the reason there is none."""
     from pyhanko.pdf_utils.misc import PdfError
@@ -79,7 +90,26 @@ def _embedded(data: bytes) -> tuple[Any, str]:
         return None, f"the file cannot be read as a PDF ({exc})"
     if not signatures:
         return None, NO_SIGNATURE
-    return signatures[-1], ""
+    embedded = signatures[-1]
+    if not _padding_is_clean(embedded.pkcs7_content):
+        return None, "the signature's container was changed after signing"
+    return embedded, ""
+
+
+def _padding_is_clean(contents: bytes) -> bool:
+    """The bytes after the signature's DER object are the zeros signing left there.
+
+    The signed byte range leaves the signature's own slot out, and a parser reads
+    only the DER object at its start: without this a change in the padding would
+    read as intact.
+    """
+    from asn1crypto import parser
+
+    try:
+        _, _, _, header, body, trailer = parser.parse(contents)
+    except (ValueError, TypeError):
+        return False
+    return not contents[len(header) + len(body) + len(trailer) :].strip(b"\0")
 
 
 def _result(data: bytes, embedded: Any, status: Any, problem: str) -> Verification:
@@ -120,7 +150,7 @@ def verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verification:
     from pyhanko.sign.validation import validate_pdf_signature
     from pyhanko.sign.validation.errors import SignatureValidationError
 
-    _quiet()
+    quiet_pyhanko()
     embedded, problem = _embedded(data)
     if embedded is None:
         return _result(data, None, None, problem)
@@ -136,7 +166,7 @@ async def async_verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verif
     from pyhanko.sign.validation import async_validate_pdf_signature
     from pyhanko.sign.validation.errors import SignatureValidationError
 
-    _quiet()
+    quiet_pyhanko()
     embedded, problem = _embedded(data)
     if embedded is None:
         return _result(data, None, None, problem)
@@ -149,9 +179,68 @@ async def async_verify_pdf(data: bytes, trust_pems: Sequence[str] = ()) -> Verif
     return _result(data, embedded, status, "")
 
 
-def inspector_certificates(store: Store) -> list[Inspector]:
-    """Inspectors with a certificate on record: the trust roots a database gives."""
-    return store.select(Inspector, "certificate_pem != ''")
+def trusted_certificates() -> list[str]:
+    """The certificates this user trusts (made here, or trusted with `keys trust`), as PEM."""
+    return [entry.pem for entry in trusted().values()]
+
+
+def covered_in(data: bytes) -> dict[str, Any] | None:
+    """What a report's signature covers in the database, as embedded at signing; None if absent."""
+    from pyhanko.pdf_utils.misc import PdfError
+    from pyhanko.pdf_utils.reader import PdfFileReader
+
+    try:
+        text = PdfFileReader(BytesIO(data), strict=False).root.get(COVERED_KEY)
+        covered = json.loads(str(text)) if text is not None else None
+    except (PdfError, ValueError, KeyError, TypeError, RecursionError):
+        return None
+    return covered if isinstance(covered, dict) else None
+
+
+@dataclass(frozen=True)
+class DatabaseCheck:
+    """How a signed report compares with the database.
+
+    Attributes:
+        inspection: The signed inspection recorded with this file's hash, if any.
+        differences: Each record that is not what the signature covers, in words.
+        audit_head_held: The audit chain still holds the row that was its head at
+            signing; None when the report carries no head (signed by an older version)
+            or was signed in another database.
+        covered: The report carries what its signature covers.
+    """
+
+    inspection: Inspection | None
+    differences: list[str]
+    audit_head_held: bool | None
+    covered: bool
+
+    @property
+    def matches(self) -> bool:
+        return self.inspection is not None and not self.differences and (
+            self.audit_head_held is not False
+        )
+
+
+def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
+    """Compare the records a report's signature covers with what the database holds now."""
+    record = inspection_for_file(store, sha256)
+    covered = covered_in(data)
+    if covered is not None and digest_map(covered.get("records")) is None:
+        covered = None  # not what inspectkit embeds: nothing to compare
+    if record is None or covered is None:
+        return DatabaseCheck(record, [], None, covered is not None)
+    if covered.get("inspection_id") != record.id:
+        return DatabaseCheck(record, ["the report covers another inspection"], None, True)
+    parts = stored_parts(store, record.id)
+    now = covered_digests(parts)
+    head = covered.get("audit_head")
+    held = None
+    # Only the database that signed holds that head; a copy received by bundle has its own log.
+    if isinstance(head, str) and covered.get("database_id") == stored_id(store.db):
+        held = store.db.execute("SELECT 1 FROM audit WHERE hash = ?", [head]).fetchone() is not None
+    wrong = differences(covered["records"], now, part_labels(store, parts))
+    return DatabaseCheck(record, wrong, held, True)
 
 
 def inspection_for_file(store: Store, sha256: str) -> Inspection | None:

@@ -2,7 +2,9 @@
 
 Each audit row holds the sha256 of its own content and of the row before it. A
 record changed with plain SQL no longer matches its last audit entry; an audit row
-changed or removed breaks the chain. `verify` finds both and names them.
+changed or removed breaks the chain. `verify` finds both and names them. A chain
+recomputed by hand passes `verify`: the keyed check each row also carries
+(`audit_key`) is what such a rewrite cannot forge.
 """
 
 from __future__ import annotations
@@ -16,6 +18,7 @@ from typing import Any
 import sqlite_utils
 
 from inspectkit.model import MODEL_FOR_TABLE, new_ids
+from inspectkit.store import audit_key
 from inspectkit.store.rows import canonical
 
 GENESIS = "0" * 64
@@ -71,6 +74,26 @@ def make_entries(
         entry["hash"] = prev_hash = entry_hash(entry)
         entries.append(entry)
     return entries
+
+
+def insert_entries(
+    db: sqlite_utils.Database, entries: list[dict[str, Any]], *, with_key: bool | None = None
+) -> None:
+    """Append chained audit rows, each with its keyed check where the schema has the column.
+
+    Args:
+        db: The database, inside the caller's transaction.
+        entries: Rows from `make_entries`.
+        with_key: Whether the audit table has the keyed-check column; looked up if None.
+    """
+    if not entries:
+        return
+    if with_key if with_key is not None else audit_key.keyed(db):
+        for entry in entries:
+            entry["mac"] = audit_key.mac_for(entry["hash"])
+    names = list(entries[0])
+    sql = f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})"
+    db.conn.executemany(sql, ([e[n] for n in names] for e in entries))
 
 
 def verify(db: sqlite_utils.Database) -> list[AuditProblem]:

@@ -14,6 +14,7 @@ import sqlite_utils
 
 from inspectkit import __version__
 from inspectkit.model import (
+    Component,
     Finding,
     Inspection,
     InspectionState,
@@ -22,7 +23,7 @@ from inspectkit.model import (
     Record,
     utcnow,
 )
-from inspectkit.store import audit
+from inspectkit.store import audit, audit_key
 from inspectkit.store.rows import from_row, to_row
 from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION
 
@@ -34,6 +35,8 @@ BUSY_TIMEOUT_MS = 10_000
 _CHUNK = 500
 #: Fields every save stamps; a save that changes only these changes nothing.
 _STAMP_FIELDS = frozenset({"updated_at", "updated_by"})
+#: A component's fields that signed records show, fixed once one of them is signed.
+_SIGNED_COMPONENT_FIELDS = frozenset({"tag", "kind"})
 #: Fields a later inspection may still set on a finding from a signed inspection.
 _RESOLUTION_FIELDS = _STAMP_FIELDS | {"resolved_by"}
 
@@ -67,6 +70,8 @@ class Store:
         self.db = db
         self.path = path
         self.user = user
+        #: The audit table takes keyed checks; looked up on the first write.
+        self._keyed: bool | None = None
 
     # ----------------------------------------------------------------- opening
 
@@ -186,7 +191,9 @@ class Store:
             raise StoreError(f"{source}: not an inspectkit backup ({exc})") from exc
         finally:
             conn.close()
+        self._keyed = None
         self._migrate()
+        audit_key.forget_after(self, f"{source.name} was restored")
 
     # ------------------------------------------------------------ transactions
 
@@ -364,9 +371,9 @@ class Store:
     def _log(self, changes: list[Any], at: str) -> None:
         if changes:
             entries = audit.make_entries(audit.last_hash(self.db), changes, at=at, who=self.user)
-            names = list(entries[0])
-            sql = f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})"
-            self.db.conn.executemany(sql, ([e[n] for n in names] for e in entries))
+            if self._keyed is None:
+                self._keyed = audit_key.keyed(self.db)
+            audit.insert_entries(self.db, entries, with_key=self._keyed)
 
     def log_conflicts(
         self, conflicts: Sequence[tuple[str, str, dict[str, Any], dict[str, Any]]]
@@ -412,6 +419,9 @@ class Store:
         for record in records:
             stored = stored_of[record.id]
             changed = _changed_fields(record, stored) if stored and not deleting else None
+            if isinstance(record, Component):
+                self._refuse_signed_rename(record, changed)
+                continue
             if isinstance(record, Inspection):
                 if stored is None or stored["state"] != InspectionState.SIGNED.value:
                     continue
@@ -436,6 +446,30 @@ class Store:
             raise FrozenRecordError(
                 f"{record.table} {record.id} belongs to a signed inspection and cannot be "
                 "changed; create an amendment inspection that references it"
+            )
+
+    def _refuse_signed_rename(self, component: Component, changed: set[str] | None) -> None:
+        """A component keeps the tag and kind its signed records were made under.
+
+        A signed report names each reading by its component's tag; renaming the
+        component would make the signed records say something else than was signed.
+        """
+        if not changed or not changed & _SIGNED_COMPONENT_FIELDS:
+            return
+        row = self.db.execute(
+            " UNION ALL ".join(
+                f"SELECT i.id, i.date FROM [{table}] t JOIN inspection i ON i.id = t.inspection_id "
+                "WHERE t.component_id = :c AND i.state = 'signed'"
+                for table in ("reading", "finding", "photo")
+            )
+            + " LIMIT 1",
+            {"c": component.id},
+        ).fetchone()
+        if row is not None:
+            raise FrozenRecordError(
+                f"component {component.tag} ({component.id}) has records in the inspection of "
+                f"{row[1]} that is signed ({row[0]}): its tag and kind stay as signed; retire "
+                "it and add a new component instead"
             )
 
     def _signed_inspections(self, ids: set[str | None]) -> set[str]:

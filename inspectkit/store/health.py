@@ -10,8 +10,10 @@ import sqlite3
 from dataclasses import dataclass
 from pathlib import Path
 
+from inspectkit.store.audit_key import key_problems
 from inspectkit.store.database import Store
 from inspectkit.store.photos import file_sha256, photo_path
+from inspectkit.store.seal import SealError, check_signed, stored_parts
 
 
 @dataclass(frozen=True)
@@ -45,6 +47,7 @@ def check_health(store: Store, *, hash_photos: bool = True) -> list[HealthProble
         # A damaged file makes the later checks fail half-way or say nonsense.
         return problems
     problems += audit_problems(store)
+    problems += seal_problems(store)
     if store.path is not None:
         problems += photo_problems(store, hash_photos=hash_photos)
     return problems
@@ -76,18 +79,52 @@ def integrity_problems(store: Store) -> list[HealthProblem]:
     ]
 
 
+#: What to do when the log shows a change made outside inspectkit.
+_OUTSIDE = (
+    "someone changed the database outside inspectkit: compare the record with a "
+    "backup, put the old content back from it, and make the change through inspectkit"
+)
+
+
 def audit_problems(store: Store) -> list[HealthProblem]:
-    """Records or audit rows changed behind inspectkit's back."""
-    return [
-        HealthProblem(
-            "audit",
-            f"{p.table} {p.row_id}",
-            p.message,
-            "someone changed the database outside inspectkit: compare the record with a "
-            "backup, put the old content back from it, and make the change through inspectkit",
-        )
+    """Records or audit rows changed behind inspectkit's back, the chain rewritten included."""
+    problems = [
+        HealthProblem("audit", f"{p.table} {p.row_id}", p.message, _OUTSIDE)
         for p in store.verify_audit()
     ]
+    problems += [
+        HealthProblem("audit key", f"audit {p.seq}" if p.seq else "audit", p.message, _OUTSIDE)
+        for p in key_problems(store.db)
+    ]
+    return problems
+
+
+def seal_problems(store: Store) -> list[HealthProblem]:
+    """Signed inspections whose records are no longer those their seal signed.
+
+    The seal is signed with the inspector's key, which the database does not
+    hold, so an edit made with the audit log rewritten to match still shows here.
+    Inspections signed before seals existed carry none and are not checked.
+    """
+    problems = []
+    for (inspection_id,) in store.db.execute(
+        "SELECT id FROM inspection WHERE state = 'signed' AND seal != '' ORDER BY date, id"
+    ):
+        parts = stored_parts(store, inspection_id)
+        try:
+            check_signed(parts[0][1], parts[1:], require_trust=False)
+        except SealError as exc:
+            problems.append(
+                HealthProblem(
+                    "signature",
+                    f"inspection {inspection_id}",
+                    f"signed inspection {inspection_id}: {exc}",
+                    "the signed records were changed outside inspectkit: put the signed "
+                    "content back from a backup or from the other laptop's bundle; the signed "
+                    "report the client holds is the reference (`inspectkit verify FILE --db`)",
+                )
+            )
+    return problems
 
 
 def photo_problems(store: Store, *, hash_photos: bool = True) -> list[HealthProblem]:

@@ -210,7 +210,14 @@ def remove_unreferenced(store: Store, shas: list[str]) -> list[str]:
         )
     dropped = [sha for sha in shas if sha not in named]
     for sha in dropped:
-        photo_path(store, sha).unlink(missing_ok=True)
+        path = photo_path(store, sha)
+        path.unlink(missing_ok=True)
+        # No empty folder left behind: its prefix folder, then the photo folder itself.
+        for folder in (path.parent, path.parent.parent):
+            try:
+                folder.rmdir()
+            except OSError:
+                break  # not empty (or not there): neither is anything above it
     return dropped
 
 

@@ -200,7 +200,11 @@ def _v3(db: sqlite_utils.Database) -> None:
 
 
 def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> None:
-    """Add columns to record tables, with an audit row for every row that gains them."""
+    """Add columns to record tables, with an audit row for every row that gains them.
+
+    The audit rows carry their keyed check once the audit table has the column
+    for it (from step `_trust` on).
+    """
     at = utcnow().isoformat()
     for table, columns in new.items():
         before = _rows(db, table)
@@ -209,12 +213,7 @@ def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> 
         after = _rows(db, table)
         changes = [(table, row_id, "migrate", row, after[row_id]) for row_id, row in before.items()]
         entries = audit.make_entries(audit.last_hash(db), changes, at=at, who="migration")
-        if entries:
-            names = list(entries[0])
-            db.conn.executemany(
-                f"INSERT INTO audit ({','.join(names)}) VALUES ({','.join('?' * len(names))})",
-                ([e[n] for n in names] for e in entries),
-            )
+        audit.insert_entries(db, entries)
 
 
 def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
@@ -254,6 +253,17 @@ def _entry_drafts(db: sqlite_utils.Database) -> None:
 def _retired_people_and_instruments(db: sqlite_utils.Database) -> None:
     """Inspectors and instruments can be retired: kept for the history, left out of pickers."""
     _add_columns(db, {"inspector": ("retired_on TEXT",), "instrument": ("retired_on TEXT",)})
+
+
+def _trust(db: sqlite_utils.Database) -> None:
+    """A seal on each signed inspection; a keyed check on each audit row written from now on.
+
+    The seal is what lets another database take an inspection as signed (see
+    `store.seal`); the key check is what a rewrite of the audit log without the
+    user's secret cannot forge (see `store.audit_key`). Rows written before have none.
+    """
+    _add_columns(db, {"inspection": ("seal TEXT NOT NULL DEFAULT ''",)})
+    db.execute("ALTER TABLE audit ADD COLUMN mac TEXT")
 
 
 #: Columns for earthing work: a reading's traverse, an electrode's form and size.
@@ -297,6 +307,7 @@ MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _v3,
     _entry_drafts,
     _retired_people_and_instruments,
+    _trust,
     _earthing,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

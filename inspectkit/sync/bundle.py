@@ -13,9 +13,12 @@ Layout (format `inspectkit-bundle`, version 1):
 - `photos/<sha256>`: photo files, named by their content hash.
 
 Reading a bundle checks all of it (members, hashes, every record through its
-model, bar those equal to the importing database's own rows); the photos are
-checked on worker threads while the records are checked and written, and the
-import commits nothing before both are done.
+model and against this computer's clock, bar those equal to the importing
+database's own rows); a photo file no record names, or more photo bytes than one
+import may write, refuses it before anything is staged; the photos are checked
+on worker threads while the records are checked and written, and the import
+commits nothing before both are done. A signed inspection's row carries its seal
+(`store.seal`), checked by the merge (`signers`).
 """
 
 from __future__ import annotations
@@ -31,17 +34,25 @@ from collections.abc import Iterator
 from concurrent.futures import ThreadPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, field
-from datetime import date
+from datetime import date, datetime
 from pathlib import Path
 from typing import Any, NamedTuple
 
 from pydantic import ValidationError
 
-from inspectkit.model import MODEL_FOR_TABLE, RECORD_TYPES, Record, explain, new_id, utcnow
+from inspectkit.model import (
+    MODEL_FOR_TABLE,
+    NAME_MAX,
+    RECORD_TYPES,
+    Record,
+    explain,
+    utcnow,
+)
 from inspectkit.store import Store
+from inspectkit.store.audit_key import database_id
 from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
-from inspectkit.store.rows import STORED, to_row
+from inspectkit.store.rows import to_row
 from inspectkit.sync.guard import (
     DEFAULT_LIMITS,
     MANIFEST,
@@ -49,8 +60,10 @@ from inspectkit.sync.guard import (
     RECORDS,
     BundleError,
     Limits,
+    bounded_photos,
     check_members,
     limit_for,
+    not_ahead,
     read_capped,
     same_hash,
 )
@@ -59,8 +72,6 @@ from inspectkit.sync.versions import known_versions, version_hash
 
 FORMAT = "inspectkit-bundle"
 VERSION = 1
-#: Setting naming this database in the bundles it writes.
-DATABASE_ID_SETTING = "sync.database_id"
 _SHA = re.compile(r"^[0-9a-f]{64}$")
 
 #: Fields that name another record, by table: field → table it points into.
@@ -80,7 +91,6 @@ REFERENCES: dict[str, dict[str, str]] = {
     "photo": {"inspection_id": "inspection", "component_id": "component"},
     "soil_survey": {"site_id": "site", "instrument_id": "instrument"},
 }
-
 
 
 @dataclass(frozen=True)
@@ -131,15 +141,6 @@ class Bundle:
             with _refusing_damage(self.path):
                 self._photos = self.checks.result()
         return self._photos
-
-
-def database_id(store: Store) -> str:
-    """This database's id in the bundles it writes; made on first export."""
-    value = store.get_setting(DATABASE_ID_SETTING)
-    if value is None:
-        value = new_id()
-        store.set_setting(DATABASE_ID_SETTING, value)
-    return value
 
 
 def export_bundle(
@@ -274,11 +275,13 @@ def reading_bundle(
             _same_schema(manifest, ours.schema_version())
         records = _read(archive, RECORDS, limits)
         same_hash(RECORDS, hashlib.sha256(records).hexdigest(), manifest["members"])
+    content = _json(records, RECORDS)
     pictures = [info for info in infos if info.filename.startswith(PHOTO_PREFIX)]
     hashes = [info.filename.removeprefix(PHOTO_PREFIX) for info in pictures]
     held = {sha for sha in hashes if ours is not None and photo_path(ours, sha).is_file()}
+    bounded_photos(content, pictures, held, limits)
     with PhotoChecks(path, pictures, manifest["members"], limits, staging, held) as checks:
-        found = _records(records, manifest, ours)
+        found = _records(content, manifest, ours)
         yield Bundle(path, manifest, *found, photo_hashes=hashes, checks=checks)
 
 
@@ -346,6 +349,11 @@ def _manifest(data: bytes, names: set[str]) -> dict[str, Any]:
         raise BundleError(f"member {odd!r} is {where}; the bundle is damaged or altered")
     if not isinstance(manifest.get("counts", {}), dict):
         raise BundleError(f"{MANIFEST}: 'counts' must map each table to a number")
+    name = manifest.get("site_name")
+    cap = NAME_MAX
+    if not isinstance(name, str) or len(name) > cap:
+        size = f"{len(name):,} characters" if isinstance(name, str) else "not text"
+        raise BundleError(f"{MANIFEST}: 'site_name' is {size}; a site's name has at most {cap}")
     return manifest
 
 
@@ -357,9 +365,8 @@ class _Checked(NamedTuple):
     same: dict[str, set[str]]
 
 
-def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Checked:
+def _records(content: Any, manifest: dict[str, Any], ours: Store | None) -> _Checked:
     """Every row checked through its model and found in the stored form, or equal to ours."""
-    content = _json(data, RECORDS)
     tables = content.get("tables") if isinstance(content, dict) else None
     raw_history = content.get("history", {}) if isinstance(content, dict) else None
     raw_deleted = content.get("deleted", {}) if isinstance(content, dict) else None
@@ -371,6 +378,7 @@ def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Chec
     rows: dict[str, list[dict[str, Any]]] = {}
     checked: dict[str, dict[str, Record]] = {}
     same: dict[str, set[str]] = {}
+    now = utcnow()
     for model in RECORD_TYPES:
         table_rows = tables.get(model.table, [])
         if not isinstance(table_rows, list):
@@ -379,7 +387,7 @@ def _records(data: bytes, manifest: dict[str, Any], ours: Store | None) -> _Chec
         seen: dict[str, Record] = {}
         equal: set[str] = set()
         for number, row in enumerate(table_rows, start=1):
-            record = None if _same_row(held, row) else _check_row(model, number, row)
+            record = None if _same_row(held, row) else _check_row(model, number, row, now)
             row_id = row["id"] if record is None else record.id
             if row_id in seen or row_id in equal:
                 raise BundleError(f"{model.table} {row_id} appears twice in the bundle")
@@ -446,18 +454,19 @@ def _same_row(held: dict[str, dict[str, Any]], row: Any) -> bool:
     )
 
 
-def _check_row(model: type[Record], number: int, row: Any) -> Record:
-    """A bundle row must validate and be exactly the row the store would hold.
+def _check_row(model: type[Record], number: int, row: Any, now: datetime) -> Record:
+    """A bundle row must validate, clock rules included, and be exactly the row the store holds.
 
-    Records are checked with every rule but the clock: they were entered on another
-    laptop, whose clock may run ahead of this one.
+    The other laptop's clock may run ahead of this one by `CLOCK_SKEW`, not more:
+    a time beyond that would win every later comparison, and show as a visit
+    or a reading that has not happened yet.
     """
     where = f"{model.table} record {number}"
     if not isinstance(row, dict):
         raise BundleError(f"{RECORDS}: {where} is not an object")
     where += f" (id {row.get('id')!r})"
     try:
-        record = model.model_validate(row, context=STORED)
+        record = model.model_validate(row, context={"now": now})
     except ValidationError as exc:
         raise BundleError(f"{RECORDS}: {where} is refused:\n{explain(exc)}") from None
     if to_row(record) != row:
@@ -465,4 +474,5 @@ def _check_row(model: type[Record], number: int, row: Any) -> Record:
             f"{RECORDS}: {where} is not in the stored form (extra, missing or reworded "
             "fields); export it again with inspectkit"
         )
+    not_ahead(record, f"{RECORDS}: {where}", now)
     return record

@@ -82,7 +82,7 @@ class ColumnMap:
                 )
             if name in columns:
                 raise CsvImportError([f"--map: field {name!r} is given twice"])
-            if column.isdigit():
+            if column.isascii() and column.isdigit():
                 if int(column) < 1:
                     raise CsvImportError([f"--map: {name}={column}: positions start at 1"])
                 columns[name] = int(column)
@@ -205,7 +205,7 @@ def import_readings_csv(
         except _RowError as exc:
             problems.append(f"row {number} (line {line}), column {exc.column!r}: {exc}")
     if problems:
-        raise CsvImportError([*problems, "nothing was imported; fix the rows above and run again"])
+        raise CsvImportError(_capped(problems))
     if not outcomes:
         raise CsvImportError([f"{path}: no rows to import"])
     outcomes = _mark_known(store, inspection_id, outcomes)
@@ -226,17 +226,40 @@ def _read_table(
     except UnicodeDecodeError:
         text = raw.decode("cp1252", errors="replace")
     delimiter = options.delimiter or _guess_delimiter(text)
+    delimiter = {"\\t": "\t", "tab": "\t"}.get(delimiter, delimiter)
+    if len(delimiter) != 1 or delimiter in "\"\r\n":
+        raise CsvImportError(
+            [f"--delimiter {delimiter!r}: give one character such as ; or , (a tab: \\t)"]
+        )
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     header = None
     records = []
-    for cells in reader:
-        if not any(cell.strip() for cell in cells):
-            continue
-        if options.header and header is None:
-            header = [cell.strip() for cell in cells]
-            continue
-        records.append((reader.line_num, cells))
+    try:
+        for cells in reader:
+            if not any(cell.strip() for cell in cells):
+                continue
+            if options.header and header is None:
+                header = [cell.strip() for cell in cells]
+                continue
+            records.append((reader.line_num, cells))
+    except csv.Error as exc:
+        raise CsvImportError(
+            [f"{path}: line {reader.line_num}: {exc}; a cell that long or that broken is not "
+             "an instrument's reading, check the file and --delimiter"]
+        ) from None  # fmt: skip
     return header, records
+
+
+#: At most this many problems are listed, then how many more there were.
+MAX_PROBLEMS = 20
+
+
+def _capped(problems: list[str]) -> list[str]:
+    """The first `MAX_PROBLEMS` problems, a count of the rest, and what to do."""
+    shown = problems[:MAX_PROBLEMS]
+    if len(problems) > MAX_PROBLEMS:
+        shown.append(f"… and {len(problems) - MAX_PROBLEMS:,} more rows refused")
+    return [*shown, "nothing was imported; fix the rows above and run again"]
 
 
 def _guess_delimiter(text: str) -> str:
@@ -409,9 +432,16 @@ class _RowReader:
                 self.label("taken_at", "taken_at"),
                 f"{text!r} is not a date and time; e.g. 2026-06-02 10:15 or 02/06/2026 10:15",
             ) from None
-        if when.tzinfo is None:
-            when = when.replace(tzinfo=self.options.tz)
-        return when.astimezone(UTC)
+        try:
+            if when.tzinfo is None:
+                when = when.replace(tzinfo=self.options.tz)
+            return when.astimezone(UTC)
+        except (OverflowError, ValueError):
+            # Year 1 or 9999 moved by a zone offset falls off the calendar.
+            raise _RowError(
+                self.label("taken_at", "taken_at"),
+                f"{text!r} is not a time a reading was taken; give a date of these years",
+            ) from None
 
 
 def _only_method(quantity: Quantity) -> Method | None:

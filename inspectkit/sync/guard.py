@@ -13,7 +13,10 @@ import stat
 import zipfile
 from collections.abc import Iterator
 from dataclasses import dataclass
-from typing import IO
+from datetime import date, datetime
+from typing import IO, Any
+
+from inspectkit.model import CLOCK_SKEW, Record
 
 MANIFEST = "manifest.json"
 RECORDS = "records.json"
@@ -21,6 +24,8 @@ PHOTO_PREFIX = "photos/"
 _PHOTO_NAME = re.compile(r"^photos/[0-9a-f]{64}$")
 #: Bytes read or written at a time when a member is copied.
 BLOCK = 1 << 20
+#: Days that are meant to lie ahead: when a defect must be put right, when calibration is due.
+_FUTURE_DAYS = frozenset({"due_by", "calibration_due"})
 
 
 class BundleError(Exception):
@@ -34,6 +39,8 @@ class Limits:
     Attributes:
         member_bytes: Most a photo may hold uncompressed (phone photos are 2–15 MB).
         records_bytes: Most `records.json` may hold uncompressed.
+        manifest_bytes: Most `manifest.json` may hold: counts and one hash per photo.
+        write_bytes: Most photo bytes one import may write to the disk.
         total_bytes: Most the whole bundle may unpack to.
         ratio: Highest uncompressed/compressed ratio for a member over `ratio_floor`
             bytes; record JSON packs about 5–15 to 1, photos about 1 to 1.
@@ -42,6 +49,8 @@ class Limits:
 
     member_bytes: int = 64 << 20
     records_bytes: int = 128 << 20
+    manifest_bytes: int = 16 << 20
+    write_bytes: int = 8 << 30
     total_bytes: int = 16 << 30
     ratio: float = 200.0
     ratio_floor: int = 1 << 20
@@ -116,7 +125,15 @@ def _check_name(name: str) -> None:
 
 def limit_for(name: str, limits: Limits) -> int:
     """The most bytes a member of that name may unpack to."""
+    if name == MANIFEST:
+        return limits.manifest_bytes
     return limits.member_bytes if name.startswith(PHOTO_PREFIX) else limits.records_bytes
+
+
+def site_label(manifest: dict[str, object]) -> str:
+    """The site's name as the manifest gives it (checked to be a name's length when read)."""
+    name = manifest.get("site_name")
+    return name if isinstance(name, str) else "?"
 
 
 def read_capped(handle: IO[bytes], name: str, cap: int) -> Iterator[bytes]:
@@ -138,3 +155,54 @@ def same_hash(name: str, sha: str, members: dict[str, str]) -> None:
             f"member {name!r} does not match the hash in the manifest; "
             "the bundle was damaged or altered, export it again"
         )
+
+
+def bounded_photos(
+    content: Any, pictures: list[zipfile.ZipInfo], held: set[str], limits: Limits
+) -> None:
+    """Refuse photo files no record of the bundle names, and more than one import may write.
+
+    Checked before a byte is staged: a bundle otherwise makes the disk hold what
+    it likes (files packed just under the ratio limit, all of them unwanted).
+    """
+    tables = content.get("tables") if isinstance(content, dict) else None
+    photo_rows = tables.get("photo", []) if isinstance(tables, dict) else []
+    if not isinstance(photo_rows, list):
+        photo_rows = []
+    named = {row.get("sha256") for row in photo_rows if isinstance(row, dict)}
+    for info in pictures:
+        if info.filename.removeprefix(PHOTO_PREFIX) not in named:
+            raise BundleError(
+                f"member {info.filename!r} is a photo file no record of the bundle names; "
+                "a bundle carries only the photos of its records, so it is refused"
+            )
+    writing = sum(
+        info.file_size for info in pictures if info.filename.removeprefix(PHOTO_PREFIX) not in held
+    )
+    if writing > limits.write_bytes:
+        raise BundleError(
+            f"the bundle would write {writing:,} bytes of photos, more than the "
+            f"{limits.write_bytes:,} bytes one import may write; export fewer records "
+            "(--since) and import them in turns"
+        )
+
+
+def not_ahead(record: Record, where: str, now: datetime) -> None:
+    """Refuse a time or day later than this computer's clock allows, naming the field."""
+    latest = now + CLOCK_SKEW
+    for name, value in record:
+        if name in _FUTURE_DAYS:
+            continue
+        if isinstance(value, datetime):
+            ahead = value > latest
+        elif isinstance(value, date):
+            ahead = value > latest.date()
+        else:
+            continue
+        if ahead:
+            raise BundleError(
+                f"{where}: {name} {value.isoformat()} is in the future (this "
+                f"computer's clock says {now.isoformat(timespec='minutes')}, and allows "
+                f"{CLOCK_SKEW.total_seconds() / 3600:g} h ahead); set the other laptop's clock "
+                "right, correct the record there and export again"
+            )

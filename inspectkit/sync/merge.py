@@ -24,8 +24,12 @@ A reading, finding or photo withdrawn on one side travels as a deletion:
 A signed inspection and what was recorded in it are never overwritten or deleted:
 the store refuses, and the record is reported as kept ours.
 
-Nothing is committed before everything is checked: the write is one transaction, and
-the photos, checked on other threads meanwhile, are waited for inside it.
+Nothing is committed before everything is checked: the plan is made and written in
+one transaction, which holds the write lock from the first read of our rows (so a
+reading saved meanwhile on this laptop cannot be overwritten by a plan made before
+it), and the photos, checked on other threads meanwhile, are waited for inside it.
+
+A bundle says nothing about whom to trust: see `signers`.
 """
 
 from __future__ import annotations
@@ -43,7 +47,8 @@ from inspectkit.store.exchange import DELETABLE, deleted_here
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
 from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
-from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits
+from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits, site_label
+from inspectkit.sync.signers import check_signed_inspections, untrusted_signers
 from inspectkit.sync.versions import known_versions, version_hash
 
 Side = Literal["ours", "theirs"]
@@ -88,6 +93,9 @@ class ImportReport:
     kept_deleted: int = 0
     #: Records withdrawn on one side, edited or signed on the other: they are kept.
     kept_edited: list[str] = field(default_factory=list)
+    #: Inspectors who came with a certificate not trusted here, and records no
+    #: signature covers, as sentences.
+    notices: list[str] = field(default_factory=list)
 
     @property
     def changed(self) -> bool:
@@ -121,6 +129,7 @@ class ImportReport:
         if self.photos_added:
             lines.append(f"  {self.photos_added} photo files {verb} added")
         lines.extend(f"  kept ours: signed — {message}" for message in self.kept_signed)
+        lines.extend(f"  {message}" for message in self.notices)
         for c in self.conflicts:
             lines.append(
                 f"  conflict: {c.table} {c.label} was edited on both sides "
@@ -144,6 +153,7 @@ class _Plan:
     removals: list[tuple[str, dict[str, Any]]] = field(default_factory=list)
     kept_deleted: int = 0
     kept_edited: list[str] = field(default_factory=list)
+    notices: list[str] = field(default_factory=list)
 
 
 class _DryRun(Exception):
@@ -178,12 +188,14 @@ def import_bundle(
         # its photo tree may become the photo folder.
         reading_bundle(path, limits, _stage(staging, dry_run), store) as bundle,
     ):
-        plan = _plan(store, bundle, prefer)
-        report = ImportReport(str(bundle.manifest.get("site_name", "")), dry_run=dry_run)
-        report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
-        report.kept_deleted, report.kept_edited = plan.kept_deleted, plan.kept_edited
+        report = ImportReport(site_label(bundle.manifest), dry_run=dry_run)
+        plan = _Plan()
         try:
             with store.transaction():
+                plan = _plan(store, bundle, prefer)
+                report.unchanged, report.kept_newer = plan.unchanged, plan.kept_newer
+                report.kept_deleted, report.kept_edited = plan.kept_deleted, plan.kept_edited
+                report.notices = plan.notices
                 _apply(store, plan, report)
                 # Checked meanwhile on other threads: a photo refused undoes the rows.
                 photos = bundle.checked_photos()
@@ -210,10 +222,15 @@ def _stage(staging: str, dry_run: bool) -> Path | None:
 
 
 def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
-    """Decide every record, after checking that all it references is here or in the bundle."""
+    """Decide every record, after checking what it references and what it says of signing.
+
+    Runs inside the import's write transaction: what it reads of ours stays so
+    until the plan is written.
+    """
     _check_references(store, bundle)
     _check_photo_files(store, bundle)
-    plan = _Plan(records=bundle.records)
+    notices = check_signed_inspections(store, bundle) + untrusted_signers(store, bundle)
+    plan = _Plan(records=bundle.records, notices=notices)
     signed_there = {r["id"] for r in bundle.rows["inspection"] if r["state"] == "signed"}
     for table, table_rows in bundle.rows.items():
         same = bundle.same.get(table, set())

@@ -26,6 +26,7 @@ from inspectkit.model import (
     SiteRecords,
     SoilSurvey,
 )
+from inspectkit.printable import printable
 from inspectkit.site_states import (
     NO_PROFILE,
     ProfileCache,
@@ -166,8 +167,13 @@ class SiteScreen(Screen[None]):
         ]
         self.query_one("#state", StateBadge).show(self.state.word)
         self.query_one("#site-title", Static).update(
-            f"[b]{site.name}[/b] · level {site.protection_level.value} · {site.client or '—'}, "
-            f"{site.town or '—'} · {site.profile}{' · ' + ', '.join(flags) if flags else ''}"
+            # Text, not markup: names are shown as typed, their control characters escaped.
+            Text.assemble(
+                (printable(site.name), "bold"),
+                f" · level {site.protection_level.value} · {printable(site.client) or '—'}, "
+                f"{printable(site.town) or '—'} · {printable(site.profile)}"
+                f"{' · ' + ', '.join(flags) if flags else ''}",
+            )
         )
         check = self.state.check
         self.query_one("#site-summary", Static).update(

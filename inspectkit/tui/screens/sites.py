@@ -16,6 +16,7 @@ from textual.widgets import DataTable, Footer, Header, Input, Static
 from textual.worker import get_current_worker
 
 from inspectkit.engine.standing import WORDS_WORST_FIRST
+from inspectkit.printable import printable
 from inspectkit.site_states import ERROR, SiteState, assess_all
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
@@ -280,7 +281,8 @@ class SitesScreen(Screen[None]):
         state_cell, due_cell = self._state_cells(row)
         # Text, not str: names are shown as typed, never read as markup.
         cells: tuple[object, ...] = (
-            state_cell, Text(row.name), Text(row.level), Text(row.client), Text(row.town), due_cell
+            state_cell, Text(printable(row.name)), Text(row.level), Text(printable(row.client)),
+            Text(printable(row.town)), due_cell
         )
         if self.wide:
             kind = row.state.next_kind.replace("_", "-") if row.state else ""
@@ -297,7 +299,7 @@ class SitesScreen(Screen[None]):
         status = Text(f"{shown} of {len(self.rows)} sites · sorted by {order}{judging}")
         if row is not None and row.state is not None and row.state.reason:
             status = Text.assemble(
-                (f"{row.name}: {row.state.word}", "bold"), f" · {row.state.reason}"
+                (f"{printable(row.name)}: {row.state.word}", "bold"), f" · {row.state.reason}"
             )
         self.query_one("#status", Static).update(status)
 

@@ -23,6 +23,7 @@ from inspectkit.model import (
     Quantity,
     SoilCondition,
 )
+from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
@@ -201,7 +202,7 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
         kept = drafts_for(self.store, self.inspection_id)
         self.drafts = {key: text for key, text in kept.texts.items() if key[0] in self._by_id}
         self._place = kept.place
-        self.title = site.name
+        self.title = printable(site.name)
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
         with Horizontal(id="bar"):
