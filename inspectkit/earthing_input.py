@@ -63,7 +63,8 @@ def parse_traverse(points: str, current_probe: str) -> Traverse:
     for position, reading in _pairs(points, "traverse", example, "position"):
         where = f"traverse point {position!r}"
         if position.endswith("%"):
-            distance = parse_fraction(position, where) * c
+            # To the micrometre, so 61.8 % of 50 m is stored as 30.9, not 30.900000000000002.
+            distance = round(parse_fraction(position, where) * c, 6)
         else:
             distance = parse_length(position, where)
         readings.append((distance, _ohms(reading, where)))
