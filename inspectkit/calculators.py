@@ -139,7 +139,7 @@ def rod(resistivity: str, length: str, diameter: str) -> Answer:
             "R = ρ/(2πL)·(ln(8L/d) − 1); uniform soil assumed: an estimate to compare a "
             "measurement with",
         ),
-        "Dwight 1936; IEEE Std 142 (published)",
+        "Dwight 1936; IEEE Std 142 (as quoted)",
         {"resistivity_ohm_m": rho, "length_m": length_m, "diameter_m": diameter_m},
         {"resistance_ohm": ohm},
     )
@@ -166,7 +166,7 @@ def wenner(spacing: str, resistance: str, depth: str = "") -> Answer:
     return Answer(
         "wenner",
         tuple(lines),
-        "IEEE Std 81, Wenner arrangement (simple form published; full form from memory)",
+        "IEEE Std 81, Wenner arrangement (simple form as quoted; full form from memory)",
         {"spacing_m": a, "resistance_ohm": r, "depth_m": b},
         {"resistivity_ohm_m": full, "resistivity_simple_ohm_m": simple},
     )
@@ -201,7 +201,7 @@ def traverse(
     return Answer(
         "traverse",
         tuple(lines),
-        "IEEE Std 81, fall-of-potential 61.8 % rule (published); 52 %/72 % within ±5 % and "
+        "IEEE Std 81, fall-of-potential 61.8 % rule (as quoted); 52 %/72 % within ±5 % and "
         "C ≥ 5 × the electrode (common practice)",
         {"current_probe_m": c, "electrode_size_m": size, "tolerance": tol},
         results,

@@ -34,6 +34,7 @@ from inspectkit.earthing_values import (
     canonical_traverse,
     read_survey,
 )
+from inspectkit.wording import with_article
 
 #: A reading may carry a time this far past the laptop's clock before it is refused:
 #: instrument clocks and laptop clocks drift apart, and time zones get mixed up.
@@ -304,6 +305,8 @@ class Severity(StrEnum):
     OK = "ok"
     WATCH = "watch"
     INCOMPLETE = "incomplete"
+    #: Readings that prove nothing (e.g. taken with a lapsed instrument): take them again.
+    RETAKE = "retake"
     FAIL = "fail"
     OVERDUE = "overdue"
 
@@ -317,8 +320,9 @@ _SEVERITY_RANK = {
     Severity.OK: 0,
     Severity.WATCH: 1,
     Severity.INCOMPLETE: 2,
-    Severity.FAIL: 3,
-    Severity.OVERDUE: 4,
+    Severity.RETAKE: 3,
+    Severity.FAIL: 4,
+    Severity.OVERDUE: 5,
 }
 
 
@@ -584,12 +588,36 @@ class Instrument(Record):
     retired_on: date | None = None
 
 
+class Organisation(Record):
+    """An inspecting organisation (a contractor): the letterhead of its inspectors' reports.
+
+    Kept on each laptop, not carried in site bundles; an inspector whose organisation
+    is not here is reported under the default one.
+    """
+
+    table: ClassVar[str] = "organisation"
+
+    name: str = Field(min_length=1, max_length=200)
+    address: str = Field(default="", max_length=500)
+    phone: str = Field(default="", max_length=100)
+    email: str = Field(default="", max_length=200)
+    #: Path of the logo image; empty for none.
+    logo: str = Field(default="", max_length=1000)
+    primary: str = Field(default="#1F4E79", pattern=r"^#[0-9a-fA-F]{6}$")
+    accent: str = Field(default="#C98A1B", pattern=r"^#[0-9a-fA-F]{6}$")
+    #: The organisation made at first start: reports of inspectors without one use it.
+    is_default: bool = False
+
+
 class Inspector(Record):
     """A person who signs inspections."""
 
     table: ClassVar[str] = "inspector"
 
     name: str = Field(min_length=1, max_length=200)
+    #: The organisation the inspector works for; its letterhead is on their reports.
+    organisation_id: str | None = None
+    #: The organisation's name as text, kept from before organisations were records.
     organisation: str = Field(default="", max_length=200)
     qualification: str = Field(default="", max_length=200)
     #: Path of the inspector's PKCS#12 key file, relative to the data folder.
@@ -720,7 +748,8 @@ class Reading(Record):
             if self.value < 0:
                 raise ValueError(
                     f"value {self.value:g} {quantity.unit} is negative; "
-                    f"a {quantity.label} is never below zero, check the sign or the leads"
+                    f"{with_article(quantity.label)} is never below zero, check the sign or "
+                    "the leads"
                 )
             if self.value > _QUANTITY_MAX[quantity]:
                 raise ValueError(
@@ -767,8 +796,11 @@ class Finding(Record):
     text: str = Field(default="", max_length=2000)
     remedial_action: str = Field(default="", max_length=2000)
     due_by: date | None = None
-    #: The inspection that found the defect put right.
+    #: The inspection that found the defect put right, or found it still present
+    #: (then a finding of that inspection names this one in `same_as_id`).
     resolved_by: str | None = None
+    #: The earlier open finding of the same fault this one repeats ("still present").
+    same_as_id: str | None = None
 
     @field_validator("grade", mode="before")
     @classmethod

@@ -9,10 +9,11 @@ bad one is reported with the file and the key so it can be fixed.
 
 from __future__ import annotations
 
+from functools import cache
 from pathlib import Path
 from typing import Any
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from inspectkit.model import ProtectionLevel, Quantity
 from inspectkit.paths import templates_dir, user_config_dir
@@ -114,14 +115,30 @@ class EarthingFigures(BaseModel):
 
 
 class Profile(BaseModel):
-    """One rule set; a site names the profile it is held to."""
+    """One rule set; a site names the profile it is held to.
+
+    A standard that grades structures by protection level (IEC 62305) gives
+    `intervals` for every level. One that does not (NFPA 780), or a practice of one
+    fixed period whatever the level (BS 6651), gives one `interval` instead, with
+    `interval_mark` saying so; `levels = false` says the standard has no levels at
+    all, so sites held to it show none.
+    """
 
     model_config = ConfigDict(extra="forbid", frozen=True)
 
     name: str = Field(min_length=1)
     title: str = ""
     standard: str = ""
-    intervals: dict[ProtectionLevel, LevelIntervals]
+    #: The standard grades structures by protection level I–IV.
+    levels: bool = True
+    intervals: dict[ProtectionLevel, LevelIntervals] = Field(default_factory=dict)
+    #: One set of periods for every site, whatever its level.
+    interval: LevelIntervals | None = None
+    #: Said as the basis of `interval`, e.g. "BS 6651 practice: fixed interval".
+    interval_mark: str = ""
+    #: Without levels: structures up to this height take Class I materials, taller
+    #: ones Class II (NFPA 780's own terms).
+    class_height_m: float | None = Field(default=None, gt=0)
     explosive: ExplosiveIntervals
     limits: Limits
     triggers: Triggers
@@ -129,17 +146,45 @@ class Profile(BaseModel):
     #: The file it was read from, for messages.
     source: str = ""
 
-    @field_validator("intervals")
-    @classmethod
-    def _every_level(
-        cls, value: dict[ProtectionLevel, LevelIntervals]
-    ) -> dict[ProtectionLevel, LevelIntervals]:
-        missing = [level.value for level in ProtectionLevel if level not in value]
+    @model_validator(mode="after")
+    def _periods(self) -> Profile:
+        if self.interval is not None:
+            if self.intervals:
+                raise ValueError(
+                    "intervals: give either [interval] (one period for every site) or "
+                    "[intervals.<level>] for each level, not both"
+                )
+            return self
+        if not self.levels:
+            raise ValueError("interval: a profile without levels needs one [interval] table")
+        missing = [level.value for level in ProtectionLevel if level not in self.intervals]
         if missing:
             raise ValueError(
-                f"no intervals for level {', '.join(missing)}; add [intervals.<level>]"
+                f"intervals: no intervals for level {', '.join(missing)}; "
+                "add [intervals.<level>], or one [interval] for every site"
             )
-        return value
+        return self
+
+    def intervals_for(self, level: ProtectionLevel) -> LevelIntervals:
+        """The periods for a site of that level (the same for all with one `interval`)."""
+        return self.interval if self.interval is not None else self.intervals[level]
+
+    def grading(self, level: ProtectionLevel, height_m: float | None) -> tuple[str, str]:
+        """How a site is graded in the standard's own terms, as (label, value) words."""
+        if self.levels:
+            return "Protection level", f"LPL {level.value}"
+        if self.class_height_m is None or height_m is None:
+            return "Protection level", f"none ({self.title or self.name} uses no levels)"
+        limit = f"{self.class_height_m:g} m"
+        if height_m <= self.class_height_m:
+            return "Material class", f"Class I (structure up to {limit})"
+        return "Material class", f"Class II (structure taller than {limit})"
+
+    def interval_basis(self, level: ProtectionLevel) -> str:
+        """Why a site gets its periods: "level II", or the profile's fixed-interval mark."""
+        if self.interval is None:
+            return f"level {level.value}"
+        return self.interval_mark or "one interval for every site"
 
     def limit_for(self, quantity: Quantity, electrode_count: int = 1) -> float | None:
         """The acceptance limit for a quantity, or None where the profile sets none."""
@@ -196,3 +241,17 @@ def load_profile(name: str) -> Profile:
 def load_all_profiles() -> dict[str, Profile]:
     """Every profile, checked; used where many sites are checked at once."""
     return {name: load_profile(name) for name in profile_paths()}
+
+
+@cache
+def _uses_levels(name: str) -> bool:
+    """Whether the profile of that name grades sites by level (an unreadable one: yes)."""
+    try:
+        return load_profile(name).levels
+    except ProfileError:
+        return True
+
+
+def level_shown(profile: str, level: str, none: str | None = "—") -> str | None:
+    """A site's level as lists show it: `none` under a profile whose standard has no levels."""
+    return str(level) if _uses_levels(profile) else none

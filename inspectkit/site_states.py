@@ -14,6 +14,7 @@ from pathlib import Path
 
 from inspectkit.engine.check import SiteCheck, check_site
 from inspectkit.engine.history import series
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.standing import order_key, standing
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_profile
@@ -138,11 +139,12 @@ def reading_verdicts(check: SiteCheck, records: SiteRecords) -> dict[str, str]:
     """
     by_reading: dict[str, Severity] = {}
     for result in check.results:
-        known = by_reading.get(result.reading_id or "")
-        if result.reading_id and (known is None or result.severity.rank > known.rank):
-            by_reading[result.reading_id] = result.severity
+        for reading_id in filter(None, (result.reading_id, *result.reading_ids)):
+            known = by_reading.get(reading_id)
+            if known is None or result.severity.rank > known.rank:
+                by_reading[reading_id] = result.severity
     verdicts = {}
     for readings in series(records.readings).values():
         severity = by_reading.get(readings[-1].id, Severity.OK)
-        verdicts[readings[-1].id] = "pass" if severity is Severity.OK else severity.value
+        verdicts[readings[-1].id] = SEVERITY_WORDS[severity].word
     return verdicts

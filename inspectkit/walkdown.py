@@ -23,7 +23,7 @@ from inspectkit.engine.check import check_site
 from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
-from inspectkit.engine.results import Result
+from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
     WALKING_ORDER,
     Component,
@@ -50,6 +50,7 @@ from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError, drafts
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif
 from inspectkit.units import Measured, UnitError, format_value, parse
+from inspectkit.wording import with_article
 
 #: What can be measured on each kind of component during a walkdown, in entry order.
 #: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
@@ -355,7 +356,8 @@ def record_reading(
         allowed = ", ".join(q.label for q in QUANTITIES_FOR[component.kind]) or "none"
         raise WalkdownError(
             "quantity",
-            f"a {quantity.label} is not measured on a {component.kind.label}; "
+            f"{with_article(quantity.label)} is not measured on "
+            f"{with_article(component.kind.label)}; "
             f"readings here: {allowed}",
         )
     if traverse is not None:
@@ -570,7 +572,8 @@ def _about(results: Iterable[Result], reading: Reading) -> list[Result]:
     return [
         r
         for r in results
-        if r.component_id == reading.component_id and r.reading_id in (None, reading.id)
+        if r.covers(reading.id)
+        or (r.component_id == reading.component_id and r.reading_id is None and not r.reading_ids)
     ]
 
 
@@ -636,13 +639,7 @@ def _compared(reading: Reading, limit: float | None, severity: Severity) -> str:
     return f"{word} {shown} > {bound}"
 
 
-_WORD = {
-    Severity.OK: "PASS",
-    Severity.WATCH: "WATCH",
-    Severity.INCOMPLETE: "INCOMPLETE",
-    Severity.FAIL: "FAIL",
-    Severity.OVERDUE: "OVERDUE",
-}
+_WORD = {s: w.shout for s, w in SEVERITY_WORDS.items()}
 
 
 def _comparison(reading: Reading, previous: Reading | None, records: SiteRecords) -> str:

@@ -23,6 +23,7 @@ from inspectkit.store.database import apply_migrations
 from inspectkit.store.health import check_health
 from inspectkit.store.photos import attach_photo, photo_path
 from inspectkit.store.schema import SCHEMA_VERSION
+from inspectkit.wording import counted
 
 _WRITER = textwrap.dedent(
     """
@@ -212,7 +213,7 @@ def test_a_backup_carries_its_photos_and_opens_with_them(tmp_path):
     target = tmp_path / "safe" / "monday.bak"
     result = CliRunner().invoke(app, ["backup", "--db", str(db), "-o", str(target)])
     assert result.exit_code == 0, result.output
-    assert f"{len(names)} photo file(s) copied" in result.output
+    assert f"{counted(len(names), 'photo file')} copied" in result.output
     with Store.open(target, create=False) as copy:
         assert copy.photos_dir == tmp_path / "safe" / "monday-photos"
         assert check_health(copy) == []  # every photo present, and each matches its hash
@@ -254,7 +255,7 @@ def test_a_restore_puts_the_backup_and_its_photos_back_and_keeps_what_it_replace
         shutil.rmtree(store.photos_dir)
     result = CliRunner().invoke(app, ["restore", "--db", str(db), str(backup)])
     assert result.exit_code == 0, result.output
-    assert f"{len(names)} photo file(s) brought back" in result.output
+    assert f"{counted(len(names), 'photo file')} brought back" in result.output
     with Store.open(db) as store:
         assert store.get(Site, records.site.id).notes == ""
         assert photo_files(store) == names and check_health(store) == []

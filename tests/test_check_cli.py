@@ -64,8 +64,8 @@ def test_table_lists_worst_site_first_with_words_not_colour(db):
     assert lines[0].startswith("Quarry Office  [FAIL]  1 fail")
     assert lines[1].split()[:2] == ["FAIL", "E-01"]
     assert "14.2 Ω" in lines[1] and "10 Ω limit" in lines[1]
-    assert lines[2].startswith("Mill House  [OK]  all clear")
-    assert lines[-1].startswith("2 site(s) checked: 1 need action")
+    assert lines[2].startswith("Mill House  [PASS]  all clear")
+    assert lines[-1].startswith("2 sites checked: 1 needs action")
 
 
 def test_json_objects_carry_the_agreed_keys(db):
@@ -82,6 +82,7 @@ def test_json_objects_carry_the_agreed_keys(db):
         "limit",
         "unit",
         "due",
+        "readings",
     }
     assert item["site"] == "Quarry Office" and item["severity"] == "fail"
     assert item["value"] == 14.2 and item["limit"] == 10.0 and item["unit"] == "Ω"
@@ -90,7 +91,7 @@ def test_json_objects_carry_the_agreed_keys(db):
 def test_clean_site_exits_0(db):
     result = _run("--db", str(db), "--today", "2026-04-01", "--site", "mill")
     assert result.exit_code == 0, result.output
-    assert result.output.startswith("Mill House  [OK]")
+    assert result.output.startswith("Mill House  [PASS]")
 
 
 @pytest.mark.parametrize(

@@ -41,7 +41,7 @@ def test_the_table_says_late_in_words_and_exits_1(demo: Path) -> None:
     assert result.exit_code == 1  # a finding past its due date is something to act on
     late = [line for line in result.stdout.splitlines() if " LATE " in line]
     assert late and all(SITE in line or "LATE" in line for line in late)
-    assert result.stdout.rstrip().endswith("open finding(s).")
+    assert result.stdout.rstrip().endswith("open findings.")
     early = run(demo, "findings", "--today", "2020-01-01")
     assert early.exit_code == 0 and " LATE " not in early.stdout
 

@@ -140,7 +140,7 @@ def test_a_whole_walkdown_by_commands(demo: Path, tmp_path: Path) -> None:
     assert "FAIL 25 Ω > 10 Ω" in verdicts["E-02 earth_isolated"]
     assert "PASS 4.2 Ω ≤ 10 Ω" in verdicts["E-01 earth_isolated"]
     assert "% on 2026-03-03" in verdicts["E-01 earth_isolated"]  # against the last visit
-    # Continuity default limit 0.2 Ω (from memory, DOMAIN.md §3).
+    # Continuity default limit 0.2 Ω (from memory, docs/sources.md "Rules of the trade").
     assert "PASS 120 mΩ ≤ 200 mΩ" in verdicts["DC-01 continuity"]
 
     text = run(demo, "inspection", "show", visit)
@@ -370,7 +370,7 @@ def test_a_folder_of_photos_is_matched_by_time(demo: Path, tmp_path: Path) -> No
     assert "IMG_1.jpg → E-01" in result.stdout
     assert "IMG_2.jpg → the inspection only" in result.stdout
     again = run(demo, "photo", "add", "--inspection", visit, str(card))
-    assert "0 photo(s) attached." in again.stdout
+    assert "0 photos attached." in again.stdout
 
 
 def test_show_lists_the_walk_in_order(demo: Path) -> None:

@@ -235,7 +235,7 @@ def test_2_drifting_electrode_crosses_before_the_next_complete_inspection(demo: 
     crossing = series[0].taken_at.date() + timedelta(days=(limit - intercept) / slope * 365.25)
     last_complete = finished(records, InspectionKind.COMPLETE)[-1].date
     next_complete = last_complete + relativedelta(
-        months=profile.intervals[records.site.protection_level].complete_months
+        months=profile.intervals_for(records.site.protection_level).complete_months
     )
     assert ANCHOR < crossing < next_complete
 
@@ -243,7 +243,7 @@ def test_2_drifting_electrode_crosses_before_the_next_complete_inspection(demo: 
 def test_3_overdue_site(demo: Store) -> None:
     records = site(demo, "Greyholm Secondary School")
     profile = load_profile(records.site.profile)
-    months = profile.intervals[records.site.protection_level].complete_months
+    months = profile.intervals_for(records.site.protection_level).complete_months
     last = finished(records, InspectionKind.COMPLETE, InspectionKind.INITIAL)[-1].date
     assert last + relativedelta(months=months) < ANCHOR - timedelta(days=200)
 
@@ -255,7 +255,7 @@ def test_4_explosive_site_is_due_on_its_short_interval_only(demo: Store) -> None
     kinds = (InspectionKind.VISUAL, InspectionKind.COMPLETE, InspectionKind.INITIAL)
     last_visual = finished(records, *kinds)[-1].date
     short = profile.explosive.visual_months
-    normal = profile.intervals[records.site.protection_level].visual_months
+    normal = profile.intervals_for(records.site.protection_level).visual_months
     assert last_visual + relativedelta(months=short) < ANCHOR
     assert last_visual + relativedelta(months=normal) > ANCHOR
 
@@ -347,12 +347,14 @@ def test_10_one_walkdown_in_progress_and_nothing_signed(demo: Store) -> None:
 
 #: What the engine must say about each site, as (severity, rule); an empty set: all clear.
 ENGINE_SEES = {
-    "Aldermere Water Treatment Works": {("fail", "limit"), ("fail", "carried-defect")},
+    "Aldermere Water Treatment Works": {("fail", "limit"), ("overdue", "carried-defect")},
+    # A defect graded at the last visit fails at once; its remedy date is advice.
+    "Brackenholt Community Hospital": {("fail", "carried-defect")},
     "Eskfold Civic Offices": {("watch", "trend")},
     "Greyholm Secondary School": {("overdue", "schedule")},
     "Coldharrow Fuel Depot": {("overdue", "schedule")},
     "Hartle Cross Telephone Exchange": {("overdue", "strike-counter")},
-    "Larkmoor Distribution Centre": {("fail", "calibration")},
+    "Larkmoor Distribution Centre": {("retake", "calibration")},
     "Pellow Ridge Quarry Offices": {("incomplete", "incomplete")},
     "Tollbeck Leisure Centre": {("incomplete", "incomplete")},
     "Fennick Magna Parish Church": set(),
@@ -445,7 +447,9 @@ def test_cli_writes_the_demo_and_lists_its_sites(tmp_path: Path) -> None:
     sites = json.loads(listed.stdout)
     assert len(sites) == len(load_scenario().site)
     assert all({"id", "name", "protection_level"} <= set(s) for s in sites)
-    assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV"}
+    # NFPA 780 uses no protection levels: sites held to it list none (docs/sources.md).
+    assert {s["protection_level"] for s in sites} == {"I", "II", "III", "IV", None}
+    assert all(s["protection_level"] is None for s in sites if s["profile"] == "nfpa-780")
     assert "fuel depot" in " ".join(s["use"] for s in sites) and all(s["installer"] for s in sites)
     again = runner.invoke(app, ["demo", "--out", str(out)])
     assert again.exit_code == 2

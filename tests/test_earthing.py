@@ -113,7 +113,7 @@ def test_rod_resistance_refuses_out_of_domain(args: tuple[float, float, float], 
 
 
 def test_wenner_simple_numeric_example() -> None:
-    # IEEE Std 81, ρ = 2π·a·R (published, as quoted): a = 3 m, R = 10 Ω → 188.5 Ω·m.
+    # IEEE Std 81, ρ = 2π·a·R (as quoted): a = 3 m, R = 10 Ω → 188.5 Ω·m.
     assert wenner_resistivity_simple(3.0, 10.0) == pytest.approx(188.5, abs=0.05)
 
 
@@ -168,7 +168,7 @@ def test_wenner_refuses_out_of_domain(args: tuple[float, float, float], name: st
 
 
 def test_potential_probe_at_61_8_percent() -> None:
-    # IEEE Std 81, the 61.8 % rule (published).
+    # IEEE Std 81, the 61.8 % rule (as quoted).
     assert potential_probe_distance(50.0) == pytest.approx(30.9)
     assert potential_probe_distance(100.0) == pytest.approx(61.8)
 
@@ -195,7 +195,7 @@ def test_probe_placement_refuses_out_of_domain(call, name: str) -> None:  # noqa
 
 
 def test_plateau_valid_when_52_and_72_percent_agree() -> None:
-    # IEEE Std 81 (61.8 %, published); ±5 % agreement at 52 % and 72 % (common practice).
+    # IEEE Std 81 (61.8 %, as quoted); ±5 % agreement at 52 % and 72 % (common practice).
     points = [(20.0, 9.6), (26.0, 10.0), (30.9, 10.2), (36.0, 10.5), (42.0, 11.5)]
     result = plateau_check(points, 50.0)
     assert isinstance(result, PlateauResult)
@@ -359,7 +359,7 @@ def test_parallel_refuses_out_of_domain(call, name: str) -> None:  # noqa: ANN00
 @pytest.mark.parametrize(
     ("level", "rho", "expected"),
     [
-        # IEC 62305-3 Figure 2, key points from memory (DOMAIN.md §4).
+        # IEC 62305-3 Figure 2, key points from memory (docs/sources.md, "IEC 62305-3").
         (I, 100.0, 5.0),
         (I, 500.0, 5.0),
         (I, 1000.0, 20.0),
@@ -414,10 +414,10 @@ def test_min_electrode_length_refuses_out_of_domain(
 
 
 def test_level_tables_against_the_standard() -> None:
-    # IEC 62305-3 Table 2: rolling sphere radius and mesh size (published).
+    # IEC 62305-3 Table 2: rolling sphere radius and mesh size (as quoted).
     assert dict(ROLLING_SPHERE_RADIUS_M) == {I: 20.0, II: 30.0, III: 45.0, IV: 60.0}
     assert dict(MESH_SIZE_M) == {I: 5.0, II: 10.0, III: 15.0, IV: 20.0}
-    # IEC 62305-3 Table 4: typical distance between down conductors (published).
+    # IEC 62305-3 Table 4: typical distance between down conductors (as quoted).
     assert dict(DOWN_CONDUCTOR_SPACING_M) == {I: 10.0, II: 10.0, III: 15.0, IV: 20.0}
     # IEC 62305-1 Table 5: minimum peak current per level (from memory).
     assert dict(MIN_PEAK_CURRENT_KA) == {I: 3.0, II: 5.0, III: 10.0, IV: 16.0}

@@ -40,7 +40,7 @@ def hemisphere_traverse(rho: float, radius: float, c: float) -> list[tuple[float
 
 
 def test_61_8_percent_value_is_the_hemisphere_resistance() -> None:
-    # IEEE Std 81 (61.8 % rule, published): at x = 0.618·D the terms 1/x, 1/(D − x)
+    # IEEE Std 81 (61.8 % rule, as quoted): at x = 0.618·D the terms 1/x, 1/(D − x)
     # and 1/D cancel, so the reading is the true ρ/(2πr) of the hemisphere.
     rho, radius, c = 100.0, 1.0, 60.0
     result = plateau_check(hemisphere_traverse(rho, radius, c), c)
@@ -123,7 +123,7 @@ def test_wenner_full_form_recovers_rho_from_the_image_method(a: float, b: float)
 
 
 def test_wenner_calculator_against_ieee_81_simple_form() -> None:
-    # IEEE Std 81, ρ = 2π·a·R (published, as quoted): a = 3 m, R = 10 Ω → 188.5 Ω·m.
+    # IEEE Std 81, ρ = 2π·a·R (as quoted): a = 3 m, R = 10 Ω → 188.5 Ω·m.
     answer = calculators.wenner("3 m", "10 Ω")
     assert answer.results["resistivity_ohm_m"] == pytest.approx(2 * math.pi * 30, rel=1e-12)
     assert answer.lines[0] == "ρ = 188.5 Ω·m at a = 3 m"

@@ -23,7 +23,65 @@ def test_every_builtin_profile_loads() -> None:
     profiles = load_all_profiles()
     assert set(BUILTIN) <= set(profiles)
     for profile in profiles.values():
-        assert set(profile.intervals) == set(ProtectionLevel)
+        assert profile.interval is not None or set(profile.intervals) == set(ProtectionLevel)
+
+
+def test_nfpa_780_has_no_protection_levels_and_one_period_for_every_site() -> None:
+    # NFPA 780 does not use protection levels I–IV (docs/sources.md, "NFPA 780").
+    nfpa = load_profile("nfpa-780")
+    assert not nfpa.levels and nfpa.intervals == {}
+    periods = {nfpa.intervals_for(level) for level in ProtectionLevel}
+    assert len(periods) == 1
+    # Annex D: visual every year, complete every 3-5 years (from memory).
+    (only,) = periods
+    assert only.visual_months == 12 and 36 <= only.complete_months <= 60
+    assert "NFPA 780" in nfpa.interval_basis(ProtectionLevel.II)
+    # Its own terms instead: Class I materials up to about 23 m, Class II above (as
+    # commonly quoted); no "LPL".
+    assert nfpa.grading(ProtectionLevel.II, 15.0) == (
+        "Material class",
+        "Class I (structure up to 23 m)",
+    )
+    assert nfpa.grading(ProtectionLevel.II, 40.0)[1].startswith("Class II")
+    assert "LPL" not in nfpa.grading(ProtectionLevel.I, None)[1]
+    assert load_profile("iec-62305-3").grading(ProtectionLevel.II, 15.0) == (
+        "Protection level",
+        "LPL II",
+    )
+
+
+def test_nfpa_780_earth_figures_are_not_attributed_to_nfpa_780() -> None:
+    text = (builtin_profiles_dir() / "nfpa-780.toml").read_text(encoding="utf-8")
+    for line in text.splitlines():
+        if line.startswith(("earth_isolated", "earth_combined")):
+            assert "our default" in line, line
+
+
+def test_bs_6651_practice_is_a_fixed_interval_whatever_the_level() -> None:
+    # BS 6651 practice: at most 12 months between inspections whatever the level
+    # (from memory of the old standard; docs/sources.md, "BS 6651").
+    bs = load_profile("bs-6651-practice")
+    assert {bs.intervals_for(level).visual_months for level in ProtectionLevel} == {12}
+    assert {bs.intervals_for(level).complete_months for level in ProtectionLevel} == {12}
+    assert bs.interval_basis(ProtectionLevel.IV) == "BS 6651 practice: fixed 12-month interval"
+
+
+def test_a_profile_gives_either_one_interval_or_one_per_level(tmp_path) -> None:
+    from inspectkit.profiles import load_profile_file
+
+    text = (builtin_profiles_dir() / "bs-6651-practice.toml").read_text(encoding="utf-8")
+    both = tmp_path / "both.toml"
+    both.write_text(
+        text + "\n[intervals.I]\nvisual_months = 12\ncomplete_months = 24\n"
+        "critical_complete_months = 12\n",
+        encoding="utf-8",
+    )
+    with pytest.raises(ProfileError, match="not both"):
+        load_profile_file(both)
+    neither = tmp_path / "neither.toml"
+    neither.write_text(text.replace("[interval]", "[unused]"), encoding="utf-8")
+    with pytest.raises(ProfileError):
+        load_profile_file(neither)
 
 
 def test_every_number_in_a_builtin_profile_names_its_source() -> None:
@@ -112,3 +170,13 @@ def test_broken_toml() -> None:
     with pytest.raises(ProfileError, match="not valid TOML"):
         load_profile("broken")
     assert path.exists()
+
+
+def test_the_site_form_does_not_ask_a_level_of_a_site_whose_standard_has_none() -> None:
+    from inspectkit.model import Site
+    from inspectkit.tui.dialogs.editors import site_dialog
+
+    nfpa = site_dialog(Site(name="Grain Store", protection_level="IV", profile="nfpa-780"))
+    iec = site_dialog(Site(name="Depot", protection_level="II", profile="iec-62305-3"))
+    assert "protection_level" not in [f.name for f in nfpa.fields]
+    assert "protection_level" in [f.name for f in iec.fields]

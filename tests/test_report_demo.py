@@ -58,3 +58,21 @@ def test_a_demo_report_renders_with_every_reading(demo: Path, monkeypatch) -> No
     for row in content.readings:
         assert row.value in text and row.limit in text and row.result.split(":")[0] in text
     assert f"page {len(reader.pages)} of {len(reader.pages)}" in text
+
+
+def test_a_repeat_defect_shows_how_long_the_fault_has_been_open(demo: Path) -> None:
+    from inspectkit.engine.check import check_site
+    from inspectkit.profiles import load_profile
+    from inspectkit.store.queries import load_site_records
+
+    with Store.open(demo, create=False) as store:
+        site = store.select(Site, "name LIKE 'Greyholm%'")[0]
+        content = build_report(store, latest_inspection(store, site.id).id)
+        records = load_site_records(store, site.id)
+    (repeat,) = [f for f in content.findings if f.tag == "AT-05"]
+    assert repeat.history.startswith("The same fault as found ")
+    assert "closed as still present, see this one" in repeat.history
+    # The engine lists the fault once, with its age from when it was first found.
+    check = check_site(records, load_profile(records.site.profile), ANCHOR)
+    at05 = [r for r in check.results if r.rule == "carried-defect" and r.component_tag == "AT-05"]
+    assert len(at05) == 1 and "still present on" in at05[0].message

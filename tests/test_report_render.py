@@ -91,10 +91,12 @@ def test_photos_and_charts_are_in_the_pdf(built) -> None:
     assert images == len(made.photo_ids) == 2
     text = " ".join(pages)
     assert "View 1 of the north façade" in text
-    # Both electrodes have three readings: a trend chart each, with the forecast crossing.
+    # Both electrodes have three readings: a trend chart each. E-02 is above its limit
+    # already (12.4 Ω against 10 Ω), so it gets no forecast crossing, only since when.
     assert {t.tag for t in content.trends} == {"E-01", "E-02"}
     assert "E-01: earth resistance (Ω)" in text and "E-02: earth resistance (Ω)" in text
-    assert "reaches limit 2026-06-21" in text
+    (e02,) = [t for t in content.trends if t.tag == "E-02"]
+    assert e02.crossing is None and "above the 10 Ω limit since about" in e02.summary
 
 
 def test_photo_choice_leaves_the_others_out(built) -> None:
@@ -232,3 +234,67 @@ def test_plain_text_sections_carry_the_details(built) -> None:
     assert "Accompanied by: Ulrike Sæbø, farm manager" in sections["Inspection"]
     assert "Notes: Keys to the roof hatch from the farm office" in sections["Inspection"]
     assert sections[CHANGES_TITLE] == (VISIT_DETAILS["changes_since_last"],)
+
+
+def test_first_page_gives_the_result_what_to_do_by_when_and_the_visits(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    _, pages = _text(render_report(content, load_branding()).data)
+    first = pages[0]
+    assert "ACTION NEEDED" in first and "What to do, by when" in first
+    # The TJ-02 defect graded at this visit fails now; its date is advice.
+    defect = next(a for a in content.actions if a.tag == "TJ-02")
+    assert defect.result == "FAIL" and defect.when == "now (advised by 2026-12-15)"
+    assert defect.when in first
+    assert "Visits this needs" in first and "1 return visit as soon as possible" in first
+    assert "next complete inspection by" in first
+
+
+def test_sound_components_are_a_compact_table_and_the_summary_counts_actions(built) -> None:
+    store, made = built
+    content = build_report(store, made.current.id)
+    assert [(r.tag, r.remark) for r in content.sound] == [("AT-01", "Upright and secure")]
+    assert [f.tag for f in content.findings] == ["TJ-02"]  # only what to act on
+    assert content.findings[0].priority.startswith("Priority 1")
+    assert content.headline[0].startswith(f"{len(content.actions)} actions: ")
+    assert "1 finding to act on (1 defect); 1 component found sound" in content.headline
+    _, pages = _text(render_report(content, load_branding()).data)
+    text = " ".join(pages)
+    assert "Components found sound" in text and "sound: Upright and secure" in text
+    assert "SOUND — No remark" not in text and "Priority 1: defects" in text
+
+
+def test_the_report_explains_every_result_word(built) -> None:
+    from inspectkit.engine.results import SEVERITY_WORDS
+
+    store, made = built
+    content = build_report(store, made.current.id)
+    _, pages = _text(render_report(content, load_branding()).data)
+    text = " ".join(pages)
+    assert "What the result words mean" in text
+    for word in SEVERITY_WORDS.values():
+        assert word.shout in text and " ".join(word.meaning.split()[:4]) in text
+
+
+def test_the_soil_printed_is_the_one_recorded_with_the_readings(built) -> None:
+    from inspectkit.model import Quantity, SoilCondition
+
+    store, made = built
+    kinds = (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED, Quantity.SOIL_RESISTIVITY)
+    earth = [r for r in made.readings if r.quantity in kinds]
+    # Soil recorded with every earth reading (common practice): said once for the visit.
+    for reading in earth:
+        store.save(reading.model_copy(update={"soil": SoilCondition.WET}))
+    content = build_report(store, made.current.id)
+    soil = next(f.value for f in content.inspection if f.label == "Soil")
+    assert soil == "wet (recorded with every earth reading)"
+    assert all(r.soil == "" for r in content.readings)
+    # Where they differ, the visit's line counts them and each reading says its own.
+    store.save(earth[0].model_copy(update={"soil": SoilCondition.DRY}))
+    content = build_report(store, made.current.id)
+    soil = next(f.value for f in content.inspection if f.label == "Soil")
+    assert soil == f"differs by reading: {len(earth) - 1} wet, 1 dry; see each reading"
+    by_id = {r.reading_id: r.soil for r in content.readings}
+    assert by_id[earth[0].id] == "dry" and by_id[earth[1].id] == "wet"
+    _, pages = _text(render_report(content, load_branding()).data)
+    assert "soil dry" in " ".join(pages)

@@ -61,7 +61,8 @@ def test_over_range_fails_a_lower_limit_and_is_inconclusive_above_it():
 
 
 def test_per_electrode_limit_scales_with_the_number_of_electrodes():
-    # BS 6651 practice (published in the old standard): each electrode ≤ 10 Ω × electrodes.
+    # BS 6651 practice (from memory of the old standard, docs/sources.md "BS 6651"):
+    # each electrode ≤ 10 Ω × electrodes.
     site = SiteBuilder("II", profile="bs-6651-practice")
     electrodes = [site.joint_with_electrode(n)[1] for n in (1, 2, 3)]
     visit = site.visit(date(2026, 3, 1))
@@ -98,25 +99,67 @@ def test_small_rise_is_no_result():
     assert _by_rule(site, "rise") == []
 
 
-def test_lapsed_instrument_reading_fails_and_does_not_pass():
-    site, electrode, _ = _one_electrode(4.0)
+def test_lapsed_instrument_readings_are_one_retake_per_instrument_and_visit():
+    # A reading taken with an instrument past its calibration date proves nothing
+    # (common practice): neither a pass nor a fail, to be taken again.
+    site = SiteBuilder("II")
+    electrodes = [site.joint_with_electrode(n)[1] for n in (1, 2, 3)]
     lapsed = site.instrument(calibration_due=date(2025, 12, 31))
     visit = site.visit(date(2026, 3, 1))
-    site.reading(visit, electrode, Quantity.EARTH_ISOLATED, 3.0, instrument_id=lapsed.id)
+    for electrode, value in zip(electrodes, (3.0, 41.0, 2.5), strict=True):
+        site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value, instrument_id=lapsed.id)
     (result,) = _by_rule(site, "calibration")
-    assert result.severity is Severity.FAIL
-    assert "lapsed on 2025-12-31" in result.message and "proves nothing" in result.message
-    # On its due date the calibration still holds.
-    ok_site, ok_electrode, _ = _one_electrode(4.0)
-    due = ok_site.instrument(calibration_due=date(2026, 3, 1))
-    ok_site.reading(
-        ok_site.visit(date(2026, 3, 1)),
-        ok_electrode,
+    assert result.severity is Severity.RETAKE
+    assert result.listed == ("E-01", "E-02", "E-03") and len(result.reading_ids) == 3
+    assert result.message.startswith("3 readings of 2026-03-01 (E-01, E-02, E-03) were taken")
+    assert "lapsed on 2025-12-31" in result.message and "retake them" in result.message
+    # The 41 Ω reading is above the 10 Ω limit yet proves nothing: no fail for it.
+    assert _by_rule(site, "limit") == []
+    check = check_site(site.records(), IEC, TODAY)
+    assert Severity.FAIL not in {r.severity for r in check.results}
+
+
+def test_lapsed_instrument_on_two_visits_gives_two_results():
+    site, electrode, _ = _one_electrode(4.0)
+    joint = next(c for c in site.components if c.tag == "TJ-01")
+    lapsed = site.instrument(calibration_due=date(2025, 12, 31))
+    site.reading(
+        site.visit(date(2026, 1, 10)), joint, Quantity.EARTH_COMBINED, 0.8, instrument_id=lapsed.id
+    )
+    site.reading(
+        site.visit(date(2026, 3, 1)),
+        electrode,
         Quantity.EARTH_ISOLATED,
         3.0,
-        instrument_id=due.id,
+        instrument_id=lapsed.id,
     )
-    assert _by_rule(ok_site, "calibration") == []
+    results = sorted(_by_rule(site, "calibration"), key=lambda r: r.message)
+    assert [r.listed for r in results] == [("TJ-01",), ("E-01",)]
+    assert results[0].message.startswith("1 reading of 2026-01-10 (TJ-01) was taken")
+    assert "it proves nothing; retake it" in results[0].message
+
+
+def test_calibration_holds_on_its_due_date():
+    site, electrode, _ = _one_electrode(4.0)
+    due = site.instrument(calibration_due=date(2026, 3, 1))
+    site.reading(
+        site.visit(date(2026, 3, 1)), electrode, Quantity.EARTH_ISOLATED, 3.0, instrument_id=due.id
+    )
+    assert _by_rule(site, "calibration") == []
+
+
+def test_retake_is_worse_than_incomplete_and_milder_than_fail():
+    ranks = [s.rank for s in (Severity.INCOMPLETE, Severity.RETAKE, Severity.FAIL)]
+    assert ranks == sorted(ranks) and len(set(ranks)) == 3
+
+
+def test_every_severity_has_one_word_and_a_meaning():
+    from inspectkit.engine.results import SEVERITY_WORDS
+
+    assert set(SEVERITY_WORDS) == set(Severity)
+    words = [w.word for w in SEVERITY_WORDS.values()]
+    assert len(set(words)) == len(words)
+    assert all(w.meaning.endswith(".") for w in SEVERITY_WORDS.values())
 
 
 def test_doubtful_latest_reading_is_watch():
@@ -215,9 +258,43 @@ def test_open_defects_are_carried_forward_with_their_age():
     later = site.visit(date(2025, 10, 1), InspectionKind.VISUAL)
     site.findings[-1] = fixed.model_copy(update={"resolved_by": later.id})
     results = _by_rule(site, "carried-defect")
-    assert [r.severity for r in results] == [Severity.FAIL, Severity.WATCH]
+    assert [r.severity for r in results] == [Severity.OVERDUE, Severity.WATCH]
     assert "open since 2025-06-01 (365 days)" in results[0].message
+    assert "the remedy was due by 2025-09-01" in results[0].message
     assert results[1].component_tag is None
+
+
+def test_a_defect_graded_today_fails_today_with_its_remedy_date_as_advice():
+    site = SiteBuilder("II")
+    electrode = site.joint_with_electrode(1)[1]
+    visit = site.visit(TODAY)
+    site.finding(
+        visit, electrode, Grade.DEFECT, "open circuit at the clamp", due_by=date(2026, 7, 1)
+    )
+    site.finding(
+        visit, site.components[0], Grade.NEEDS_ATTENTION, "label faded", due_by=date(2026, 7, 1)
+    )
+    defect, attention = _by_rule(site, "carried-defect")
+    assert defect.severity is Severity.FAIL and defect.due == date(2026, 7, 1)
+    assert "found 2026-06-01; remedy advised by 2026-07-01" in defect.message
+    assert attention.severity is Severity.WATCH
+    # A month on it still fails (not yet overdue); after its date, carried, it is overdue.
+    (still,) = [
+        r
+        for r in _by_rule(site, "carried-defect", today=date(2026, 7, 1))
+        if r.component_tag == "E-01"
+    ]
+    assert still.severity is Severity.FAIL and "(30 days)" in still.message
+    late = _by_rule(site, "carried-defect", today=date(2026, 7, 2))
+    assert {r.severity for r in late} == {Severity.OVERDUE}
+
+
+def test_one_day_open_is_singular():
+    site = SiteBuilder("II")
+    visit = site.visit(date(2026, 5, 31), InspectionKind.VISUAL)
+    site.finding(visit, None, Grade.DEFECT, "bond broken")
+    (result,) = _by_rule(site, "carried-defect")
+    assert "(1 day)" in result.message
 
 
 def test_resolution_after_today_is_not_yet_known():
@@ -293,3 +370,17 @@ def test_check_all_refuses_an_unknown_profile_and_orders_worst_first():
         check_all([clean.records(), failing.records()], {"iec-62305-3": IEC}, date(2026, 3, 2))
     )
     assert checks[0].worst is Severity.FAIL
+
+
+def test_a_repeat_defect_closes_the_earlier_and_carries_the_faults_age():
+    site = SiteBuilder("II")
+    terminal = site.component(ComponentKind.AIR_TERMINAL, "AT-05")
+    first = site.visit(date(2024, 1, 27), InspectionKind.COMPLETE)
+    old = site.finding(first, terminal, Grade.DEFECT, "bent over", due_by=date(2024, 3, 27))
+    later = site.visit(date(2026, 5, 1), InspectionKind.VISUAL)
+    site.findings[-1] = old.model_copy(update={"resolved_by": later.id})
+    new = site.finding(later, terminal, Grade.DEFECT, "still bent over", due_by=date(2026, 7, 1))
+    site.findings[-1] = new.model_copy(update={"same_as_id": old.id})
+    (result,) = _by_rule(site, "carried-defect")  # one fault, listed once
+    assert result.severity is Severity.FAIL
+    assert "open since 2024-01-27 (856 days), still present on 2026-05-01" in result.message

@@ -223,7 +223,7 @@ def test_cli_export_and_import(office, tmp_path):
     args = ["export", "--db", str(store.path), "--site", "Harbour", "-o", str(out)]
     result = runner.invoke(app, [*args, "--since", "2026-01-01"])
     assert result.exit_code == 0, result.output
-    assert "reading 3" in result.output and "1 photo files" in result.output
+    assert "reading 3" in result.output and "1 photo file." in result.output
     target = tmp_path / "new-laptop.sqlite"  # not there yet: the import makes it
     result = runner.invoke(app, ["import", str(out), "--db", str(target), "--dry-run"])
     assert result.exit_code == 0, result.output

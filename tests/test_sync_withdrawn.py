@@ -62,7 +62,7 @@ def test_a_withdrawn_reading_does_not_come_back_with_an_older_bundle(pair, tmp_p
     report = _send(office, laptop, records.site.id, tmp_path / "o.zip")
     assert laptop.get(Reading, gone.id) is None
     assert report.kept_deleted == 1 and not report.changed
-    assert "  1 records stay withdrawn here" in report.lines()
+    assert "  1 record stays withdrawn here" in report.lines()
 
 
 def test_an_edit_on_one_side_beats_a_withdrawal_on_the_other(pair, tmp_path):

@@ -86,7 +86,7 @@ def test_rising_electrode_is_forecast_to_cross_before_next_complete():
 def test_single_reading_gives_no_forecast():
     trend = _only(_electrode([(date(2024, 3, 1), 4.0)]))
     assert not trend.forecast and trend.crossing is None
-    assert "1 usable reading(s), 3 needed" in trend.note
+    assert "1 usable reading, 3 needed" in trend.note
 
 
 def test_readings_on_the_same_day_give_no_forecast():
@@ -132,3 +132,48 @@ def test_falling_electrode_has_no_crossing():
     assert trend.slope_ohm_per_year < 0
     assert trend.crossing is None
     assert "not heading for the limit" in trend.note
+
+
+def test_an_electrode_above_its_limit_gets_no_future_crossing():
+    # 11.9 Ω against 10 Ω (IEC 62305-3 clause 5.4, as quoted): already above, so no
+    # "reaches the limit about" a date to come, and the rise's start is said instead.
+    days = [date(2021 + k, 6, 1) for k in range(5)]
+    site = _electrode(zip(days, [4.0, 4.2, 4.1, 4.3, 11.9], strict=True))
+    trend = _only(site)
+    assert trend.crossing is None and not trend.before_next_complete
+    assert trend.above_since == date(2025, 6, 1)
+    assert "above the 10 Ω limit since about 2025-06-01" in trend.note
+    assert "reaches" not in trend.note
+
+
+def test_a_fitted_line_crossed_in_the_past_says_since_when():
+    days = [date(2018 + k, 6, 1) for k in range(6)]
+    site = _electrode(zip(days, [9.0, 10.5, 12.0, 13.5, 15.0, 16.5], strict=True))
+    trend = _only(site)
+    assert trend.crossing is None
+    assert trend.above_since is not None and trend.above_since < days[2]
+    assert f"since about {trend.above_since.isoformat()}" in trend.note
+
+
+def test_an_open_circuit_after_good_readings_is_above_the_limit_at_once():
+    days = [date(2021 + k, 6, 1) for k in range(4)]
+    site = _electrode(zip(days[:-1], [4.0, 4.4, 4.8], strict=True))
+    electrode = site.components[-1]
+    site.reading(site.visit(days[-1]), electrode, Quantity.EARTH_ISOLATED, 2000.0, over_range=True)
+    trend = _only(site)
+    assert trend.crossing is None and trend.above_since == days[-1]
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.lists(st.floats(min_value=0.1, max_value=60.0, allow_nan=False), min_size=3, max_size=10))
+def test_no_reading_above_its_limit_gets_a_future_crossing(series):
+    # Property: whatever the history, an electrode whose latest reading is above the
+    # 10 Ω limit is never forecast to reach it later, and a crossing given is after
+    # the last reading.
+    days = [date(2015 + k, 6, 1) for k in range(len(series))]
+    trend = _only(_electrode(zip(days, series, strict=True)))
+    if series[-1] > 10.0:
+        assert trend.crossing is None and trend.above_since is not None
+        assert trend.above_since <= days[-1]
+    if trend.crossing is not None:
+        assert trend.crossing > days[-1]

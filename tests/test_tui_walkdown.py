@@ -233,7 +233,7 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         check = check_site(records, load_profile(records.site.profile), today)
         about = {(r.rule, r.component_tag, r.severity) for r in check.results}
         assert ("limit", "E-02", Severity.FAIL) in about
-        assert ("carried-defect", "DC-03", Severity.WATCH) in about
+        assert ("carried-defect", "DC-03", Severity.FAIL) in about  # graded a defect today
         assert not any(r.rule == "limit" and r.component_tag == "E-01" for r in check.results)
         assert not any(
             r.rule == "incomplete" and today.isoformat() in r.message for r in check.results

@@ -132,7 +132,8 @@ def test_rise_on_the_baseline_is_watch(store: Store, site: WalkSite, visit: Insp
 
 def test_continuity_in_milliohms(store: Store, site: WalkSite, visit: Inspection) -> None:
     outcome = record_reading(store, visit.id, site.tag("DC-01").id, "continuity", "180 mΩ")
-    # Continuity limit 0.2 Ω: from memory (DOMAIN.md §3), as set in the iec-62305-3 profile.
+    # Continuity limit 0.2 Ω: from memory (docs/sources.md, "Rules of the trade"), as set
+    # in the iec-62305-3 profile.
     assert outcome.verdict == "PASS 180 mΩ ≤ 200 mΩ"
     assert outcome.comparison == f"+80 % on {EARLIER.isoformat()}"
 
@@ -340,7 +341,7 @@ def test_per_electrode_limit_scales_with_the_number_of_electrodes(store: Store) 
     site = build_walk_site(store, down_conductors=4)
     store.save(site.site.model_copy(update={"profile": "bs-6651-practice"}))
     visit = start_inspection(store, site.site.id, "complete", None, TODAY)
-    # BS 6651 (published in the old standard, DOMAIN.md §3): each electrode with its
+    # BS 6651 (from memory of the old standard, docs/sources.md "BS 6651"): each electrode with its
     # test joint open ≤ 10 Ω × the number of electrodes; four rods → 40 Ω.
     outcome = record_reading(store, visit.id, site.tag("ER-01").id, "earth_isolated", "25")
     assert outcome.limit == 40.0
@@ -419,3 +420,21 @@ def test_too_long_a_detail_names_the_field_and_changes_nothing(
     assert err.value.field == field
     assert f"at most {limit} characters" in str(err.value)
     assert store.get(Inspection, visit.id) == before
+
+
+def test_a_reading_with_a_lapsed_instrument_is_to_retake_as_it_is_typed(
+    store: Store, site: WalkSite, visit: Inspection
+) -> None:
+    from inspectkit.model import Instrument
+
+    # A lapsed instrument's reading proves nothing (common practice): not a fail even
+    # above the limit, and not a pass.
+    lapsed = store.save(
+        Instrument(description="Earth tester", serial="ET-OLD", calibration_due=date(2020, 1, 1))
+    )
+    outcome = record_reading(
+        store, visit.id, site.tag("ER-02").id, "earth_isolated", "40", instrument_id=lapsed.id
+    )
+    assert outcome.severity is Severity.RETAKE
+    assert outcome.verdict.startswith("RETAKE 40 Ω")
+    assert "retake it with a calibrated instrument" in outcome.messages[0]

@@ -20,7 +20,8 @@ from inspectkit.printable import PrintableStream
 
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
-                   "upkeep", "inspection", "entries", "findings", "calc", "earthing")
+                   "upkeep", "inspection", "entries", "findings", "safety",
+                   "organisations", "calc", "earthing")
 
 app = typer.Typer(
     name="inspectkit",

@@ -21,14 +21,16 @@ from inspectkit.cli.common import (
     today_option,
 )
 from inspectkit.engine.check import SiteCheck, check_all
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.standing import worst_first
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError, load_all_profiles
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, iter_site_records, load_site_records
+from inspectkit.wording import counted
 
-#: Severity words in a fixed width, so the table reads without colour.
-_WORD = {s: s.value.upper() for s in Severity}
+#: Severity words in capitals, so the table reads without colour.
+_WORD = {s: w.shout for s, w in SEVERITY_WORDS.items()}
 
 
 def gather(
@@ -70,6 +72,11 @@ def _collector_paused() -> Iterator[None]:
             gc.enable()
 
 
+def need(count: int) -> str:
+    """ "1 needs", "2 need"."""
+    return "needs" if count == 1 else "need"
+
+
 def render(checks: list[SiteCheck]) -> Iterator[str]:
     """The human table: a heading line per site with its summary, then its results."""
     for check in checks:
@@ -80,8 +87,8 @@ def render(checks: list[SiteCheck]) -> Iterator[str]:
     watching = sum(1 for c in checks if not c.needs_action and c.worst is not Severity.OK)
     clear = len(checks) - acting - watching
     yield (
-        f"{len(checks)} site(s) checked: {acting} need action (fail or overdue), "
-        f"{watching} to watch or complete, {clear} all clear."
+        f"{counted(len(checks), 'site')} checked: {acting} {need(acting)} action (fail or "
+        f"overdue), {watching} to watch, complete or retake, {clear} all clear."
     )
 
 

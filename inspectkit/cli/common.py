@@ -80,9 +80,40 @@ def open_store(ctx: typer.Context, db: Path | None, *, create: bool = False) -> 
     """Open the database a command works on, or stop with exit 2 and the reason."""
     path = resolve_db(ctx, db)
     try:
-        return Store.open(path, create=create or path == default_db_path())
+        store = Store.open(path, create=create or path == default_db_path())
     except StoreError as exc:
         fail(str(exc))
+    show_cautions_once(store)
+    return store
+
+
+def _person_reading() -> bool:
+    """A person is at the terminal (stderr is one), not a script reading the output."""
+    return sys.stderr.isatty()
+
+
+def show_cautions_once(store: Store) -> None:
+    """The cautions on stderr, the first time a person runs a command on this database.
+
+    Not when the terminal UI has had them acknowledged already, and not for a script
+    (stderr not a terminal), whose output nobody reads; the database remembers it.
+    """
+    from inspectkit.cautions import ACKNOWLEDGED_SETTING, SHOWN_BY_COMMAND_SETTING
+
+    if store.get_setting(SHOWN_BY_COMMAND_SETTING) or store.get_setting(ACKNOWLEDGED_SETTING):
+        return
+    if not _person_reading():
+        return
+    typer.echo(cautions_block(again=True), err=True)
+    store.set_setting(SHOWN_BY_COMMAND_SETTING, "yes")
+
+
+def cautions_block(*, again: bool = False) -> str:
+    """The cautions as a command prints them, under their title."""
+    from inspectkit.cautions import TITLE, cautions_text
+
+    hint = " (shown once; `inspectkit cautions` shows them again)" if again else ""
+    return f"{TITLE}{hint}:\n\n{cautions_text()}\n"
 
 
 def fail(message: str, code: Exit = Exit.BAD_INPUT) -> NoReturn:

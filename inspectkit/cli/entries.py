@@ -23,6 +23,7 @@ from inspectkit.model import (
     Severity,
     SoilCondition,
 )
+from inspectkit.repeats import RepeatError, mark_repeat
 from inspectkit.store.preferences import Preferences
 from inspectkit.units import UnitError, format_value
 from inspectkit.walkdown import (
@@ -34,6 +35,7 @@ from inspectkit.walkdown import (
     record_reading,
     withdraw_reading,
 )
+from inspectkit.wording import counted
 
 photo_app = typer.Typer(
     help="Photos: attach one, or a folder matched by time.", no_args_is_help=True
@@ -218,17 +220,31 @@ def grade_command(
         str, typer.Option("--due", help="Remedy due by, YYYY-MM-DD.", show_default=False)
     ] = "",
     category: Annotated[str, typer.Option("--category", help="e.g. corrosion, fixings.")] = "",
+    same_as: Annotated[
+        str,
+        typer.Option(
+            "--same-as",
+            help="The same fault as an earlier open finding, still present: its id, or "
+            "'open' for the component's one open finding. That one is closed.",
+        ),
+    ] = "",
     db: DbOption = None,
 ) -> None:
     """Grade a component for this visit; grading it again corrects the grade."""
     with open_store(ctx, db) as store:
         visit, component = lookups.visit_part(store, inspection, tag)
         try:
-            finding = grade_component(
-                store, visit.id, component.id, grade, text, remedy, due or None, category
-            )
+            with store.transaction():  # a repeat that cannot be linked leaves no grade
+                finding = grade_component(
+                    store, visit.id, component.id, grade, text, remedy, due or None, category
+                )
+                if same_as:
+                    earlier = lookups.earlier_open(store, visit, component, same_as)
+                    finding = mark_repeat(store, finding.id, earlier)
         except WalkdownError as exc:
             lookups.refused(exc)
+        except RepeatError as exc:
+            fail(f"--same-as: {exc}")
     line = f"{component.tag}: {finding.grade.value.replace('_', ' ')}"
     if finding.text:
         line += f", {finding.text}"
@@ -236,6 +252,10 @@ def grade_command(
         line += f"; remedy: {finding.remedial_action}"
     if finding.due_by:
         line += f", due by {finding.due_by.isoformat()}"
+    if finding.same_as_id:
+        line += (
+            f"; the same fault as finding {finding.same_as_id}, which is closed as still present"
+        )
     typer.echo(line)
 
 
@@ -266,7 +286,7 @@ def add_photo(
     for match in matches:
         where = tags.get(match.component_id or "", "the inspection only")
         typer.echo(f"{match.photo.original_name} → {where}")
-    typer.echo(f"{len(matches)} photo(s) attached.")
+    typer.echo(f"{counted(len(matches), 'photo')} attached.")
 
 
 def register(app: typer.Typer) -> None:

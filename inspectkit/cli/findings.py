@@ -21,6 +21,7 @@ from inspectkit.cli.common import (
 from inspectkit.model import Finding
 from inspectkit.store import StoreError
 from inspectkit.store.queries import OpenFinding, later_inspections, open_findings
+from inspectkit.wording import counted
 
 findings_app = typer.Typer(
     help="Open findings (not graded sound, not yet put right), soonest due first; "
@@ -58,7 +59,7 @@ def findings(
     else:
         for item in items:
             typer.echo(_item_line(item, day))
-        typer.echo(f"{len(items)} open finding(s).")
+        typer.echo(f"{counted(len(items), 'open finding')}.")
     late = any(i.finding.due_by is not None and i.finding.due_by < day for i in items)
     raise typer.Exit(int(Exit.ACT if late else Exit.OK))
 

@@ -27,6 +27,7 @@ from inspectkit.walkdown import (
     start_inspection,
     walk_for,
 )
+from inspectkit.wording import counted
 
 inspection_app = typer.Typer(
     help="Inspections: start or continue a walkdown, see it, note its details, finish it.",
@@ -291,7 +292,7 @@ def _render(
         if finding and finding.text:
             graded += f": {finding.text}"
         photos = saved.photos.get(component.id, 0)
-        extra = f" · {photos} photo(s)" if photos else ""
+        extra = f" · {counted(photos, 'photo')}" if photos else ""
         tag = component.tag.ljust(12 - 2 * stop.depth)
         yield f"{indent}{tag} {component.kind.label:<26} {graded}{extra}"
         for quantity in stop.quantities:
@@ -300,7 +301,7 @@ def _render(
                 yield f"{indent}  · {quantity.label}: not entered"
             else:
                 yield f"{indent}  · {outcome_line('', outcome)}"
-    yield f"{len(missing)} thing(s) missing." if missing else "Nothing missing."
+    yield f"{counted(len(missing), 'thing')} missing." if missing else "Nothing missing."
 
 
 def _detail_lines(visit: Inspection, *, blanks: bool) -> Iterator[str]:

@@ -5,7 +5,16 @@ from __future__ import annotations
 from typing import Any, NoReturn, TypeVar
 
 from inspectkit.cli.common import fail
-from inspectkit.model import Component, Inspection, Inspector, Instrument, Record, Site
+from inspectkit.model import (
+    Component,
+    Finding,
+    Grade,
+    Inspection,
+    Inspector,
+    Instrument,
+    Record,
+    Site,
+)
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.walkdown import WalkdownError, walk_for
@@ -133,3 +142,27 @@ def _named_or_id(
     if record is None:
         fail(f"{option}: no {model.table} with the {by} or id {text!r}")
     return record
+
+
+def earlier_open(store: Store, visit: Inspection, component: Component, text: str) -> str:
+    """The id of the finding `--same-as` names: an id (or its start), or "open" for the
+    component's one open finding from an earlier visit."""
+    if text != "open":
+        return by_id(store, Finding, text, "--same-as").id
+    earlier = {
+        i.id
+        for i in store.select(Inspection, "site_id = ?", [visit.site_id])
+        if (i.date, i.created_at) < (visit.date, visit.created_at)
+    }
+    found = [
+        f
+        for f in store.select(Finding, "component_id = ? AND resolved_by IS NULL", [component.id])
+        if f.inspection_id in earlier and f.grade is not Grade.SOUND
+    ]
+    if len(found) != 1:
+        many = "no open finding" if not found else f"{len(found)} open findings"
+        fail(
+            f"--same-as: {component.tag} has {many} from an earlier visit; "
+            "give the id (`inspectkit findings` lists them)"
+        )
+    return found[0].id

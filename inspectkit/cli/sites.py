@@ -8,6 +8,7 @@ from typing import Annotated
 import typer
 
 from inspectkit.cli.common import DbOption, JsonOption, day_of, emit_json, open_store, today_option
+from inspectkit.profiles import level_shown
 from inspectkit.site_states import ProfileCache, assess_site
 from inspectkit.store.queries import site_summaries
 
@@ -37,7 +38,7 @@ def sites(
                     "town": s.site.town,
                     "use": s.site.use,
                     "installer": s.site.installer,
-                    "protection_level": s.site.protection_level.value,
+                    "protection_level": level_shown(s.site.profile, s.site.protection_level, None),
                     "profile": s.site.profile,
                     "critical": s.site.critical,
                     "explosive_risk": s.site.explosive_risk,
@@ -62,7 +63,8 @@ def sites(
         last = s.last_visit.isoformat() if s.last_visit else "never"
         typer.echo(
             f"{s.site.name:<{width}}  {states[s.site.id].word:<10}  "
-            f"{s.site.protection_level.value:<5}  {last:<10}  {(s.last_kind or '-'):<11}  "
+            f"{level_shown(s.site.profile, s.site.protection_level):<5}  {last:<10}  "
+            f"{(s.last_kind or '-'):<11}  "
             f"{s.site.client}"
         )
 

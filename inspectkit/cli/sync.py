@@ -25,6 +25,7 @@ from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.sync.guard import BundleError
+from inspectkit.wording import counted
 
 
 class Format(StrEnum):
@@ -105,7 +106,8 @@ def export(
             except BundleError as exc:
                 fail(str(exc))
             counts = ", ".join(f"{t} {n}" for t, n in summary.counts.items() if n)
-            typer.echo(f"Wrote {summary.path}: records {counts}; {summary.photos} photo files.")
+            photos = counted(summary.photos, "photo file")
+            typer.echo(f"Wrote {summary.path}: records {counts}; {photos}.")
             return
         if since_day is not None:
             fail("--since applies to bundles only")
@@ -114,7 +116,8 @@ def export(
             _write(out, lambda handle: exports.write_json(collection, handle))
             if unlocated:
                 typer.echo(
-                    f"{len(unlocated)} site(s) without coordinates, written with a null geometry: "
+                    f"{counted(len(unlocated), 'site')} without coordinates, written with a null "
+                    "geometry: "
                     f"{printable(', '.join(unlocated))}; set their latitude and longitude to "
                     "map them",
                     err=True,

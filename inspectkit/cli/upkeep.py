@@ -21,6 +21,7 @@ from inspectkit.cli.common import (
 from inspectkit.store import StoreError
 from inspectkit.store.database import photos_dir_of
 from inspectkit.store.photos import copy_photos_for_backup, restore_photos
+from inspectkit.wording import counted
 
 
 def default_backup_path(db_path: Path, now: datetime) -> Path:
@@ -56,12 +57,12 @@ def backup(
         copied, missing = copy_photos_for_backup(store, target) if photos else (0, [])
     typer.echo(f"Backed up to {target} (checked: ok).")
     if photos:
-        typer.echo(f"{copied} photo file(s) copied to {photos_dir_of(target)}.")
+        typer.echo(f"{counted(copied, 'photo file')} copied to {photos_dir_of(target)}.")
     else:
         typer.echo(f"Photos are not in the backup: copy the folder {store.photos_dir} as well.")
     if missing:
         fail(
-            f"{len(missing)} photo file(s) the records name are missing here (first "
+            f"photo files the records name are missing here ({len(missing)}, first "
             f"{missing[0]}) and are not in the backup; run `inspectkit doctor`",
             Exit.ACT,
         )
@@ -98,10 +99,11 @@ def restore(
             fail(str(exc))
         copied, missing = restore_photos(store, backup)
     typer.echo(f"Restored {backup} into {store.path} (checked: ok).")
-    typer.echo(f"{copied} photo file(s) brought back; what was replaced is kept in {kept}.")
+    photos = counted(copied, "photo file")
+    typer.echo(f"{photos} brought back; what was replaced is kept in {kept}.")
     if missing:
         fail(
-            f"{len(missing)} photo file(s) the backup names are in neither photo folder (first "
+            f"photo files the backup names are in neither photo folder ({len(missing)}, first "
             f"{missing[0]}); run `inspectkit doctor`",
             Exit.ACT,
         )
@@ -132,7 +134,7 @@ def doctor(
             typer.echo(f"{p.check}: {p.subject}: {p.message}\n  fix: {p.fix}")
         if len(problems) > MAX_LINES:
             typer.echo(f"… and {len(problems) - MAX_LINES} more (all of them: --json)")
-        typer.echo(f"{len(problems)} problem(s) found.")
+        typer.echo(f"{counted(len(problems), 'problem')} found.")
     if problems:
         raise typer.Exit(int(Exit.ACT))
 

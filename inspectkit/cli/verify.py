@@ -110,7 +110,7 @@ def verify(
         if result.signer:
             when = result.signed_at.isoformat(timespec="minutes") if result.signed_at else "?"
             typer.echo(f"Signed by {result.signer} at {when}")
-        if result.signer and not result.trusted:
+        if result.signer and not result.trusted and result.intact:  # altered: trust is moot
             typer.echo(
                 "Signer NOT KNOWN: the certificate is not one made on this machine, trusted "
                 "with `inspectkit keys trust FILE`, or given with --cert"

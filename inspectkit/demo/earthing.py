@@ -10,6 +10,8 @@ rod, with a little scatter; its value at 61.8 % becomes the reading.
 from __future__ import annotations
 
 import math
+import random
+import uuid
 from datetime import UTC, datetime, time, timedelta
 from typing import TYPE_CHECKING
 
@@ -32,13 +34,18 @@ TRAVERSE_FRACTIONS = (0.1, 0.2, 0.3, 0.4, 0.52, 0.618, 0.72, 0.8, 0.9)
 
 
 def add_earthing(history: SiteHistory, latest_inspection_id: str) -> list[SoilSurvey]:
-    """Size the site's rods, take traverses on the latest complete visit; return the surveys."""
+    """Size the site's rods, take traverses on the latest complete visit; return the surveys.
+
+    Draws from a generator of its own, seeded from the anchor and the site, so the
+    rest of the demo (every other site's readings) is what it would be without it.
+    """
     spec = history.spec.earthing
     if spec is None:
         return []
+    rng = random.Random(f"inspectkit-demo-earthing:{history.anchor.isoformat()}:{history.spec.key}")
     _size_rods(history, spec)
-    _traverses(history, spec, latest_inspection_id)
-    return [_survey(history, n, s) for n, s in enumerate(spec.survey)]
+    _traverses(history, spec, latest_inspection_id, rng)
+    return [_survey(history, n, s, rng) for n, s in enumerate(spec.survey)]
 
 
 def _size_rods(history: SiteHistory, spec: EarthingSpec) -> None:
@@ -66,7 +73,9 @@ def _size_rods(history: SiteHistory, spec: EarthingSpec) -> None:
     history.system.components[:] = sized
 
 
-def _traverses(history: SiteHistory, spec: EarthingSpec, inspection_id: str) -> None:
+def _traverses(
+    history: SiteHistory, spec: EarthingSpec, inspection_id: str, rng: random.Random
+) -> None:
     by_tag = {c.id: c for c in history.system.components}
     wanted = {history.system.tagged(tag).id for tag in spec.traverse}
     for n, reading in enumerate(history.readings):
@@ -79,7 +88,7 @@ def _traverses(history: SiteHistory, spec: EarthingSpec, inspection_id: str) -> 
             continue
         rod = by_tag[reading.component_id]
         traverse = _hemisphere_traverse(
-            history, reading.value, rod.length_m or 3.0, rod.diameter_m or 0.016,
+            rng, reading.value, rod.length_m or 3.0, rod.diameter_m or 0.016,
             spec.current_probe_m,
         )  # fmt: skip
         value = plateau_check(traverse.points, traverse.current_probe_m).resistance_ohm
@@ -89,7 +98,7 @@ def _traverses(history: SiteHistory, spec: EarthingSpec, inspection_id: str) -> 
 
 
 def _hemisphere_traverse(
-    history: SiteHistory, true_ohm: float, length_m: float, diameter_m: float, c: float
+    rng: random.Random, true_ohm: float, length_m: float, diameter_m: float, c: float
 ) -> Traverse:
     """R(x) = ρ/2π·(1/r − 1/(D−r) − 1/x + 1/(D−x)) with r the rod's equivalent hemisphere.
 
@@ -101,22 +110,27 @@ def _hemisphere_traverse(
     for fraction in TRAVERSE_FRACTIONS:
         x = fraction * c
         shape = 1 - r / (c - r) - r / x + r / (c - x)
-        scatter = math.exp(history.rng.gauss(0, 0.004))
+        scatter = math.exp(rng.gauss(0, 0.004))
         points.append((round(x, 2), round(max(true_ohm * shape * scatter, 0.01), 3)))
     return make_traverse(c, points)
 
 
-def _survey(history: SiteHistory, number: int, spec: SurveySpec) -> SoilSurvey:
+def _survey(
+    history: SiteHistory, number: int, spec: SurveySpec, rng: random.Random
+) -> SoilSurvey:
     day = history.anchor - timedelta(days=spec.days_before)
     taken = datetime.combine(day, time(11, 0), UTC) + timedelta(minutes=number)
     points = [
         (a, round(rho / wenner_resistivity(a, 1.0, spec.depth_m), 4))
         for a, rho in spec.rho
     ]
-    instrument = history._instrument("earth", day)
+    instrument = next(
+        i for i, use in history.demo.instruments.values()
+        if use == "earth" and (i.calibration_due is None or i.calibration_due >= day)
+    )  # fmt: skip
     return SoilSurvey.model_validate(
         {
-            "id": history.demo.new_id(),
+            "id": str(uuid.UUID(int=rng.getrandbits(128), version=4)),
             "site_id": history.site.id,
             "date": day,
             "direction": spec.direction,

@@ -1,7 +1,7 @@
 """Build the demo database from the scenario file, around an anchor date.
 
-Everything is drawn from one `random.Random` seeded from the anchor, record ids
-included, and every time is a scenario time: the same anchor gives the same
+Everything is drawn from one `random.Random` seeded from the anchor, most record
+ids included, and every time is a scenario time: the same anchor gives the same
 records. Dates are counted back from the anchor, so whenever the demo is built
 it shows the same mix of due, overdue, failing and drifting items.
 """
@@ -10,15 +10,17 @@ from __future__ import annotations
 
 import random
 import tempfile
+import uuid
 from datetime import UTC, date, datetime, time, timedelta
 from pathlib import Path
+from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
 from inspectkit.demo.photos import draw_photo
 from inspectkit.demo.scenario import Scenario, load_scenario
 from inspectkit.demo.visits import DEMO_USER, DemoContext, DemoRecords, Shot, SiteHistory, stamps
-from inspectkit.model import Inspector, Instrument, Photo
+from inspectkit.model import Inspector, Instrument, Organisation, Photo
 from inspectkit.store import Store
 from inspectkit.store.photos import put_file, read_exif
 
@@ -52,11 +54,14 @@ def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
     )
     first = min(anchor - relativedelta(years=s.years) for s in scenario.site)
     since = stamps(datetime.combine(first - timedelta(days=60), time(9, 0), UTC))
+    organisations = _organisations(scenario, since)
     for spec in scenario.inspector:
+        organisation = organisations[spec.organisation]
         demo.inspectors[spec.key] = Inspector(
             id=demo.new_id(),
             name=spec.name,
-            organisation=scenario.contractor.name,
+            organisation_id=organisation.id,
+            organisation=organisation.name,
             qualification=spec.qualification,
             **{**since, "updated_by": spec.login},
         )
@@ -69,11 +74,44 @@ def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
             **since,
         )
         demo.instruments[spec.key] = (instrument, spec.use)
+    demo.out.records.extend(organisations.values())
     demo.out.records.extend(demo.inspectors.values())
     demo.out.records.extend(i for i, _ in demo.instruments.values())
     for spec in scenario.site:
         SiteHistory(demo, spec).build()
     return demo.out
+
+
+def _organisations(scenario: Scenario, since: dict[str, Any]) -> dict[str, Organisation]:
+    """The contractor (key "", the default organisation) and the others, by key.
+
+    Their ids are derived from their names, not drawn, so adding one leaves the rest of
+    the scenario as it was.
+    """
+    contractor = scenario.contractor
+    made = {
+        "": Organisation(
+            id=str(uuid.uuid5(uuid.NAMESPACE_OID, f"organisation/{contractor.name}")),
+            name=contractor.name,
+            address=contractor.address,
+            phone=contractor.phone,
+            email=contractor.email,
+            is_default=True,
+            **since,
+        )
+    }
+    for spec in scenario.organisation:
+        made[spec.key] = Organisation(
+            id=str(uuid.uuid5(uuid.NAMESPACE_OID, f"organisation/{spec.name}")),
+            name=spec.name,
+            address=spec.address,
+            phone=spec.phone,
+            email=spec.email,
+            primary=spec.primary,
+            accent=spec.accent,
+            **since,
+        )
+    return made
 
 
 def _store_photo(store: Store, scratch: Path, shot: Shot) -> Photo:

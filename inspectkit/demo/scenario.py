@@ -28,8 +28,20 @@ class _Data(BaseModel):
 
 
 class Contractor(_Data):
+    """The demo's own contractor: the default organisation, like the branding file's."""
+
     name: str
     address: str = ""
+    phone: str = ""
+    email: str = ""
+
+
+class OrganisationSpec(Contractor):
+    """Another inspecting organisation some inspectors work for."""
+
+    key: str
+    primary: str = "#1F4E79"
+    accent: str = "#C98A1B"
 
 
 class InspectorSpec(_Data):
@@ -37,6 +49,8 @@ class InspectorSpec(_Data):
     name: str
     login: str
     qualification: str = ""
+    #: An [[organisation]] key; empty: the contractor.
+    organisation: str = ""
 
 
 class InstrumentSpec(_Data):
@@ -81,6 +95,8 @@ class FindingSpec(_Data):
     remedial: str = ""
     due_days: int | None = None
     resolved_at: InspectionRef | None = None
+    #: The same fault as this visit's finding on the component, found still present.
+    same_as: InspectionRef | None = None
     #: Caption of a generated photo attached to the finding.
     photo: str | None = None
     #: EXIF orientation of that photo (6: taken with the camera turned).
@@ -179,6 +195,7 @@ class SiteSpec(_Data):
 
 class Scenario(_Data):
     contractor: Contractor
+    organisation: list[OrganisationSpec] = Field(default_factory=list)
     inspector: list[InspectorSpec] = Field(min_length=1)
     instrument: list[InstrumentSpec] = Field(min_length=1)
     site: list[SiteSpec] = Field(min_length=1)
@@ -187,6 +204,13 @@ class Scenario(_Data):
     def _known_keys(self) -> Scenario:
         inspectors = {i.key for i in self.inspector}
         instruments = {i.key for i in self.instrument}
+        organisations = {o.key for o in self.organisation}
+        for inspector in self.inspector:
+            if inspector.organisation and inspector.organisation not in organisations:
+                raise ValueError(
+                    f"inspector {inspector.key}: organisation {inspector.organisation!r} is "
+                    "not an [[organisation]] key"
+                )
         for site in self.site:
             unknown = set(site.inspectors) - inspectors
             if unknown:

@@ -464,6 +464,9 @@ class SiteHistory:
             latest.inspection = latest.inspection.model_copy(update=latest_fields)
         self._minor_findings()
         self._scenario_findings(refs)
+        finished = [v for v in self.visits if v.inspection.finished]
+        for visit in {id(v): v for v in (latest, *finished[-1:])}.values():
+            self._sound_grades(visit)
         if spec.draft_today:
             self._draft(count, usual)
         for visit in self.visits:
@@ -509,6 +512,45 @@ class SiteHistory:
             )
         )
 
+    def _repeat(self, earlier: _Visit, visit: _Visit, component: Component) -> None:
+        """The finding just made repeats `earlier`'s on the component, which it closes."""
+        new = self.findings[-1]
+        for n, finding in enumerate(self.findings):
+            if finding.inspection_id == earlier.inspection.id and finding.component_id == (
+                component.id
+            ):
+                self.findings[n] = finding.model_copy(
+                    update={"resolved_by": visit.inspection.id, "updated_at": new.created_at}
+                )
+                self.findings[-1] = new.model_copy(update={"same_as_id": finding.id})
+                return
+        raise ValueError(f"{component.tag}: no finding at the visit the repeat names")
+
+    def _sound_grades(self, visit: _Visit) -> None:
+        """Every other component in service graded sound, as a walkdown grades them all.
+
+        The ids are derived from the visit and the component, not drawn, so that the
+        rest of the scenario draws the same numbers as before.
+        """
+        graded = {f.component_id for f in self.findings if f.inspection_id == visit.inspection.id}
+        day = visit.inspection.date
+        for component in self.system.components:
+            if component.id in graded or (component.retired_on and component.retired_on <= day):
+                continue
+            if component.installed_on and component.installed_on > day:
+                continue
+            self.findings.append(
+                Finding(
+                    id=str(uuid.uuid5(uuid.NAMESPACE_OID, f"{visit.inspection.id}/{component.id}")),
+                    inspection_id=visit.inspection.id,
+                    component_id=component.id,
+                    grade=Grade.SOUND,
+                    created_at=visit.clock,
+                    updated_at=visit.clock,
+                    updated_by=visit.inspection.updated_by,
+                )
+            )
+
     def _minor_findings(self) -> None:
         """Small defects noted now and then, each put right by the next visit."""
         rng = self.rng
@@ -532,6 +574,8 @@ class SiteHistory:
             resolved = refs[spec.resolved_at] if spec.resolved_at else None
             words = (spec.category, spec.text, spec.remedial)
             self._finding(visit, component, spec.grade, words, spec.due_days, resolved)
+            if spec.same_as:
+                self._repeat(refs[spec.same_as], visit, component)
             if spec.photo:
                 self.demo.out.shots.append(
                     Shot(

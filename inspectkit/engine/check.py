@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from datetime import date
 
 from inspectkit.engine.history import as_of, series
-from inspectkit.engine.results import Result
+from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.engine.rules import RULES, SiteFacts, facts_for
 from inspectkit.engine.schedule import SiteSchedule, schedule_site
 from inspectkit.engine.trend import ElectrodeTrend, electrode_trends
@@ -96,7 +96,9 @@ def _summary(results: list[Result], schedule: SiteSchedule) -> str:
     for result in results:
         counts[result.severity] = counts.get(result.severity, 0) + 1
     found = (
-        ", ".join(f"{counts[s]} {s.value}" for s in sorted(counts, key=lambda s: -s.rank))
+        ", ".join(
+            f"{counts[s]} {SEVERITY_WORDS[s].word}" for s in sorted(counts, key=lambda s: -s.rank)
+        )
         or "all clear"
     )
     nxt = schedule.next_due

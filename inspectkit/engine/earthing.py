@@ -3,8 +3,9 @@
 Pure functions: SI units in (m, Ω, Ω·m, kA), SI units out. Every function refuses
 inputs outside the domain its formula holds in, naming the argument, because a
 formula applied outside it still returns a number and that number would be
-believed. Each docstring names its source and how sure we are of it: published
-(a standard's clause or table, as quoted), common practice, or from memory.
+believed. Each docstring names its source and how sure we are of it, in the words
+of docs/sources.md: as quoted (a standard's clause or table), common practice, or
+from memory.
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ from types import MappingProxyType
 from typing import Literal
 
 from inspectkit.model import ProtectionLevel
+from inspectkit.wording import counted
 
 L1, L2, L3, L4 = ProtectionLevel.I, ProtectionLevel.II, ProtectionLevel.III, ProtectionLevel.IV
 
@@ -55,7 +57,7 @@ def rod_resistance(resistivity_ohm_m: float, length_m: float, diameter_m: float)
     """Earth resistance of a single driven rod in uniform soil.
 
     Source: H. B. Dwight, "Calculation of resistances to ground", AIEE Trans. 1936;
-    the same expression is in IEEE Std 142 (Green Book) and BS 7430 (published):
+    the same expression is in IEEE Std 142 (Green Book) and BS 7430 (as quoted):
     R = ρ/(2πL)·(ln(8L/d) − 1). It assumes uniform soil and a rod much longer
     than thick; it is an estimate to compare a measurement with, not a measurement.
 
@@ -111,7 +113,7 @@ def wenner_resistivity(spacing_m: float, resistance_ohm: float, depth_m: float =
 def wenner_resistivity_simple(spacing_m: float, resistance_ohm: float) -> float:
     """Apparent soil resistivity ρ = 2π·a·R, for probes shallow against their spacing.
 
-    Source: IEEE Std 81 (published, as quoted); valid when a > 20·b, b being the
+    Source: IEEE Std 81 (as quoted); valid when a > 20·b, b being the
     probes' depth. Use `wenner_resistivity` with the depth otherwise.
 
     Args:
@@ -128,7 +130,7 @@ def wenner_resistivity_simple(spacing_m: float, resistance_ohm: float) -> float:
 
 # ---------------------------------------------------------------- fall-of-potential
 
-#: Potential probe position as a fraction of the E–C distance (IEEE Std 81, published).
+#: Potential probe position as a fraction of the E–C distance (IEEE Std 81, as quoted).
 POTENTIAL_PROBE_FRACTION = 0.618
 #: Plateau check positions either side of it (common practice).
 PLATEAU_FRACTIONS = (0.52, 0.72)
@@ -140,7 +142,7 @@ POSITION_TOLERANCE = 0.05
 def potential_probe_distance(current_probe_distance_m: float) -> float:
     """Where to drive the potential probe: 61.8 % of the way to the current probe.
 
-    Source: IEEE Std 81, fall-of-potential method, the 61.8 % rule (published).
+    Source: IEEE Std 81, fall-of-potential method, the 61.8 % rule (as quoted).
 
     Args:
         current_probe_distance_m: Distance from the electrode E to the current probe C in m.
@@ -206,7 +208,7 @@ def plateau_check(
 ) -> PlateauResult:
     """Check that a fall-of-potential traverse has reached the plateau, and say what to report.
 
-    Source: IEEE Std 81 (61.8 % position, published); repeating at about 52 % and
+    Source: IEEE Std 81 (61.8 % position, as quoted); repeating at about 52 % and
     72 % and accepting when they agree within ±5 % is common practice. A reading
     stands for a check position when it lies within 5 % of E–C of it (our default).
 
@@ -265,7 +267,7 @@ def _checked_traverse(points: Sequence[tuple[float, float]], c: float) -> list[t
     """The points sorted by distance, each checked; refuse fewer than three or any out of (0, C)."""
     if len(points) < 3:
         raise EarthingError(
-            f"points holds {len(points)} reading(s); a plateau check needs at least three "
+            f"points holds {counted(len(points), 'reading')}; a plateau check needs at least three "
             "(about 52 %, 61.8 % and 72 % of the E–C distance)"
         )
     traverse = []
@@ -378,15 +380,15 @@ def rods_in_line_spacing_factor(
 
 # ---------------------------------------------------------------- IEC 62305 geometry
 
-#: Rolling sphere radius r in m (IEC 62305-3 Table 2, published).
+#: Rolling sphere radius r in m (IEC 62305-3 Table 2, as quoted).
 ROLLING_SPHERE_RADIUS_M: Mapping[ProtectionLevel, float] = MappingProxyType(
     {L1: 20.0, L2: 30.0, L3: 45.0, L4: 60.0}
 )
-#: Mesh size of an air-termination mesh in m, square side (IEC 62305-3 Table 2, published).
+#: Mesh size of an air-termination mesh in m, square side (IEC 62305-3 Table 2, as quoted).
 MESH_SIZE_M: Mapping[ProtectionLevel, float] = MappingProxyType(
     {L1: 5.0, L2: 10.0, L3: 15.0, L4: 20.0}
 )
-#: Typical spacing between down conductors in m (IEC 62305-3 Table 4, published).
+#: Typical spacing between down conductors in m (IEC 62305-3 Table 4, as quoted).
 DOWN_CONDUCTOR_SPACING_M: Mapping[ProtectionLevel, float] = MappingProxyType(
     {L1: 10.0, L2: 10.0, L3: 15.0, L4: 20.0}
 )
@@ -401,7 +403,7 @@ FIGURE_2_MAX_RESISTIVITY_OHM_M = 3000.0
 def striking_distance_m(peak_current_ka: float) -> float:
     """Striking distance r = 10·I^0.65 of a downward leader with peak current I.
 
-    Source: IEC 62305-1 (electrogeometric model, published as quoted). It gives
+    Source: IEC 62305-1 (electrogeometric model, as quoted). It gives
     20.4, 28.5, 44.7 and 60.6 m for the levels' minimum currents: close to, but
     not the same as, the rounded radii of IEC 62305-3 Table 2.
 
@@ -446,7 +448,7 @@ def min_electrode_length_l1(level: ProtectionLevel, resistivity_ohm_m: float) ->
 def min_electrode_length(level: ProtectionLevel, resistivity_ohm_m: float, vertical: bool) -> float:
     """Minimum length of each type A electrode: l1 laid horizontally, 0.5·l1 driven vertically.
 
-    Source: IEC 62305-3 clause 5.4.2.1 (published, as quoted), with l1 from Figure 2.
+    Source: IEC 62305-3 clause 5.4.2.1 (as quoted), with l1 from Figure 2.
 
     Args:
         level: Protection level of the LPS.
@@ -503,7 +505,7 @@ def separation_distance_m(
 ) -> float:
     """Least distance between an LPS conductor and other metal, so no spark jumps across.
 
-    Source: IEC 62305-3:2010 clause 6.3 (published, as quoted): s = ki·(kc/km)·l.
+    Source: IEC 62305-3:2010 clause 6.3 (as quoted): s = ki·(kc/km)·l.
     Worked check (as quoted): level III, four down conductors, masonry, l = 10 m
     gives 0.04 × 0.44 / 0.5 × 10 = 0.352 m.
 

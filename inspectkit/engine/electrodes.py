@@ -61,7 +61,7 @@ class TraverseJudgement:
 def traverse_reading(traverse: Traverse) -> float:
     """The reading a traverse gives: its value at 61.8 % of E–C, to four significant digits.
 
-    Source: IEEE Std 81, the 61.8 % rule (published); linear between the readings
+    Source: IEEE Std 81, the 61.8 % rule (as quoted); linear between the readings
     either side. Four digits is what an earth tester shows (our default).
 
     Raises:
@@ -220,7 +220,7 @@ def expected_resistance(
 ) -> ExpectedResistance | None:
     """Dwight's estimate for a driven rod of the recorded size, against what was measured.
 
-    Source: Dwight (1936) / IEEE Std 142 for the estimate (published). A measured
+    Source: Dwight (1936) / IEEE Std 142 for the estimate (as quoted). A measured
     value far above it usually means a broken or corroded connection, far below
     it a test joint left closed or other buried metal in parallel (common
     practice); both are said as advice, since layered soil alone can explain

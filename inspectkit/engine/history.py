@@ -15,6 +15,7 @@ from operator import attrgetter
 from inspectkit.model import (
     Component,
     ComponentKind,
+    Finding,
     Inspection,
     InspectionKind,
     InspectionState,
@@ -129,3 +130,17 @@ def usable(records: SiteRecords, reading: Reading) -> bool:
         and not reading.unreliable
         and not calibration_lapsed(records, reading)
     )
+
+
+def first_found(finding: Finding, findings: dict[str, Finding], dates: dict[str, date]) -> date:
+    """The day a fault was first found: the start of its chain of repeats (`same_as_id`)."""
+    seen: set[str] = set()
+    day = dates.get(finding.inspection_id, date.max)
+    while finding.same_as_id and finding.same_as_id not in seen:
+        seen.add(finding.id)
+        earlier = findings.get(finding.same_as_id)
+        if earlier is None:
+            break
+        day = min(day, dates.get(earlier.inspection_id, day))
+        finding = earlier
+    return day

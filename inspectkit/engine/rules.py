@@ -21,6 +21,7 @@ from inspectkit.engine.history import (
     calibration_lapsed,
     counts_as_done,
     electrode_count,
+    first_found,
     in_service,
     series,
 )
@@ -45,6 +46,7 @@ from inspectkit.model import (
 )
 from inspectkit.profiles import Profile
 from inspectkit.units import format_value
+from inspectkit.wording import counted, was_were
 
 #: Quantities with an acceptance limit, and what to do when a reading is above it.
 LIMIT_ACTIONS = {
@@ -150,6 +152,8 @@ def reading_limits(facts: SiteFacts) -> Iterator[Result]:
         bound = reading.value
         if limit is None or (not reading.over_range and bound is not None and bound <= limit):
             continue
+        if calibration_lapsed(facts.records, reading):
+            continue  # it proves nothing either way: `lapsed_calibration` asks for a retake
         about = {**facts.about(reading), "limit": limit}
         tag, shown = about["component_tag"], _shown(reading)
         limit_text = _limit_text(limit, quantity)
@@ -201,20 +205,35 @@ def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
 
 
 def lapsed_calibration(facts: SiteFacts) -> Iterator[Result]:
-    """Latest readings taken with an instrument whose calibration had lapsed: they prove nothing."""
+    """Latest readings taken with an instrument whose calibration had lapsed: retake them.
+
+    They prove nothing, so they are neither a pass nor a fail: one result per instrument
+    and visit lists them, so that a lapsed tester is one thing to put right, not a
+    failure per electrode.
+    """
+    groups: dict[tuple[str, str], list[Reading]] = {}
     for reading in facts.latest.values():
-        if not calibration_lapsed(facts.records, reading):
-            continue
-        instrument = facts.records.instruments[reading.instrument_id or ""]
+        if calibration_lapsed(facts.records, reading):
+            key = (reading.instrument_id or "", reading.inspection_id)
+            groups.setdefault(key, []).append(reading)
+    for (instrument_id, _), readings in sorted(groups.items(), key=lambda g: _day(g[1][0])):
+        instrument = facts.records.instruments[instrument_id]
         due = instrument.calibration_due
+        readings.sort(key=lambda r: facts.tag(r.component_id))
+        tags = tuple(facts.tag(r.component_id) for r in readings)
         yield facts.result(
-            Severity.FAIL,
+            Severity.RETAKE,
             "calibration",
-            f"{facts.tag(reading.component_id)} {reading.quantity.label} {_shown(reading)} of "
-            f"{_day(reading)} was taken with {instrument.description} {instrument.serial}, whose "
-            f"calibration lapsed on {due.isoformat() if due else '?'}: it proves nothing, "
-            "re-test with a calibrated instrument.",
-            **facts.about(reading),
+            f"{counted(len(readings), 'reading')} of {_day(readings[0])} "
+            f"({', '.join(tags)}) {was_were(len(readings))} taken with "
+            f"the {instrument.description}, serial {instrument.serial}, whose calibration "
+            f"lapsed on {due.isoformat() if due else '?'}: "
+            f"{'it proves' if len(readings) == 1 else 'they prove'} nothing; retake "
+            f"{'it' if len(readings) == 1 else 'them'} with a calibrated instrument.",
+            component_id=readings[0].component_id if len(readings) == 1 else None,
+            component_tag=tags[0] if len(readings) == 1 else None,
+            reading_ids=tuple(r.id for r in readings),
+            listed=tags,
         )
 
 
@@ -330,27 +349,52 @@ _tag = attrgetter("tag")
 
 
 def open_defects(facts: SiteFacts) -> Iterator[Result]:
-    """Defects and items needing attention not yet put right, with how long they have been open."""
+    """Defects and items needing attention not yet put right, with how long they have been open.
+
+    A defect fails from the day it is graded: its remedy date is advice on how soon to
+    put it right, not a period of grace. Anything carried from an earlier visit past
+    its remedy date is overdue; an item needing attention is to watch until then.
+    """
     found_on = {i.id: i.date for i in facts.records.inspections}
+    by_id = {f.id: f for f in facts.records.findings}
     for finding in facts.records.findings:
         if finding.grade is Grade.SOUND or finding.resolved_by is not None:
             continue
         since = found_on.get(finding.inspection_id)
         if since is None:
             continue
-        days = (facts.today - since).days
-        late = finding.due_by is not None and finding.due_by < facts.today
-        due = f"; the remedy was due by {finding.due_by.isoformat()}" if finding.due_by else ""
+        first = first_found(finding, by_id, found_on)  # a repeat: when the fault was first seen
+        days = (facts.today - first).days
+        due_by = finding.due_by
+        late = due_by is not None and due_by < facts.today and since < facts.today
+        if late:
+            severity = Severity.OVERDUE
+        elif finding.grade is Grade.DEFECT:
+            severity = Severity.FAIL
+        else:
+            severity = Severity.WATCH
+        if due_by is None:
+            due = ""
+        elif late:
+            due = f"; the remedy was due by {due_by.isoformat()}"
+        else:
+            due = f"; remedy advised by {due_by.isoformat()}"
+        age = (
+            f"found {since.isoformat()}"
+            if days == 0
+            else f"open since {first.isoformat()} ({counted(days, 'day')})"
+        )
+        if first < since:
+            age += f", still present on {since.isoformat()}"
         action = finding.remedial_action.strip().rstrip(".") or "put it right"
         yield facts.result(
-            Severity.FAIL if late else Severity.WATCH,
+            severity,
             "carried-defect",
             f"{facts.tag(finding.component_id)}: {finding.grade.value.replace('_', ' ')} "
-            f'"{finding.text.strip()}" open since {since.isoformat()} ({days} days){due}: '
-            f"{action} and record the repair.",
+            f'"{finding.text.strip()}" {age}{due}: {action} and record the repair.',
             component_id=finding.component_id,
             component_tag=facts.tag(finding.component_id) if finding.component_id else None,
-            due=finding.due_by,
+            due=due_by,
         )
 
 
@@ -384,20 +428,34 @@ def schedule_items(facts: SiteFacts) -> Iterator[Result]:
 
 
 def drifting_electrodes(facts: SiteFacts) -> Iterator[Result]:
-    """Electrodes forecast to pass their limit before the next complete inspection: act now."""
+    """Electrodes forecast to pass their limit before the next complete inspection: act now.
+
+    An electrode whose fitted line is already above the limit while its latest reading
+    is still within it is to watch as well; one whose latest reading is above the limit
+    fails by `reading_limits` and gets no forecast here.
+    """
     for trend in facts.trends:
-        if not trend.before_next_complete:
-            continue
         latest = facts.latest.get((trend.component_id, Quantity.EARTH_ISOLATED))
         if latest is None or (
             latest.value is not None and trend.limit and latest.value > trend.limit
         ):
             continue
+        if trend.above_since is not None:
+            message = (
+                f"{trend.component_tag} electrode's fitted line is {trend.note}, though its "
+                f"latest reading {_shown(latest)} is within it: plan remedial work now."
+            )
+        elif trend.before_next_complete:
+            message = (
+                f"{trend.component_tag} electrode is rising {trend.note}: plan remedial work "
+                "before then."
+            )
+        else:
+            continue
         yield facts.result(
             Severity.WATCH,
             "trend",
-            f"{trend.component_tag} electrode is rising {trend.note}: plan remedial work "
-            "before then.",
+            message,
             component_id=trend.component_id,
             component_tag=trend.component_tag,
             value=trend.fitted_last,

@@ -147,9 +147,9 @@ class SiteSchedule:
 def intervals_for(records: SiteRecords, profile: Profile) -> tuple[int, int, str]:
     """Visual and complete intervals in months for the site, with the reason in words."""
     site = records.site
-    level = profile.intervals[site.protection_level]
+    level = profile.intervals_for(site.protection_level)
     visual, complete = level.visual_months, level.complete_months
-    basis = [f"level {site.protection_level.value}"]
+    basis = [profile.interval_basis(site.protection_level)]
     if site.critical:
         complete = min(complete, level.critical_complete_months)
         basis.append("critical")

@@ -11,11 +11,12 @@ from collections.abc import Iterable
 from datetime import date
 
 from inspectkit.engine.check import SiteCheck
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.schedule import DueStatus
 from inspectkit.model import Severity
 
 #: Words from worst to best.
-WORDS_WORST_FIRST = ("overdue", "fail", "incomplete", "due soon", "watch", "ok")
+WORDS_WORST_FIRST = ("overdue", "fail", "retake", "incomplete", "due soon", "watch", "ok")
 
 
 def standing(check: SiteCheck) -> str:
@@ -23,8 +24,8 @@ def standing(check: SiteCheck) -> str:
     schedule, worst = check.schedule, check.worst
     if schedule.status is DueStatus.OVERDUE or worst is Severity.OVERDUE:
         return "overdue"
-    if worst in (Severity.FAIL, Severity.INCOMPLETE):
-        return worst.value
+    if worst in (Severity.FAIL, Severity.RETAKE, Severity.INCOMPLETE):
+        return SEVERITY_WORDS[worst].word
     if schedule.status in (DueStatus.DUE, DueStatus.DUE_SOON):
         return "due soon"
     if worst is Severity.WATCH:

@@ -26,6 +26,7 @@ from inspectkit.engine.history import (
 )
 from inspectkit.model import Component, Quantity, Reading, SiteRecords
 from inspectkit.profiles import Profile
+from inspectkit.wording import counted
 
 #: Days in a mean calendar year, to turn dates into years.
 YEAR_DAYS = 365.25
@@ -109,7 +110,10 @@ class ElectrodeTrend:
         slope_low, slope_high: the slope's 95 % confidence interval, Ω per year.
         fitted_last: the line's value at `last_day`, Ω.
         limit: the acceptance limit, Ω.
-        crossing: forecast date the line reaches the limit (None if not rising or no forecast).
+        crossing: forecast date the line reaches the limit: always after the last reading
+            (None if not rising, no forecast, or already above the limit).
+        above_since: about when the electrode went above its limit, when it already is
+            (the fitted line's crossing, or the first of the latest run of readings above).
         next_complete: the next complete inspection's due date.
         before_next_complete: the crossing falls on or before `next_complete`.
         note: one sentence saying what the trend shows, or why there is no forecast.
@@ -134,6 +138,7 @@ class ElectrodeTrend:
     slope_high: float | None = None
     fitted_last: float | None = None
     crossing: date | None = None
+    above_since: date | None = None
     before_next_complete: bool = False
     days: tuple[date, ...] = ()
     values: tuple[float, ...] = ()
@@ -192,15 +197,17 @@ def _trend(
     days: list[date] = []
     values: list[float] = []
     ids: list[str] = []
+    last: Reading | None = None  # the latest reading that says something, over-range or not
     for reading in readings:
         value = reading.value
-        if reading.over_range or value is None:
-            over_range += 1
-            continue
         day = reading.taken_at.date()
         lapse = calibration_due.get(reading.instrument_id)
         if reading.unreliable or (lapse is not None and day > lapse):
             doubtful += 1
+            continue
+        last = reading
+        if reading.over_range or value is None:
+            over_range += 1
             continue
         days.append(day)
         values.append(value)
@@ -222,7 +229,9 @@ def _trend(
     )
     span = (days[-1] - days[0]).days / YEAR_DAYS if days else 0.0
     if len(days) < MIN_READINGS:
-        note = f"no forecast: {len(days)} usable reading(s), {MIN_READINGS} needed{left_out}"
+        note = (
+            f"no forecast: {counted(len(days), 'usable reading')}, {MIN_READINGS} needed{left_out}"
+        )
         return ElectrodeTrend(**base, note=note)
     if span < MIN_SPAN_YEARS:
         note = f"no forecast: readings span {span:.1f} years, at least 1 year needed{left_out}"
@@ -233,6 +242,10 @@ def _trend(
     typical = median(values)
     pct = 100 * fit.slope / typical if typical > 0 else None
     crossing = _crossing(fit, days[0], limit)
+    above_since = _above_since(last, days, values, crossing, limit)
+    if above_since is not None or (crossing is not None and crossing <= days[-1]):
+        above_since = above_since or crossing
+        crossing = None  # a date already passed is no forecast
     soon = crossing is not None and next_complete is not None and crossing <= next_complete
     return ElectrodeTrend(
         **base,
@@ -242,8 +255,10 @@ def _trend(
         slope_high=fit.high_slope,
         fitted_last=fit.intercept + fit.slope * xs[-1],
         crossing=crossing,
+        above_since=above_since,
         before_next_complete=soon,
-        note=_describe(fit.slope, pct, crossing, limit, next_complete, soon) + left_out,
+        note=_describe(fit.slope, pct, crossing, above_since, limit, next_complete, soon)
+        + left_out,
     )
 
 
@@ -266,15 +281,42 @@ def _crossing(fit: TheilSen, first_day: date, limit: float | None) -> date | Non
     return first_day + timedelta(days=round(max(years, 0.0) * YEAR_DAYS))
 
 
+def _above_since(
+    last: Reading | None,
+    days: list[date],
+    values: list[float],
+    crossing: date | None,
+    limit: float | None,
+) -> date | None:
+    """When an electrode whose latest reading is above its limit went above it, else None.
+
+    `last` is the latest reading that proves something; it may be an over-range one the
+    fit leaves out (an open circuit), which is above any limit below its range.
+    """
+    if limit is None or last is None or last.value is None or last.value <= limit:
+        return None
+    if crossing is not None and crossing <= last.taken_at.date():
+        return crossing
+    since = last.taken_at.date()
+    for day, value in zip(reversed(days), reversed(values), strict=True):
+        if value <= limit:
+            break
+        since = day
+    return since
+
+
 def _describe(
     slope: float,
     pct: float | None,
     crossing: date | None,
+    above_since: date | None,
     limit: float | None,
     next_complete: date | None,
     soon: bool,
 ) -> str:
     rate = f"{slope:+.2f} Ω/year" + (f" ({pct:+.1f} %/year)" if pct is not None else "")
+    if above_since is not None:
+        return f"{rate}; above the {limit:g} Ω limit since about {above_since.isoformat()}"
     if crossing is None:
         return f"{rate}; not heading for the limit"
     text = f"{rate}; reaches the {limit:g} Ω limit about {crossing.isoformat()}"

@@ -25,6 +25,7 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store, StoreError
 from inspectkit.units import format_value
+from inspectkit.wording import counted
 
 
 class AmendError(StoreError):
@@ -149,7 +150,7 @@ def describe_changes(
     added = [p for sha, p in after_p.items() if sha not in before_p]
     removed = len(before_p - set(after_p))
     if added:
-        lines.append(f"{len(added)} photo(s) added.")
+        lines.append(f"{counted(len(added), 'photo')} added.")
     if removed:
-        lines.append(f"{removed} photo(s) removed.")
+        lines.append(f"{counted(removed, 'photo')} removed.")
     return lines

@@ -13,6 +13,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from inspectkit.cautions import CAUTIONS
+from inspectkit.wording import counted
 
 if TYPE_CHECKING:
     from inspectkit.report.earthing_content import EarthingReport
@@ -39,7 +40,11 @@ class Field:
 
 @dataclass(frozen=True)
 class ReadingRow:
-    """One reading as the report's table shows it; `result` is a word."""
+    """One reading as the report's table shows it; `result` is a word.
+
+    `soil` is the ground's state recorded with it, given only where the visit's earth
+    readings differ (otherwise the inspection's "Soil" line says it once).
+    """
 
     reading_id: str
     tag: str
@@ -50,6 +55,7 @@ class ReadingRow:
     limit: str
     result: str
     note: str = ""
+    soil: str = ""
 
 
 @dataclass(frozen=True)
@@ -63,7 +69,12 @@ class PhotoItem:
 
 @dataclass(frozen=True)
 class FindingRow:
-    """A visual finding with what to do about it and the photos that show it."""
+    """A visual finding to act on, with what to do about it and the photos that show it.
+
+    Attributes:
+        priority: the heading it is listed under, e.g. "Priority 1: defects".
+        history: how long the fault has been open, for a repeat of an earlier finding.
+    """
 
     tag: str
     grade: str
@@ -72,6 +83,34 @@ class FindingRow:
     remedial_action: str
     due_by: str
     photos: tuple[PhotoItem, ...] = ()
+    priority: str = ""
+    history: str = ""
+
+
+@dataclass(frozen=True)
+class SoundRow:
+    """A component graded sound: one line of the compact table, not a paragraph."""
+
+    tag: str
+    component: str
+    remark: str = ""
+
+
+@dataclass(frozen=True)
+class Action:
+    """One thing the client must have done, for the first page's list.
+
+    Attributes:
+        when: by when, in words ("now", "by 2027-01-31", "at a return visit").
+        result: the severity word in capitals.
+        tag: the component, or "site".
+        what: the engine's sentence.
+    """
+
+    when: str
+    result: str
+    tag: str
+    what: str
 
 
 @dataclass(frozen=True)
@@ -117,7 +156,11 @@ class ReportContent:
         site, structure, inspection, inspector: labelled detail lines.
         instruments: rows of (description, serial, calibration due, state in words).
         readings: every reading with its limit and result.
-        findings: every visual finding.
+        findings: the visual findings to act on (defects, then items needing attention).
+        sound: the components graded sound, as a compact table.
+        actions: what to have done, by when, most urgent first (first page).
+        visits: what the actions and the schedule cost in visits, in sentences.
+        legend: (word, meaning) of each severity the report uses.
         notices: engine results not tied to one reading's limit.
         trends: electrode trend charts.
         schedule: next inspections in words.
@@ -155,6 +198,10 @@ class ReportContent:
     amends: str = ""
     amendment: tuple[str, ...] = ()
     general_photos: tuple[PhotoItem, ...] = ()
+    sound: tuple[SoundRow, ...] = ()
+    actions: tuple[Action, ...] = ()
+    visits: tuple[str, ...] = ()
+    legend: tuple[tuple[str, str], ...] = ()
     cautions: tuple[str, ...] = CAUTIONS
     deferral: str = DEFERRAL
     earthing: EarthingReport | None = None
@@ -189,8 +236,20 @@ def text_sections(content: ReportContent) -> list[Section]:
     def fields(items: tuple[Field, ...]) -> tuple[str, ...]:
         return tuple(f"{f.label}: {f.value}" for f in items if f.value)
 
-    opening = (content.site_name, f"{content.verdict_word}: {content.verdict}", *content.headline)
+    opening = (
+        content.site_name,
+        f"{content.verdict_word}: {content.verdict}",
+        *content.headline,
+        *content.visits,
+    )
     sections = [Section(content.title, opening + ((content.amends,) if content.amends else ()))]
+    sections.append(
+        Section(
+            "What to do, by when",
+            tuple(f"{a.when:<16} {a.result:<10} {a.tag:<8} {a.what}" for a in content.actions)
+            or ("Nothing to do before the next routine inspection.",),
+        )
+    )
     if content.amendment:
         sections.append(Section("What this amendment changed", content.amendment))
     sections += [
@@ -214,15 +273,20 @@ def text_sections(content: ReportContent) -> list[Section]:
             or ("No readings.",),
         ),
         Section(
-            "Findings",
+            "Findings to act on",
             tuple(
                 f"{f.tag:<8} {f.grade}: {f.text}"
                 + (f" — {f.remedial_action}" if f.remedial_action else "")
                 + (f" (by {f.due_by})" if f.due_by else "")
-                + (f" [{len(f.photos)} photo(s)]" if f.photos else "")
+                + (f" [{counted(len(f.photos), 'photo')}]" if f.photos else "")
+                + (f" ({f.history})" if f.history else "")
                 for f in content.findings
             )
-            or ("No findings.",),
+            or ("Nothing to act on was found.",),
+        ),
+        Section(
+            "Components found sound",
+            (", ".join(r.tag for r in content.sound),) if content.sound else ("None.",),
         ),
         Section(
             "Electrode trends",
@@ -238,5 +302,6 @@ def text_sections(content: ReportContent) -> list[Section]:
         ),
         Section("Not inspected", (content.not_inspected or "Every part listed was inspected.",)),
         Section("Safety", (*content.cautions, content.deferral)),
+        Section("What the result words mean", tuple(f"{w}: {m}" for w, m in content.legend)),
     ]
     return sections

@@ -1,8 +1,8 @@
 """The report's earthing section: survey table and chart, electrode lengths against l1, traverses.
 
 Laid out from `EarthingReport` with reportlab; charts differ by marker and dash as
-well as colour, so they read in black and white. The story calls
-`earthing_flowables` once; it returns nothing when the site has no earthing data.
+well as colour, so they read in black and white. `earthing` is one
+of the report's `SECTIONS`; it returns nothing when the site has no earthing data.
 """
 
 from __future__ import annotations
@@ -11,42 +11,27 @@ from reportlab.graphics.charts.lineplots import LinePlot
 from reportlab.graphics.shapes import Drawing, Line, String
 from reportlab.graphics.widgets.markers import makeMarker
 from reportlab.lib import colors
-from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
-from reportlab.platypus import CondPageBreak, Flowable, KeepTogether, Paragraph, Table, TableStyle
+from reportlab.platypus import CondPageBreak, Flowable, KeepTogether, Table
 
 from inspectkit.engine.earthing import POTENTIAL_PROBE_FRACTION
-from inspectkit.report.earthing_content import EarthingReport, SurveyBlock, TraverseBlock
+from inspectkit.report.content import ReportContent
+from inspectkit.report.earthing_content import SurveyBlock, TraverseBlock
+from inspectkit.report.layout import Kit, grid
 
 FONT = "Vera"
 _MARKERS = ("FilledCircle", "FilledSquare", "FilledDiamond", "Circle")
 _DASHES = (None, (4, 2), (1, 2), (6, 2, 1, 2))
 
 
-def _escaped(text: str) -> str:
-    """Text for a Paragraph; ρ spelt "rho", since the report's font (Vera) has no ρ."""
-    return text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;").replace("ρ", "rho")
+def _rho(text: str) -> str:
+    """ρ spelt "rho": the report's font (Vera) has no ρ."""
+    return text.replace("ρ", "rho")
 
 
-def _table(
-    head: list[str], rows: list[list[str]], widths: list[float], cell: ParagraphStyle, colour: str
-) -> Table:
-    """A plain ruled table with a tinted header; text wraps in its cells."""
-    body = [[Paragraph(f"<b>{_escaped(h)}</b>", cell) for h in head]]
-    body += [[Paragraph(_escaped(v), cell) for v in row] for row in rows]
-    table = Table(body, colWidths=widths, repeatRows=1)
-    table.setStyle(
-        TableStyle(
-            [
-                ("LINEBELOW", (0, 0), (-1, 0), 1, colors.HexColor(colour)),
-                ("LINEBELOW", (0, 1), (-1, -1), 0.25, colors.HexColor("#BBBBBB")),
-                ("VALIGN", (0, 0), (-1, -1), "TOP"),
-                ("LEFTPADDING", (0, 0), (-1, -1), 3),
-                ("RIGHTPADDING", (0, 0), (-1, -1), 3),
-            ]
-        )
-    )
-    return table
+def _grid(head: list[str], rows: list[list[str]], shares: tuple[float, ...], kit: Kit) -> Table:
+    return grid(head, [[_rho(v) for v in row] for row in rows],
+                [w * kit.width for w in shares], kit.styles, kit.branding)  # fmt: skip
 
 
 def _plot(width: float, height: float, title: str) -> tuple[Drawing, LinePlot]:
@@ -104,52 +89,53 @@ def traverse_drawing(block: TraverseBlock, width: float, height: float, colour: 
     return drawing
 
 
-def earthing_flowables(
-    report: EarthingReport | None, styles: dict[str, ParagraphStyle], width: float, colour: str
-) -> list[Flowable]:
-    """The section's flowables, or none when the report has no earthing section."""
+def earthing(content: ReportContent, kit: Kit) -> list[Flowable]:
+    """The section's flowables, or none when the site has no earthing data."""
+    report = content.earthing
     if report is None:
         return []
+    colour = kit.branding.primary
+
+    def para(text: str, style: str = "body") -> Flowable:
+        return kit.para(_rho(text), style)
+
     out: list[Flowable] = [
         CondPageBreak(80 * mm),
-        Paragraph("Earthing", styles["h1"]),
-        Paragraph(
-            f"Design soil resistivity: {_escaped(report.design)}. Electrode lengths are judged "
-            "against IEC 62305-3 clause 5.4.2 with l1 from its Figure 2 (key points from "
-            "memory); expected rod resistances by Dwight's formula (IEEE Std 142). Both are "
-            "advice: a short electrode may be acceptable below the resistance limit, and "
-            "layered soil alone can explain a difference.",
-            styles["small"],
+        para("Earthing", "h1"),
+        para(
+            f"Design soil resistivity: {report.design}. Electrode lengths are judged against "
+            "IEC 62305-3 clause 5.4.2 with l1 from its Figure 2 (key points from memory); "
+            "expected rod resistances by Dwight's formula (IEEE Std 142). Both are advice: a "
+            "short electrode may be acceptable below the resistance limit, and layered soil "
+            "alone can explain a difference.",
+            "small",
         ),
     ]
-    cell = styles["cell"]
     if report.surveys:
-        out.append(Paragraph("Soil resistivity (Wenner, IEEE Std 81)", styles["h2"]))
+        out.append(para("Soil resistivity (Wenner, IEEE Std 81)", "h2"))
         for survey in report.surveys:
             rows = [[f"{a:g}", f"{r:.4g}", f"{rho:.3g}", flag] for a, r, rho, flag in survey.rows]
             out.append(KeepTogether([
-                Paragraph(_escaped(survey.title), styles["body"]),
-                _table(["a (m)", "R (Ω)", "rho (Ω·m)", "note"], rows,
-                       [w * width for w in (0.15, 0.2, 0.2, 0.45)], cell, colour),
-                Paragraph(_escaped(survey.message), styles["small"]),
+                para(survey.title),
+                _grid(["a (m)", "R (Ω)", "rho (Ω·m)", "note"], rows, (0.15, 0.2, 0.2, 0.45), kit),
+                para(survey.message, "small"),
             ]))  # fmt: skip
-        out.append(survey_drawing(report.surveys, width, 55 * mm, colour))
+        out.append(survey_drawing(report.surveys, kit.width, 55 * mm, colour))
     if report.electrodes:
-        out.append(Paragraph("Electrodes against the minimum length l1", styles["h2"]))
-        out.append(_table(
+        out.append(para("Electrodes against the minimum length l1", "h2"))
+        out.append(_grid(
             ["Tag", "Form", "Size", "Needs", "Result", "Expected", "Measured"],
             [list(row) for row in report.electrodes],
-            [w * width for w in (0.08, 0.15, 0.15, 0.17, 0.15, 0.1, 0.2)], cell, colour,
+            (0.08, 0.15, 0.15, 0.17, 0.15, 0.1, 0.2), kit,
         ))  # fmt: skip
-    for note in report.notes:
-        out.append(Paragraph(_escaped(note), styles["small"]))
-    heading = Paragraph("Fall-of-potential traverses (IEEE Std 81)", styles["h2"])
+    out.extend(para(note, "small") for note in report.notes)
+    heading = para("Fall-of-potential traverses (IEEE Std 81)", "h2")
     for n, block in enumerate(report.traverses):
         band = f"±{100 * block.tolerance:g} %"
         out.append(KeepTogether([
             *([heading] if n == 0 else []),
-            traverse_drawing(block, width * 0.62, 55 * mm, colour),
-            Paragraph(f"{_escaped(block.verdict)}. Dashed lines: the {band} plateau band about "
-                      "the 61.8 % value.", styles["small"]),
+            traverse_drawing(block, kit.width * 0.62, 55 * mm, colour),
+            para(f"{block.verdict}. Dashed lines: the {band} plateau band about the 61.8 % "
+                 "value.", "small"),
         ]))  # fmt: skip
     return out

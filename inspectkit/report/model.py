@@ -11,21 +11,17 @@ from __future__ import annotations
 from collections import Counter
 from datetime import date, datetime, timedelta
 
-from inspectkit.engine.check import SiteCheck, check_site
-from inspectkit.engine.history import as_of, calibration_lapsed, electrode_count, series, usable
-from inspectkit.engine.results import Result
+from inspectkit.engine.check import check_site
+from inspectkit.engine.history import as_of, calibration_lapsed, usable
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
-    Component,
     EarthingArrangement,
     Finding,
-    Grade,
     Inspection,
     InspectionKind,
     InspectionState,
     Inspector,
-    Method,
     Photo,
     Reading,
     Severity,
@@ -33,42 +29,26 @@ from inspectkit.model import (
     SiteRecords,
 )
 from inspectkit.profiles import Profile, load_profile
+from inspectkit.report.actions import actions, headline, legend, visits
 from inspectkit.report.amend import chain_of, describe_changes
 from inspectkit.report.content import (
     Field,
-    FindingRow,
     Notice,
-    PhotoItem,
-    ReadingRow,
     ReportContent,
     TrendChart,
 )
 from inspectkit.report.earthing_content import earthing_report
+from inspectkit.report.findings import visit_findings
+from inspectkit.report.letterhead import organisation_of
+from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
 from inspectkit.store import Store, StoreError
-from inspectkit.store.photos import photo_path
 from inspectkit.store.queries import load_site_records
-from inspectkit.units import format_value
 
 
 class ReportError(StoreError):
     """A report cannot be built as asked; the message says why."""
 
 
-#: Words for the engine's severities, as a reading's result or the verdict.
-RESULT_WORDS = {
-    Severity.OK: "PASS",
-    Severity.WATCH: "WATCH",
-    Severity.INCOMPLETE: "INCOMPLETE",
-    Severity.FAIL: "FAIL",
-    Severity.OVERDUE: "OVERDUE",
-}
-#: Why a reading got its result, by the engine rule that gave it.
-_RULE_REASONS = {
-    "limit": "above the limit",
-    "rise": "rise on earlier readings",
-    "calibration": "instrument out of calibration",
-    "unreliable": "marked doubtful",
-}
 _VERDICTS = {
     Severity.OK: ("SATISFACTORY", "Every reading is within its limit and nothing needs action."),
     Severity.WATCH: (
@@ -78,6 +58,11 @@ _VERDICTS = {
     Severity.INCOMPLETE: (
         "INCOMPLETE",
         "Some tests the inspection should include were not taken; see the summary.",
+    ),
+    Severity.RETAKE: (
+        "READINGS TO RETAKE",
+        "Some readings were taken with an instrument out of calibration and prove nothing; "
+        "they must be taken again before the system can be judged.",
     ),
     Severity.FAIL: (
         "ACTION NEEDED",
@@ -99,17 +84,6 @@ _KIND_TITLES = {
 
 #: Trend charts look this far past the last reading at least (our default).
 CHART_YEARS_AHEAD = 3
-
-#: How each method is written in a report.
-METHOD_WORDS = {
-    Method.FALL_OF_POTENTIAL_3P: "fall of potential (3-pole)",
-    Method.FOUR_POLE: "4-pole",
-    Method.CLAMP_ON: "clamp-on",
-    Method.LOW_OHM_2W: "low-ohm, 2-wire",
-    Method.LOW_OHM_4W: "low-ohm, 4-wire",
-    Method.WENNER: "Wenner",
-    Method.COUNTER_READ: "counter read",
-}
 
 
 def _words(value: str) -> str:
@@ -155,114 +129,6 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
         }
     )
     return as_of(trimmed, inspection.date)
-
-
-def _reading_result(
-    reading: Reading, results: list[Result], judged: bool, limit: float | None
-) -> str:
-    """The result word for a reading, from what the engine said about it."""
-    if results:
-        worst = max(results, key=lambda r: r.severity.rank)
-        reasons = ", ".join(dict.fromkeys(_RULE_REASONS.get(r.rule, r.rule) for r in results))
-        return f"{RESULT_WORDS[worst.severity]}: {reasons}"
-    if not judged:
-        return "SUPERSEDED: re-tested, see the later reading"
-    if limit is None:
-        return "RECORDED: no limit applies"
-    return RESULT_WORDS[Severity.OK]
-
-
-def _readings(
-    inspection: Inspection,
-    records: SiteRecords,
-    check: SiteCheck,
-    profile: Profile,
-    components: dict[str, Component],
-) -> tuple[ReadingRow, ...]:
-    by_reading: dict[str, list[Result]] = {}
-    for result in check.results:
-        if result.reading_id:
-            by_reading.setdefault(result.reading_id, []).append(result)
-    latest = {group[-1].id for group in series(records.readings).values()}
-    count = electrode_count(records, inspection.date)
-    rows = []
-    mine = [r for r in records.readings if r.inspection_id == inspection.id]
-    order = {kind: n for n, kind in enumerate(WALKING_ORDER)}
-    for reading in sorted(
-        mine,
-        key=lambda r: (
-            order.get(components[r.component_id].kind, 99) if r.component_id in components else 99,
-            components[r.component_id].tag if r.component_id in components else "",
-            r.taken_at,
-        ),
-    ):
-        component = components.get(reading.component_id)
-        limit = profile.limit_for(reading.quantity, count)
-        rows.append(
-            ReadingRow(
-                reading_id=reading.id,
-                tag=component.tag if component else "?",
-                component=component.kind.label if component else "unknown component",
-                quantity=reading.quantity.label,
-                method=METHOD_WORDS[reading.method],
-                value=format_value(reading.value, reading.quantity, reading.over_range),
-                limit=f"≤ {format_value(limit, reading.quantity)}" if limit is not None else "—",
-                result=_reading_result(
-                    reading, by_reading.get(reading.id, []), reading.id in latest, limit
-                ),
-                note=reading.note,
-            )
-        )
-    return tuple(rows)
-
-
-def _photo_item(store: Store, photo: Photo, components: dict[str, Component]) -> PhotoItem:
-    component = components.get(photo.component_id or "")
-    caption = photo.caption or photo.original_name
-    if component is not None:
-        caption = f"{component.tag}: {caption}"
-    return PhotoItem(photo.id, photo_path(store, photo.sha256), caption)
-
-
-def _findings(
-    store: Store, inspection: Inspection, records: SiteRecords, components: dict[str, Component]
-) -> tuple[tuple[FindingRow, ...], tuple[PhotoItem, ...]]:
-    mine = [f for f in records.findings if f.inspection_id == inspection.id]
-    photos = [p for p in records.photos if p.inspection_id == inspection.id]
-    rank = {Grade.DEFECT: 0, Grade.NEEDS_ATTENTION: 1, Grade.SOUND: 2}
-    mine.sort(
-        key=lambda f: (
-            rank[f.grade],
-            components[f.component_id].tag if f.component_id in components else "",
-        )
-    )
-    shown: set[str] = set()
-    rows = []
-    for finding in mine:
-        own = [
-            p
-            for p in photos
-            if p.component_id and p.component_id == finding.component_id and p.id not in shown
-        ]
-        shown.update(p.id for p in own)
-        rows.append(_finding_row(store, finding, own, components))
-    rest = tuple(_photo_item(store, p, components) for p in photos if p.id not in shown)
-    return tuple(rows), rest
-
-
-def _finding_row(
-    store: Store, finding: Finding, photos: list[Photo], components: dict[str, Component]
-) -> FindingRow:
-    component = components.get(finding.component_id or "")
-    return FindingRow(
-        tag=component.tag if component else "site",
-        grade=_words(finding.grade.value).upper(),
-        category=finding.category,
-        text=finding.text,
-        remedial_action=finding.remedial_action,
-        due_by=finding.due_by.isoformat() if finding.due_by else "",
-        photos=tuple(_photo_item(store, p, components) for p in photos),
-    )
 
 
 def _trend_chart(trend: ElectrodeTrend, records: SiteRecords) -> TrendChart | None:
@@ -342,7 +208,7 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
         c.kind for c in records.components if c.retired_on is None or c.retired_on > on
     )
     fields = [
-        Field("Protection level", f"LPL {site.protection_level.value}"),
+        Field(*profile.grading(site.protection_level, site.height_m)),
         Field(
             "Rule set",
             f"{profile.title or profile.name}"
@@ -443,25 +309,18 @@ def build_report(
     check = check_site(records, profile, inspection.date)
     components = {c.id: c for c in records.components}
     inspector = store.get(Inspector, inspection.inspector_id) if inspection.inspector_id else None
+    organisation = organisation_of(store, inspector)
+    org_name = organisation.name if organisation else (inspector.organisation if inspector else "")
 
-    readings = _readings(inspection, records, check, profile, components)
-    findings, general_photos = _findings(store, inspection, records, components)
+    readings = reading_rows(inspection, records, check, profile, components)
+    seen = visit_findings(store, inspection, records, components)
+    findings = seen.to_act_on
     trends = tuple(
         chart for chart in (_trend_chart(t, records) for t in check.trends) if chart is not None
     )
     revision_label = _revision_label(inspection, signing)
-    worst = check.worst
-    verdict_word, verdict = _VERDICTS[worst]
-    tally = Counter(row.result.split(":")[0] for row in readings)
-    grades = Counter(f.grade for f in findings)
-    headline = [
-        f"{len(readings)} readings: "
-        + (", ".join(f"{n} {w.lower()}" for w, n in tally.most_common()) or "none taken"),
-        f"{len(findings)} findings: "
-        + (", ".join(f"{n} {g.lower()}" for g, n in grades.most_common()) or "none recorded"),
-        f"Next visual inspection due {check.schedule.next_visual.isoformat()}, "
-        f"next complete inspection due {check.schedule.next_complete.isoformat()}",
-    ]
+    verdict_word, verdict = _VERDICTS[check.worst]
+    to_do = actions(check)
     amends_text = ""
     changes: tuple[str, ...] = ()
     earlier = chain_of(store, inspection)
@@ -478,14 +337,15 @@ def build_report(
                 _parts(all_records, original.id), _parts(all_records, inspection.id), components
             )
         ) or ("No reading, finding or photo was changed.",)
+    visit_readings = [r for r in records.readings if r.inspection_id == inspection.id]
     inspection_fields = [
         Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
         Field("Inspector", inspector.name if inspector else "not recorded"),
         Field("Qualification", inspector.qualification if inspector else ""),
-        Field("Organisation", inspector.organisation if inspector else ""),
+        Field("Organisation", org_name),
         Field("Accompanied by", inspection.accompanied_by),
         Field("Weather", inspection.weather),
-        Field("Soil", inspection.soil.value if inspection.soil else "not recorded"),
+        Field("Soil", soil_words(inspection, visit_readings)),
         *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
         Field("Report", revision_label),
         Field("Inspection id", inspection.id),
@@ -498,7 +358,7 @@ def build_report(
         inspection_date=inspection.date,
         verdict=verdict,
         verdict_word=verdict_word,
-        headline=tuple(headline),
+        headline=headline(to_do, readings, findings, seen.sound),
         site=_general(site),
         structure=_structure(records, profile, inspection.date),
         inspection=tuple(inspection_fields),
@@ -523,10 +383,14 @@ def build_report(
         changes_since_last=inspection.changes_since_last,
         signer_name=inspector.name if inspector else "",
         signer_qualification=inspector.qualification if inspector else "",
-        signer_organisation=inspector.organisation if inspector else "",
+        signer_organisation=org_name,
         amends=amends_text,
         amendment=changes,
-        general_photos=general_photos,
+        general_photos=seen.other_photos,
+        sound=seen.sound,
+        actions=to_do,
+        visits=visits(check),
+        legend=legend(),
         earthing=earthing_report(records, profile, inspection.date, inspection.id),
     )
 

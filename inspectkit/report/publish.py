@@ -16,9 +16,10 @@ from pathlib import Path
 from typing import Any
 
 from inspectkit.model import Inspection, InspectionState, Inspector, utcnow
-from inspectkit.report.branding import Branding, load_branding
+from inspectkit.report.branding import Branding
 from inspectkit.report.content import ReportContent
 from inspectkit.report.keys import KeyProblem, key_path, sign_payload
+from inspectkit.report.letterhead import report_branding
 from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
 from inspectkit.report.sign import SignedReport, SignError, async_sign_pdf, sign_pdf
@@ -108,14 +109,14 @@ def prepare(
         sign: The report will be signed: the inspection must be a draft whose
             inspector has a key.
         keep_photos: Ids of the photos to include (all by default).
-        branding: The contractor's branding (templates/report.toml by default).
+        branding: The letterhead (by default the inspector's organisation's).
         now: The signing time (tests pass a fixed one).
 
     Raises:
         ReportError: no such inspection, already signed, or no inspector key.
     """
     inspection, content, key, signing_at = _plan(store, inspection_id, sign, keep_photos, now)
-    rendered = render_report(content, branding or load_branding())
+    rendered = render_report(content, branding or report_branding(store, inspection))
     covered = covered_now(store, inspection_id) if sign else None
     return Prepared(inspection, content, rendered, key, signing_at, covered)
 
@@ -249,7 +250,8 @@ async def export_report_async(
     inspection, content, key, signing_at = _plan(
         store, inspection_id, passphrase is not None, keep_photos, now
     )
-    rendered = await asyncio.to_thread(render_report, content, branding or load_branding())
+    letterhead = branding or report_branding(store, inspection)
+    rendered = await asyncio.to_thread(render_report, content, letterhead)
     covered = covered_now(store, inspection_id) if passphrase is not None else None
     prepared = Prepared(inspection, content, rendered, key, signing_at, covered)
     signed = None

@@ -318,19 +318,19 @@ def last_write(store: Store) -> int | None:
     return store.db.execute("SELECT MAX(rowid) FROM audit").fetchone()[0]
 
 
-def site_listing(store: Store) -> list[tuple[str, str, str, str, str, date | None]]:
-    """(id, name, level, client, town, last visit) of every site, in one lean query.
+def site_listing(store: Store) -> list[tuple[str, str, str, str, str, date | None, str]]:
+    """(id, name, level, client, town, last visit, profile) of every site, in one lean query.
 
     A list of thousands of sites is the first thing on screen, so this skips
     building full records.
     """
     cursor = store.db.execute(
-        "SELECT s.id, s.name, s.protection_level, s.client, s.town, MAX(i.date) FROM site s"
-        " LEFT JOIN inspection i ON i.site_id = s.id GROUP BY s.id"
+        "SELECT s.id, s.name, s.protection_level, s.client, s.town, MAX(i.date), s.profile"
+        " FROM site s LEFT JOIN inspection i ON i.site_id = s.id GROUP BY s.id"
     )
     return [
-        (site_id, name, level, client, town, date.fromisoformat(last) if last else None)
-        for site_id, name, level, client, town, last in cursor
+        (site_id, name, level, client, town, date.fromisoformat(last) if last else None, profile)
+        for site_id, name, level, client, town, last, profile in cursor
     ]
 
 

@@ -266,6 +266,33 @@ def _trust(db: sqlite_utils.Database) -> None:
     db.execute("ALTER TABLE audit ADD COLUMN mac TEXT")
 
 
+def _repeat_findings(db: sqlite_utils.Database) -> None:
+    """A finding can name the earlier open finding of the same fault it repeats."""
+    _add_columns(db, {"finding": ("same_as_id TEXT",)})
+
+
+def _organisations(db: sqlite_utils.Database) -> None:
+    """Inspecting organisations as records; an inspector belongs to one."""
+    db.executescript(
+        f"""
+        CREATE TABLE organisation (
+            id TEXT PRIMARY KEY,
+            name TEXT NOT NULL,
+            address TEXT NOT NULL DEFAULT '',
+            phone TEXT NOT NULL DEFAULT '',
+            email TEXT NOT NULL DEFAULT '',
+            logo TEXT NOT NULL DEFAULT '',
+            "primary" TEXT NOT NULL DEFAULT '#1F4E79',
+            accent TEXT NOT NULL DEFAULT '#C98A1B',
+            is_default INTEGER NOT NULL DEFAULT 0,
+            {_STAMPS}
+        );
+        """
+    )
+    # No foreign key: organisations stay on their laptop, inspectors travel in bundles.
+    _add_columns(db, {"inspector": ("organisation_id TEXT",)})
+
+
 #: Columns for earthing work: a reading's traverse, an electrode's form and size.
 _EARTHING_COLUMNS = {
     "reading": ("traverse TEXT",),
@@ -308,6 +335,8 @@ MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _entry_drafts,
     _retired_people_and_instruments,
     _trust,
+    _repeat_findings,
+    _organisations,
     _earthing,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -69,6 +69,7 @@ from inspectkit.sync.guard import (
 )
 from inspectkit.sync.photo_members import PhotoChecks, add_photos
 from inspectkit.sync.versions import known_versions, version_hash
+from inspectkit.wording import counted
 
 FORMAT = "inspectkit-bundle"
 VERSION = 1
@@ -180,7 +181,7 @@ def _fill(
     missing = [sha for sha in shas if not photo_path(store, sha).is_file()]
     if missing:
         raise BundleError(
-            f"{len(missing)} photo file(s) missing on disk (first {missing[0]}); "
+            f"{counted(len(missing), 'photo file')} missing on disk (first {missing[0]}); "
             "run `inspectkit doctor` to see how to restore them"
         )
     files = [(photo_path(store, sha), f"{PHOTO_PREFIX}{sha}") for sha in shas]

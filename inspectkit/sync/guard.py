@@ -169,7 +169,11 @@ def bounded_photos(
     photo_rows = tables.get("photo", []) if isinstance(tables, dict) else []
     if not isinstance(photo_rows, list):
         photo_rows = []
-    named = {row.get("sha256") for row in photo_rows if isinstance(row, dict)}
+    named = {
+        row["sha256"]
+        for row in photo_rows
+        if isinstance(row, dict) and isinstance(row.get("sha256"), str)  # a list is no name
+    }
     for info in pictures:
         if info.filename.removeprefix(PHOTO_PREFIX) not in named:
             raise BundleError(

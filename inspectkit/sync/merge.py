@@ -50,6 +50,7 @@ from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits, site_label
 from inspectkit.sync.signers import check_signed_inspections, untrusted_signers
 from inspectkit.sync.versions import known_versions, version_hash
+from inspectkit.wording import counted, was_were
 
 Side = Literal["ours", "theirs"]
 #: A row to write: table, stored-form row, and "added" or "updated".
@@ -105,29 +106,36 @@ class ImportReport:
 
     def lines(self) -> list[str]:
         """The report as sentences, one per line."""
-        verb = "would be" if self.dry_run else "were"
+        def done(count: int, noun: str) -> str:
+            """ "1 record was", "3 records would be"."""
+            verb = "would be" if self.dry_run else was_were(count)
+            return f"{counted(count, noun)} {verb}"
+
         lines = [f"Bundle for site {self.site_name}:"]
         for what, counts in (("added", self.added), ("updated", self.updated)):
             if counts:
                 parts = ", ".join(f"{table} {n}" for table, n in sorted(counts.items()))
-                lines.append(f"  {sum(counts.values())} records {verb} {what} ({parts})")
-        lines.append(f"  {self.unchanged} records already the same")
+                lines.append(f"  {done(sum(counts.values()), 'record')} {what} ({parts})")
+        lines.append(f"  {counted(self.unchanged, 'record')} already the same")
         if self.kept_newer:
-            lines.append(f"  {self.kept_newer} records kept ours: ours is the later version")
+            lines.append(
+                f"  {counted(self.kept_newer, 'record')} kept ours: ours is the later version"
+            )
         if self.removed:
             parts = ", ".join(f"{table} {n}" for table, n in sorted(self.removed.items()))
             lines.append(
-                f"  {sum(self.removed.values())} records {verb} removed, as withdrawn on the "
+                f"  {done(sum(self.removed.values()), 'record')} removed, as withdrawn on the "
                 f"other side ({parts}); they are in the audit log"
             )
         if self.kept_deleted:
-            lines.append(f"  {self.kept_deleted} records stay withdrawn here")
+            stay = "stays" if self.kept_deleted == 1 else "stay"
+            lines.append(f"  {counted(self.kept_deleted, 'record')} {stay} withdrawn here")
         lines.extend(
             f"  kept: {label} was withdrawn on one side, edited or signed on the other"
             for label in self.kept_edited
         )
         if self.photos_added:
-            lines.append(f"  {self.photos_added} photo files {verb} added")
+            lines.append(f"  {done(self.photos_added, 'photo file')} added")
         lines.extend(f"  kept ours: signed — {message}" for message in self.kept_signed)
         lines.extend(f"  {message}" for message in self.notices)
         for c in self.conflicts:
@@ -344,7 +352,7 @@ def _check_references(store: Store, bundle: Bundle) -> None:
             table, row_id, name = refs[missing[0]]
             raise BundleError(
                 f"{table} {row_id} refers to {target} {missing[0]} ({name}), which is neither "
-                f"in the bundle nor in this database ({len(missing)} such reference(s)); "
+                f"in the bundle nor in this database ({counted(len(missing), 'such reference')}); "
                 "import the bundle it came with first, or export without --since"
             )
 

@@ -72,6 +72,7 @@ class InspectApp(App[None]):
         self.db_path = Path(db_path)
         self._today = today
         self.store = Store.open(self.db_path)
+        _first_start_organisation(self.store)
         self.settings = Preferences(self.store)
         self.set_keymap(self.settings.keymap)
         self.sub_title = self.db_path.name
@@ -97,6 +98,17 @@ class InspectApp(App[None]):
 
     def on_unmount(self) -> None:
         self.store.close()
+
+
+def _first_start_organisation(store: Store) -> None:
+    """At first start the branding file becomes the default organisation (see letterhead)."""
+    from inspectkit.report.branding import BrandingError
+    from inspectkit.report.letterhead import ensure_default_organisation
+
+    try:
+        ensure_default_organisation(store)
+    except BrandingError:
+        pass  # a broken branding file is reported when a report is made, not at start
 
 
 def make_app(db_path: Path, today: date | None = None) -> InspectApp:

@@ -12,7 +12,11 @@ from inspectkit.cautions import CAUTIONS, TITLE
 
 
 class CautionsDialog(ModalScreen[bool]):
-    """Shows the cautions; dismisses with True when they are acknowledged."""
+    """Shows the cautions; dismisses with True only when "I have read these" is chosen.
+
+    Escape closes the dialog without acknowledging, so that at first start the
+    cautions come back at the next start until someone says they read them.
+    """
 
     DEFAULT_CSS = """
     CautionsDialog { align: center middle; }
@@ -28,8 +32,8 @@ class CautionsDialog(ModalScreen[bool]):
 
     BINDINGS = [
         Binding(
-            "enter,escape", "acknowledge", "I have read these", id="cautions.ok",
-            tooltip="Close the cautions; F1 shows them again",
+            "escape", "close", "Close", id="cautions.close",
+            tooltip="Close without acknowledging: they show again at the next start",
         ),
     ]
 
@@ -48,5 +52,5 @@ class CautionsDialog(ModalScreen[bool]):
         event.stop()
         self.dismiss(True)
 
-    def action_acknowledge(self) -> None:
-        self.dismiss(True)
+    def action_close(self) -> None:
+        self.dismiss(False)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from datetime import date
 
 from inspectkit.model import (
@@ -12,10 +13,11 @@ from inspectkit.model import (
     ElectrodeType,
     Inspector,
     Instrument,
+    Organisation,
     ProtectionLevel,
     Site,
 )
-from inspectkit.profiles import load_all_profiles
+from inspectkit.profiles import level_shown, load_all_profiles
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
 
 DATE_HINT = "a date as YYYY-MM-DD"
@@ -65,6 +67,10 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("notes", "Notes"),
     ]
     base = site.model_dump() if site else {"profile": "iec-62305-3"}
+    if site is not None and level_shown(site.profile, site.protection_level, None) is None:
+        # Its standard has no protection levels: the field is not asked (the stored value
+        # stays as it was, unused).
+        fields = [f for f in fields if f.name != "protection_level"]
     return RecordDialog("Edit site" if site else "New site", Site, fields, base)
 
 
@@ -112,11 +118,25 @@ def component_dialog(
     return RecordDialog(title, Component, fields, base)
 
 
-def inspector_dialog() -> RecordDialog[Inspector]:
-    """Add an inspector, the person whose name goes on inspections."""
+def inspector_dialog(organisations: Sequence[Organisation] = ()) -> RecordDialog[Inspector]:
+    """Add an inspector, the person whose name goes on inspections.
+
+    With organisations on record the inspector is picked into one (its letterhead
+    goes on their reports); without, the organisation is a name typed in.
+    """
+    belongs = (
+        Field(
+            "organisation_id",
+            "Organisation",
+            choices=[(o.name, o.id) for o in organisations],
+            optional=True,
+        )
+        if organisations
+        else Field("organisation", "Organisation")
+    )
     fields = [
         Field("name", "Name", "the inspector's full name"),
-        Field("organisation", "Organisation"),
+        belongs,
         Field("qualification", "Qualification"),
     ]
     return RecordDialog("New inspector", Inspector, fields, {})

@@ -10,7 +10,7 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
-from inspectkit.model import Inspector, Instrument, Record, Site
+from inspectkit.model import Inspector, Instrument, Organisation, Record, Site
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
 
@@ -134,7 +134,8 @@ class SettingsScreen(Screen[None]):
         self.app.push_screen(dialog, saved)  # type: ignore[arg-type]
 
     def action_add_inspector(self) -> None:
-        self._add(inspector_dialog(), "inspector_id")
+        organisations = self.app.store.select(Organisation, order_by="name")
+        self._add(inspector_dialog(organisations), "inspector_id")
 
     def action_add_instrument(self) -> None:
         self._add(instrument_dialog(), "instrument_id")

@@ -14,6 +14,7 @@ from textual.widgets import DataTable, Footer, Header, Static, TabbedContent, Ta
 
 from inspectkit.earthing_jobs import record_survey
 from inspectkit.engine.history import in_service, series
+from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.schedule import DueStatus
 from inspectkit.model import (
     WALKING_ORDER,
@@ -159,8 +160,15 @@ class SiteScreen(Screen[None]):
         """Read the site again and judge it; quick for one site, so done on the spot."""
         store, today = self.app.store, self.app.today
         self.records = records = load_site_records(store, self.site_id)
-        self.state = judge(records, today, ProfileCache())
+        profiles = ProfileCache()
+        self.state = judge(records, today, profiles)
         site = records.site
+        profile = profiles.get(site.profile)
+        graded = (
+            profile.grading(site.protection_level, site.height_m)[1]
+            if profile is not None
+            else f"level {site.protection_level.value}"
+        )
         flags = [
             f for f, on in (("critical", site.critical), ("explosive risk", site.explosive_risk))
             if on
@@ -170,7 +178,7 @@ class SiteScreen(Screen[None]):
             # Text, not markup: names are shown as typed, their control characters escaped.
             Text.assemble(
                 (printable(site.name), "bold"),
-                f" · level {site.protection_level.value} · {printable(site.client) or '—'}, "
+                f" · {graded} · {printable(site.client) or '—'}, "
                 f"{printable(site.town) or '—'} · {printable(site.profile)}"
                 f"{' · ' + ', '.join(flags) if flags else ''}",
             )
@@ -223,7 +231,7 @@ class SiteScreen(Screen[None]):
         check = self.state.check if self.state else None
         text = Text()
         for result in check.results if check else ():
-            text.append_text(state_text(result.severity.value))
+            text.append_text(state_text(SEVERITY_WORDS[result.severity].word))
             text.append(f" {result.message}\n")
         if check is not None and not check.results:
             text.append("Nothing to act on.")

@@ -17,17 +17,23 @@ from textual.worker import get_current_worker
 
 from inspectkit.engine.standing import WORDS_WORST_FIRST
 from inspectkit.printable import printable
+from inspectkit.profiles import level_shown
 from inspectkit.site_states import ERROR, SiteState, assess_all
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write, site_listing
 from inspectkit.tui.widgets.state_badge import state_text
+from inspectkit.wording import counted
 
 #: How the list can be ordered, in the order the sort key cycles through them.
 SORTS = ("state", "name", "due", "client", "town", "level")
 #: Columns of the list: heading, key (the key doubles as the sort name).
 COLUMNS = (
-    ("State", "state"), ("Site", "name"), ("Level", "level"),
-    ("Client", "client"), ("Town", "town"), ("Next due", "due"),
+    ("State", "state"),
+    ("Site", "name"),
+    ("Level", "level"),
+    ("Client", "client"),
+    ("Town", "town"),
+    ("Next due", "due"),
 )
 #: Shown too when the terminal is at least WIDE columns across.
 WIDE_COLUMNS = (("Inspection due", "kind"), ("Last visit", "last"))
@@ -84,7 +90,10 @@ class SiteRow:
 
 def list_rows(store: Store) -> list[SiteRow]:
     """The list's columns for every site, without building full records (it paints first)."""
-    return [SiteRow(*values) for values in site_listing(store)]
+    return [
+        SiteRow(site_id, name, level_shown(profile, level), client, town, last)
+        for site_id, name, level, client, town, last, profile in site_listing(store)
+    ]
 
 
 class SitesScreen(Screen[None]):
@@ -95,19 +104,33 @@ class SitesScreen(Screen[None]):
     BINDINGS = [
         Binding("enter", "open_site", "Open", id="sites.open", tooltip="Open the highlighted site"),
         Binding(
-            "ctrl+o", "cycle_sort", "Sort", id="sites.sort",
+            "ctrl+o",
+            "cycle_sort",
+            "Sort",
+            id="sites.sort",
             tooltip="Order by state, name, due date, client, town or level in turn",
         ),
         Binding(
-            "ctrl+r", "reverse_sort", "Reverse", id="sites.reverse",
+            "ctrl+r",
+            "reverse_sort",
+            "Reverse",
+            id="sites.reverse",
             tooltip="Reverse the order of the list",
         ),
         Binding(
-            "ctrl+n", "new_site", "New site", id="sites.new", tooltip="Add a site to the list",
+            "ctrl+n",
+            "new_site",
+            "New site",
+            id="sites.new",
+            tooltip="Add a site to the list",
         ),
         Binding(
-            "escape", "clear_filter", "Clear filter", id="sites.clear",
-            tooltip="Show every site again", show=False,
+            "escape",
+            "clear_filter",
+            "Clear filter",
+            id="sites.clear",
+            tooltip="Show every site again",
+            show=False,
         ),
     ]
 
@@ -220,13 +243,14 @@ class SitesScreen(Screen[None]):
     def _tell_unjudged(self, states: dict[str, SiteState]) -> None:
         """Say which sites could not be judged and why; the rest of the list carries on."""
         failed = [
-            self.rows[site_id] for site_id, state in states.items()
+            self.rows[site_id]
+            for site_id, state in states.items()
             if state.word == ERROR and site_id in self.rows
         ]
         if not failed:
             return
         first = failed[0]
-        more = f" (and {len(failed) - 1} more site(s))" if len(failed) > 1 else ""
+        more = f" (and {counted(len(failed) - 1, 'more site')})" if len(failed) > 1 else ""
         self.notify(
             f"{first.name} could not be judged{more}: {first.state.reason}. "  # type: ignore[union-attr]
             "Highlight it for the reason; the other sites are judged.",

@@ -58,6 +58,7 @@ from inspectkit.walkdown import (
     walk_for,
     withdraw_reading,
 )
+from inspectkit.wording import counted
 
 #: Setting that remembers the instrument in use, shared with the settings screen.
 INSTRUMENT_SETTING = "instrument_id"
@@ -400,7 +401,9 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
                 self.choices.pop(key, None)
         if refused:
             tag = self._by_id[cid].component.tag
-            self.notify(f"{tag}: {refused} field(s) not saved, kept as typed", severity="warning")
+            self.notify(
+                f"{tag}: {counted(refused, 'field')} not saved, kept as typed", severity="warning"
+            )
 
     # -------------------------------------------------------------- saving
 
@@ -455,7 +458,8 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
             status = f"✓ saved photo {matches[0].photo.original_name}"
         else:
             matched = sum(1 for m in matches if m.component_id == here)
-            status = f"✓ saved {len(matches)} new photo(s), {matched} matched by time to {tag}"
+            saved = counted(len(matches), "new photo")
+            status = f"✓ saved {saved}, {matched} matched by time to {tag}"
         count = counts.get(here, 0)
         self.call_after_refresh(self._photo_saved, here, count)
         return Text(f"{status} ({count} attached here)", style="bold green")

@@ -40,6 +40,7 @@ VERDICT_STYLES: dict[Severity, str] = {
     Severity.OK: "bold green",
     Severity.WATCH: "bold yellow",
     Severity.INCOMPLETE: "bold magenta",
+    Severity.RETAKE: "bold black on yellow",
     Severity.FAIL: "bold white on red",
     Severity.OVERDUE: "bold white on red",
 }

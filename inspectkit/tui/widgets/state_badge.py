@@ -12,6 +12,7 @@ STATE_STYLES: dict[str, str] = {
     "watch": "bold yellow",
     "due soon": "bold cyan",
     "incomplete": "bold magenta",
+    "retake": "bold black on yellow",
     "fail": "bold red",
     "overdue": "bold white on red",
     "no profile": "bold magenta",
