@@ -28,6 +28,12 @@ from pydantic import (
     model_validator,
 )
 
+from inspectkit.earthing_values import (
+    SeriesError,
+    canonical_survey,
+    canonical_traverse,
+    read_survey,
+)
 from inspectkit.wording import with_article
 
 if TYPE_CHECKING:
@@ -157,6 +163,23 @@ class EarthingArrangement(StrEnum):
     A = "A"
     B = "B"
 
+
+class ElectrodeOrientation(StrEnum):
+    """How a type A electrode lies: its minimum length is l1 laid flat, 0.5·l1 otherwise.
+
+    IEC 62305-3 clause 5.4.2.1 (as quoted): horizontal electrodes at least l1 long,
+    vertical or inclined ones at least 0.5·l1.
+    """
+
+    VERTICAL = "vertical"
+    HORIZONTAL = "horizontal"
+    INCLINED = "inclined"
+
+
+#: Longest earth electrode, or ring radius, accepted in m: more is a typing slip (our default).
+MAX_ELECTRODE_M = 1000.0
+#: Widest rod accepted in m; a rod is far thinner than this (our default).
+MAX_ROD_DIAMETER_M = 0.2
 
 #: Oldest year a structure or an LPS on it may be given as built or installed.
 EARLIEST_YEAR = 1800
@@ -453,6 +476,14 @@ def _now_from(info: ValidationInfo) -> datetime | None:
     return utcnow()
 
 
+def _day_not_in_future(value: date, info: ValidationInfo, what: str) -> date:
+    """Refuse a day later than today (with the clock skew allowed), naming what it is the day of."""
+    now = _now_from(info)
+    if now is not None and value > (now + CLOCK_SKEW).date():
+        raise ValueError(f"{value.isoformat()} is in the future; give the day of the {what}")
+    return value
+
+
 class Site(Record):
     """A protected structure."""
 
@@ -581,6 +612,14 @@ class Component(Record):
     electrode_type: ElectrodeType | None = None
     #: Retired components keep their history but are no longer inspected.
     retired_on: date | None = None
+    #: A type A electrode's lie: vertical (driven rod), horizontal (strip), inclined.
+    electrode_orientation: ElectrodeOrientation | None = None
+    #: An electrode's length in m: a rod's driven length, a strip's run.
+    length_m: float | None = None
+    #: A driven rod's diameter in m (Dwight's formula needs it).
+    diameter_m: float | None = None
+    #: A type B ring's mean radius r_e in m: that of a circle of the area it encloses.
+    ring_radius_m: float | None = None
 
     @field_validator("kind", mode="before")
     @classmethod
@@ -595,11 +634,36 @@ class Component(Record):
             raise ValueError("must not be blank; type the tag painted on site, e.g. TJ-03")
         return value
 
+    @field_validator("length_m", "diameter_m", "ring_radius_m")
+    @classmethod
+    def _size(cls, value: float | None, info: ValidationInfo) -> float | None:
+        most = MAX_ROD_DIAMETER_M if info.field_name == "diameter_m" else MAX_ELECTRODE_M
+        if value is not None and not 0 < value <= most:
+            raise ValueError(
+                f"{value:g} m is out of range; give metres above 0 and at most {most:g} "
+                "(16 mm is 0.016 m)"
+            )
+        return value
+
     @model_validator(mode="after")
     def _electrode_type_only_on_electrodes(self) -> Component:
-        if self.electrode_type is not None and self.kind is not ComponentKind.EARTH_ELECTRODE:
-            raise ValueError("electrode_type applies to earth electrodes only; leave it empty")
+        if self.kind is not ComponentKind.EARTH_ELECTRODE:
+            for name in _ELECTRODE_FIELDS:
+                if getattr(self, name) is not None:
+                    raise ValueError(f"{name} applies to earth electrodes only; leave it empty")
+        if self.diameter_m is not None and self.length_m is not None:
+            if self.diameter_m >= self.length_m:
+                raise ValueError(
+                    f"diameter_m {self.diameter_m:g} m is not less than length_m "
+                    f"{self.length_m:g} m; give the diameter in metres (16 mm is 0.016)"
+                )
         return self
+
+
+#: Fields only an earth electrode may have.
+_ELECTRODE_FIELDS = (
+    "electrode_type", "electrode_orientation", "length_m", "diameter_m", "ring_radius_m",
+)  # fmt: skip
 
 
 class Instrument(Record):
@@ -711,10 +775,7 @@ class Inspection(Record):
     @field_validator("date")
     @classmethod
     def _not_in_future(cls, value: date, info: ValidationInfo) -> date:
-        now = _now_from(info)
-        if now is not None and value > (now + CLOCK_SKEW).date():
-            raise ValueError(f"{value.isoformat()} is in the future; give the day of the visit")
-        return value
+        return _day_not_in_future(value, info, "visit")
 
     @model_validator(mode="after")
     def _amendment_names_original(self) -> Inspection:
@@ -748,6 +809,19 @@ class Reading(Record):
     #: Set by the inspector when a reading is doubtful (wet probe, disturbed ground).
     unreliable: bool = False
     note: str = Field(default="", max_length=1000)
+    #: The fall-of-potential traverse the value was taken from, as stored text
+    #: (`earthing_values.Traverse`); None for a single typed value.
+    traverse: str | None = None
+
+    @field_validator("traverse")
+    @classmethod
+    def _traverse(cls, value: str | None) -> str | None:
+        if value is None:
+            return None
+        try:
+            return canonical_traverse(value)
+        except SeriesError as exc:
+            raise ValueError(str(exc)) from None
 
     @field_validator("quantity", mode="before")
     @classmethod
@@ -800,6 +874,11 @@ class Reading(Record):
             raise ValueError(
                 f"method {self.method.value} does not measure {quantity.label}; "
                 f"use one of: {allowed}"
+            )
+        if self.traverse is not None and self.method is not Method.FALL_OF_POTENTIAL_3P:
+            raise ValueError(
+                "a traverse belongs to a fall-of-potential reading; "
+                "set method to fall_of_potential_3p or leave the traverse out"
             )
         if quantity is Quantity.EARTH_ISOLATED and self.joint_state is JointState.CLOSED:
             raise ValueError(
@@ -912,6 +991,53 @@ class Photo(Record):
     height: int | None = None
 
 
+class SoilSurvey(Record):
+    """A Wenner soil resistivity survey on a site: one line of probes, several spacings.
+
+    The points are stored as canonical JSON text (`earthing_values.read_survey`):
+    (spacing a in m, reading R in Ω) pairs; the engine works out ρ(a).
+    """
+
+    table: ClassVar[str] = "soil_survey"
+
+    site_id: str
+    date: date
+    #: Which way the probe line ran, e.g. "N–S, east lawn".
+    direction: str = Field(default="", max_length=200)
+    #: Depth b the probes were driven to, in m; None when not recorded (taken as shallow).
+    probe_depth_m: float | None = Field(default=None, ge=0, le=10)
+    points: str
+    #: The spacing whose ρ the inspector chose as the site's design value, in m.
+    chosen_spacing_m: float | None = Field(default=None, gt=0)
+    instrument_id: str | None = None
+    note: str = Field(default="", max_length=1000)
+
+    @field_validator("points")
+    @classmethod
+    def _points(cls, value: str) -> str:
+        try:
+            return canonical_survey(value)
+        except SeriesError as exc:
+            raise ValueError(str(exc)) from None
+
+    @field_validator("date")
+    @classmethod
+    def _not_in_future(cls, value: date, info: ValidationInfo) -> date:
+        return _day_not_in_future(value, info, "survey")
+
+    @model_validator(mode="after")
+    def _chosen_spacing_is_a_spacing(self) -> SoilSurvey:
+        if self.chosen_spacing_m is not None:
+            spacings = [a for a, _ in read_survey(self.points)]
+            if self.chosen_spacing_m not in spacings:
+                listed = ", ".join(f"{a:g}" for a in spacings)
+                raise ValueError(
+                    f"chosen_spacing_m {self.chosen_spacing_m:g} m is not one of the "
+                    f"survey's spacings ({listed} m)"
+                )
+        return self
+
+
 #: Every record type, in an order where a record's references come before it.
 RECORD_TYPES: tuple[type[Record], ...] = (
     Site,
@@ -923,6 +1049,7 @@ RECORD_TYPES: tuple[type[Record], ...] = (
     Finding,
     Photo,
     NotInspected,
+    SoilSurvey,
 )
 
 MODEL_FOR_TABLE: dict[str, type[Record]] = {m.table: m for m in RECORD_TYPES}
@@ -971,6 +1098,8 @@ class SiteRecords(BaseModel):
     photos: list[Photo] = Field(default_factory=list)
     instruments: dict[str, Instrument] = Field(default_factory=dict)
     not_inspected: list[NotInspected] = Field(default_factory=list)
+    #: The site's Wenner soil surveys, oldest first.
+    surveys: list[SoilSurvey] = Field(default_factory=list)
     #: The site's geometry (roofs, LPS conductors, rooftop items); empty: none recorded.
     geometry: list[GeometryItem] = Field(default_factory=list)
 

@@ -104,6 +104,31 @@ class Triggers(BaseModel):
     due_soon_days: int = Field(ge=0, le=365)
 
 
+class EarthingFigures(BaseModel):
+    """Tolerances the earthing checks use; each file gives them with their source.
+
+    A profile written before these existed still loads: the defaults are the
+    figures of the built-in profiles (`templates/profiles/*.toml`, sourced there).
+    """
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    #: Readings near 52 % and 72 % of E–C may differ from the 61.8 % one by this fraction.
+    plateau_tolerance: float = Field(default=0.05, gt=0, lt=1)
+    #: How many times the electrode's size the current probe must be away at least.
+    current_probe_factor: float = Field(default=5.0, ge=1, le=100)
+    #: Wenner full and simplified forms may differ by this fraction before a spacing is flagged.
+    wenner_form_tolerance: float = Field(default=0.05, gt=0, lt=1)
+    #: ρ(a) varying by more than this factor across a survey means layered soil.
+    layered_ratio: float = Field(default=1.5, gt=1, le=100)
+    #: A measured resistance this many times above or below the rod's expected one is noted.
+    expected_factor: float = Field(default=3.0, gt=1, le=100)
+    #: Below this earthing resistance the minimum electrode length may be waived, in Ω.
+    length_waiver_ohm: float = Field(default=10.0, gt=0)
+    #: Check electrode lengths against IEC 62305-3's l1 (a rule of that standard only).
+    min_length_check: bool = True
+
+
 class Profile(BaseModel):
     """One rule set; a site names the profile it is held to.
 
@@ -132,6 +157,7 @@ class Profile(BaseModel):
     explosive: ExplosiveIntervals
     limits: Limits
     triggers: Triggers
+    earthing: EarthingFigures = EarthingFigures()
     #: The file it was read from, for messages.
     source: str = ""
 

@@ -350,3 +350,95 @@ def _significant(number: float, sig: int) -> str:
     if decimals <= 0:
         return f"{round(number, decimals):.0f}"
     return f"{number:.{decimals}f}".rstrip("0").rstrip(".")
+
+
+# ------------------------------------------------------------------ lengths
+
+#: Metres per unit of length as people type them; an inch and a foot are exact by
+#: definition (international yard and pound agreement, 1959).
+_METRES_PER = {
+    "mm": 1e-3, "millimetre": 1e-3, "millimetres": 1e-3, "millimeter": 1e-3, "millimeters": 1e-3,
+    "cm": 1e-2, "centimetre": 1e-2, "centimetres": 1e-2, "centimeter": 1e-2, "centimeters": 1e-2,
+    "m": 1.0, "metre": 1.0, "metres": 1.0, "meter": 1.0, "meters": 1.0,
+    "km": 1e3,
+    "in": 0.0254, "inch": 0.0254, "inches": 0.0254, '"': 0.0254,
+    "ft": 0.3048, "foot": 0.3048, "feet": 0.3048, "'": 0.3048,
+}  # fmt: skip
+# A length as typed: a number, a fraction (5/8) or a whole and a fraction (1 1/2), a unit.
+_LENGTH = re.compile(
+    r"^(?:(?P<whole>[0-9]+)\s+)?(?P<number>[0-9.,]*[0-9][0-9.,]*)"
+    r"(?:\s*/\s*(?P<denominator>[0-9]+))?\s*(?P<unit>.*)$"
+)
+
+
+def parse_length(text: str, name: str = "length") -> float:
+    """Read a length as typed (`3 m`, `10 ft`, `5/8 in`, `16 mm`, `2,5`) in metres.
+
+    A bare number is in metres. Used for rod lengths and diameters, probe spacings
+    and distances, so that `16` meant as millimetres is caught by the formula's
+    own range check rather than guessed at here.
+
+    Args:
+        text: What was typed.
+        name: The input's name, for the message (e.g. `--diameter`).
+
+    Returns:
+        The length in m, above zero.
+
+    Raises:
+        UnitError: empty, not a number, negative, zero, or a unit that is not a length.
+    """
+    typed = text.strip() if isinstance(text, str) else ""
+    cleaned = " ".join(typed.translate(_LOOKALIKES).split())
+    example = "e.g. 3 m, 10 ft, 5/8 in or 16 mm"
+    if not cleaned:
+        raise UnitError(f"{name}: nothing typed; type a length, {example}")
+    if cleaned.startswith("-"):
+        raise UnitError(f"{name}: {typed!r} is negative; a length is above zero")
+    match = _LENGTH.match(cleaned)
+    if match is None:
+        raise UnitError(f"{name}: {typed!r} is not a length; type {example}")
+    try:
+        number = float(_read_digits(match.group("number"), typed))
+    except UnitError as exc:
+        raise UnitError(f"{name}: {exc}") from None
+    if match.group("denominator"):
+        denominator = int(match.group("denominator"))
+        if denominator == 0:
+            raise UnitError(f"{name}: {typed!r} divides by zero; type e.g. 5/8 in")
+        number /= denominator
+    if match.group("whole"):
+        if not match.group("denominator"):
+            raise UnitError(f"{name}: {typed!r} has a space inside the number; type e.g. 1.5 m")
+        number += int(match.group("whole"))
+    unit = match.group("unit").strip().rstrip(".")
+    factor = 1.0 if unit == "" else _METRES_PER.get(unit if unit in "'\"" else unit.lower())
+    if factor is None:
+        raise UnitError(f"{name}: {typed!r} has a unit {unit!r} that is not a length; {example}")
+    metres = number * factor
+    if not math.isfinite(metres) or metres <= 0:
+        raise UnitError(f"{name}: {typed!r} is not above zero; a length is above zero")
+    return metres
+
+
+def parse_fraction(text: str, name: str) -> float:
+    """Read a share as typed, `61.8 %` or `0.618`, as a fraction (0.618).
+
+    A number followed by `%` is a percentage; a bare number of 1 or less is a
+    fraction, and a bare number above 1 is taken as a percentage (nobody means
+    a probe 52 times the current probe's distance away).
+
+    Raises:
+        UnitError: not a number, or not between 0 and 100 %.
+    """
+    typed = text.strip() if isinstance(text, str) else ""
+    percent = typed.endswith("%")
+    digits = typed.removesuffix("%").strip()
+    if not re.fullmatch(r"[0-9.,]*[0-9][0-9.,]*", digits):
+        raise UnitError(f"{name}: {typed!r} is not a share; type e.g. 61.8 % or 0.618")
+    value = float(_read_digits(digits, typed))
+    if percent or value > 1:
+        value /= 100
+    if not 0 < value < 1:
+        raise UnitError(f"{name}: {typed!r} must lie between 0 and 100 %")
+    return value

@@ -18,8 +18,11 @@ from typing import Any
 from pydantic import ValidationError
 
 from inspectkit import intake
+from inspectkit.earthing_values import Traverse
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
+from inspectkit.engine.earthing import EarthingError
+from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
@@ -55,7 +58,7 @@ from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError, drafts
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif, remove_unreferenced
 from inspectkit.store.preferences import INSTRUMENT_SETTING
-from inspectkit.units import UnitError, format_value, parse
+from inspectkit.units import Measured, UnitError, format_value, parse
 
 #: The method assumed when none is chosen: the one most instruments in the trade use.
 DEFAULT_METHOD: dict[Quantity, Method] = {
@@ -462,6 +465,7 @@ def record_reading(
     unreliable: bool = False,
     taken_at: datetime | None = None,
     context: SiteContext | None = None,
+    traverse: Traverse | None = None,
 ) -> ReadingOutcome:
     """Save what the inspector typed for one quantity of one component, and judge it.
 
@@ -479,6 +483,8 @@ def record_reading(
             (`intake.refusal`).
         context: The site's profile and parts, if the caller holds them already
             (the screen does, for the whole walk).
+        traverse: A fall-of-potential traverse (`earthing_input.parse_traverse`);
+            its value at 61.8 % of E–C is the reading, and `text` stays empty.
 
     Raises:
         WalkdownError: the text, method, state or note is not valid; the quantity,
@@ -490,10 +496,14 @@ def record_reading(
         context = site_context(store, inspection.site_id)
     component = context.part(component_id)
     quantity = _validated_enum(Quantity, quantity, "quantity")
-    try:
-        measured = parse(text, quantity)
-    except UnitError as exc:
-        raise WalkdownError("value", str(exc)) from None
+    if traverse is not None:
+        measured = traverse_value(traverse, text)
+        method = method or Method.FALL_OF_POTENTIAL_3P
+    else:
+        try:
+            measured = parse(text, quantity)
+        except UnitError as exc:
+            raise WalkdownError("value", str(exc)) from None
     now = utcnow()
     existing = _saved_readings(store, inspection_id, component_id, quantity)
     data: dict[str, Any] = {
@@ -509,6 +519,7 @@ def record_reading(
         "soil": soil or None,
         "note": note,
         "unreliable": unreliable,
+        "traverse": traverse.to_text() if traverse is not None else None,
     }
     if existing:
         data["id"] = existing[0].id
@@ -521,6 +532,23 @@ def record_reading(
         raise WalkdownError(refused.field, str(refused))
     reading = _save(store, reading)
     return judge_reading(store, inspection, reading, context)
+
+
+def traverse_value(traverse: Traverse, text: str) -> Measured:
+    """The reading a traverse gives: its value at 61.8 % of E–C, to four significant digits.
+
+    Raises:
+        WalkdownError: a value was typed as well, or the traverse does not
+            straddle 61.8 % of the E–C distance.
+    """
+    if text.strip():
+        raise WalkdownError(
+            "value", "a traverse gives the value (at 61.8 % of E–C); leave the value empty"
+        )
+    try:
+        return Measured(traverse_reading(traverse))
+    except EarthingError as exc:
+        raise WalkdownError("traverse", str(exc)) from None
 
 
 def withdraw_reading(

@@ -40,6 +40,7 @@ RECORD_TABLES = (
     "reading",
     "finding",
     "photo",
+    "soil_survey",
 )
 
 

@@ -17,6 +17,10 @@ CORE = (
     "inspectkit.sync",
     "inspectkit.walkdown",
     "inspectkit.site_states",
+    "inspectkit.calculators",
+    "inspectkit.earthing_jobs",
+    "inspectkit.earthing_input",
+    "inspectkit.earthing_values",
 )
 
 

@@ -3,6 +3,7 @@ at once."""
 
 from __future__ import annotations
 
+import json
 from datetime import UTC, datetime
 from pathlib import Path
 from typing import Annotated, Any
@@ -12,6 +13,8 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.cli.readings import readings_app
+from inspectkit.earthing_input import parse_traverse
+from inspectkit.earthing_values import Traverse
 from inspectkit.intake import ReadingRefused, reading_window, set_reading_window
 from inspectkit.model import (
     METHODS_FOR,
@@ -24,7 +27,7 @@ from inspectkit.model import (
     SoilCondition,
 )
 from inspectkit.repeats import RepeatError, mark_repeat
-from inspectkit.units import format_value
+from inspectkit.units import UnitError, format_value
 from inspectkit.walkdown import (
     DEFAULT_METHOD,
     JOINT_FOR,
@@ -88,15 +91,33 @@ def outcome_json(outcome: ReadingOutcome) -> dict[str, Any]:
         "limit": outcome.limit,
         "comparison": outcome.comparison,
         "messages": list(outcome.messages),
+        "traverse": json.loads(reading.traverse) if reading.traverse else None,
     }
 
 
 def add_reading(
     ctx: typer.Context,
-    value: Annotated[str, typer.Argument(help="What the instrument showed: 3.9, 180 mΩ, OL.")],
     inspection: InspectionOption,
     tag: TagOption,
     quantity: Annotated[Quantity, typer.Option("--quantity", help="What was measured.")],
+    value: Annotated[
+        str,
+        typer.Argument(
+            help="What the instrument showed: 3.9, 180 mΩ, OL (leave out with --traverse)."
+        ),
+    ] = "",
+    traverse: Annotated[
+        str | None,
+        typer.Option(
+            "--traverse",
+            help="Fall-of-potential traverse, P position=reading: '52%=10.1; 61.8%=10.3; "
+            "72%=10.6' (or positions in m); its value at 61.8 % is the reading.",
+        ),
+    ] = None,
+    current_probe: Annotated[
+        str | None,
+        typer.Option("--current-probe", help="E–C distance for --traverse, e.g. 50 m."),
+    ] = None,
     method: Annotated[
         Method | None,
         typer.Option("--method", help="How it was measured (default: the usual one for it)."),
@@ -129,6 +150,7 @@ def add_reading(
     json_out: JsonOption = False,
 ) -> None:
     """Save one reading and print its verdict; typing it again corrects it; exit 1 on FAIL."""
+    series = typed_traverse(traverse, current_probe)
     with open_store(ctx, db) as store:
         visit, component = lookups.visit_part(store, inspection, tag)
         if instrument is not None:
@@ -152,6 +174,7 @@ def add_reading(
                 note=note,
                 unreliable=doubtful,
                 taken_at=taken_at.replace(tzinfo=UTC) if taken_at is not None else None,
+                traverse=series,
             )
         except WalkdownError as exc:
             lookups.refused(exc)
@@ -163,6 +186,18 @@ def add_reading(
             for message in outcome.messages:
                 typer.echo(f"  {message}")
     raise typer.Exit(int(Exit.ACT if failed(outcome) else Exit.OK))
+
+
+def typed_traverse(points: str | None, current_probe: str | None) -> Traverse | None:
+    """The traverse given by `--traverse` and `--current-probe`, or a refusal naming the option."""
+    if points is None and current_probe is None:
+        return None
+    if points is None or current_probe is None:
+        fail("--traverse and --current-probe go together; give both, or neither")
+    try:
+        return parse_traverse(points, current_probe)
+    except UnitError as exc:
+        fail(f"--traverse: {exc}")
 
 
 def withdraw_command(

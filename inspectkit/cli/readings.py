@@ -30,7 +30,8 @@ def import_csv(
             "--map",
             help="Which column holds what, by header name or 1-based position: "
             "tag=Point,value=Reading,taken_at=Date[,unit=Unit,quantity=…,method=…,"
-            "joint_state=…,note=…].",
+            "joint_state=…,note=…,traverse=…,current_probe=…]; a traverse cell holds "
+            "'52%=3.8; 61.8%=3.9; 72%=4.0' and its value cell stays empty.",
         ),
     ],
     quantity: Annotated[

@@ -124,6 +124,37 @@ class FindingSpec(_Data):
     photo_orientation: int = Field(default=1, ge=1, le=8)
 
 
+class SurveySpec(_Data):
+    """A Wenner survey on the site: ρ wanted at each spacing; the readings R follow from it."""
+
+    days_before: int = Field(gt=0)
+    direction: str = ""
+    depth_m: float = Field(default=0.0, ge=0)
+    #: [spacing a in m, ρ in Ω·m] pairs.
+    rho: list[tuple[float, float]] = Field(min_length=1)
+    chosen_spacing_m: float | None = None
+
+
+class ShortRod(_Data):
+    """A rod driven less deep than the rest (refusal on rock)."""
+
+    tag: str
+    length_m: float = Field(gt=0)
+
+
+class EarthingSpec(_Data):
+    """The site's electrode sizes, soil surveys and traverses."""
+
+    rod_length_m: float | None = Field(default=None, gt=0)
+    rod_diameter_mm: float = Field(default=16.0, gt=0)
+    short_rods: list[ShortRod] = Field(default_factory=list)
+    survey: list[SurveySpec] = Field(default_factory=list)
+    #: Electrodes whose latest complete reading was taken by a traverse.
+    traverse: list[str] = Field(default_factory=list)
+    #: Current probe distance of those traverses, in m.
+    current_probe_m: float = Field(default=50.0, gt=0)
+
+
 class SiteSpec(_Data):
     key: str
     name: str
@@ -179,6 +210,7 @@ class SiteSpec(_Data):
     #: The site's roof plan: a geometry file (the import format) under demo_db/.
     geometry: str | None = None
     finding: list[FindingSpec] = Field(default_factory=list)
+    earthing: EarthingSpec | None = None
 
     @model_validator(mode="after")
     def _ohms_in_order(self) -> SiteSpec:

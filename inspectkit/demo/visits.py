@@ -19,6 +19,7 @@ from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
+from inspectkit.demo.earthing import add_earthing
 from inspectkit.demo.geometry import demo_geometry
 from inspectkit.demo.ground import SOIL_FACTOR, soil_on, weather_in
 from inspectkit.demo.scenario import DriftingEarth, ScenarioError, SiteSpec
@@ -499,6 +500,7 @@ class SiteHistory:
                     "joints_reconnected": True if confirmed else None,
                 }
             )
+        surveys = add_earthing(self, latest.inspection.id)
         self.demo.out.records.extend(
             [
                 self.site,
@@ -510,6 +512,7 @@ class SiteHistory:
                 *demo_geometry(
                     spec.geometry, self.site, self.system.components, stamps(self.site.created_at)
                 ),
+                *surveys,
             ]
         )
 

@@ -46,7 +46,9 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
     its visit: it is kept or left out with it.
     """
     inspections = [i for i in records.inspections if i.date <= today]
-    if len(inspections) == len(records.inspections):
+    if len(inspections) == len(records.inspections) and all(
+        s.date <= today for s in records.surveys
+    ):
         return records
     known = {i.id for i in inspections}
     findings = [
@@ -66,6 +68,7 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         instruments=records.instruments,
         not_inspected=[n for n in records.not_inspected if n.inspection_id in known],
         geometry=records.geometry,
+        surveys=[s for s in records.surveys if s.date <= today],
     )
 
 

@@ -15,6 +15,7 @@ from functools import cache
 from operator import attrgetter
 
 from inspectkit.engine.conformity import conformity
+from inspectkit.engine.earthing_site import electrode_checks, traverse_plateaus
 from inspectkit.engine.history import (
     COMPLETE_KINDS,
     History,
@@ -614,6 +615,8 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     schedule_items,
     drifting_electrodes,
     conformity,
+    traverse_plateaus,
+    electrode_checks,
 )
 
 #: The rules that speak about one reading or its series, not the site as a whole:
@@ -626,4 +629,5 @@ SERIES_RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     doubtful_readings,
     strike_counters,
     drifting_electrodes,
+    traverse_plateaus,
 )

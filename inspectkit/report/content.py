@@ -10,11 +10,15 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from datetime import date
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from inspectkit.cautions import CAUTIONS
 from inspectkit.engine.conformity import Conformity
 from inspectkit.geometry_model import GeometryItem
 from inspectkit.wording import counted
+
+if TYPE_CHECKING:
+    from inspectkit.report.earthing_content import EarthingReport
 
 #: Said on every report beside the cautions (whose last one says who decides).
 DEFERRAL = (
@@ -218,6 +222,7 @@ class ReportContent:
     deferral: str = DEFERRAL
     #: The site's roof plan and its verdicts; None when no geometry is recorded.
     roof_plan: RoofPlan | None = None
+    earthing: EarthingReport | None = None
 
     def photos(self) -> list[PhotoItem]:
         """Every photo the report embeds, findings' first."""
@@ -313,6 +318,7 @@ def text_sections(content: ReportContent) -> list[Section]:
             tuple(t.summary for t in content.trends)
             or ("No electrode has enough readings for a trend.",),
         ),
+        *([Section("Earthing", content.earthing.lines())] if content.earthing else []),
         Section("Next inspections", fields(content.schedule)),
         *(
             [Section(CHANGES_TITLE, (content.changes_since_last,))]

@@ -40,6 +40,7 @@ from inspectkit.report.content import (
     RoofPlan,
     TrendChart,
 )
+from inspectkit.report.earthing_content import earthing_report
 from inspectkit.report.findings import visit_findings
 from inspectkit.report.letterhead import organisation_of
 from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
@@ -430,6 +431,7 @@ def build_report(
         visits=visits(check),
         legend=legend(),
         roof_plan=_roof_plan(records),
+        earthing=earthing_report(records, profile, inspection.date, inspection.id),
     )
 
 

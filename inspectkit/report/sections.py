@@ -25,6 +25,7 @@ from reportlab.platypus import (
 from inspectkit.cautions import TITLE as CAUTIONS_TITLE
 from inspectkit.report.charts import trend_drawing
 from inspectkit.report.content import CHANGES_TITLE, ReportContent, not_inspected_lines
+from inspectkit.report.earthing_section import earthing
 from inspectkit.report.layout import (
     Kit,
     SignatureBox,
@@ -338,6 +339,7 @@ SECTIONS: tuple[Section, ...] = (
     findings,
     sound_components,
     trends,
+    earthing,
     other_photos,
     roof_plan,
     sign_off,

@@ -20,7 +20,8 @@ _IN_SITE = "inspection_id IN (SELECT id FROM inspection WHERE site_id = :site)"
 _SITE_WHERE = {
     "site": "id = :site",
     "component": "site_id = :site",
-    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE})",
+    "instrument": f"id IN (SELECT instrument_id FROM reading WHERE {_IN_SITE}) "
+    "OR id IN (SELECT instrument_id FROM soil_survey WHERE site_id = :site)",
     "inspector": "id IN (SELECT inspector_id FROM inspection WHERE site_id = :site)",
     "inspection": "site_id = :site",
     "reading": _IN_SITE,
@@ -28,6 +29,7 @@ _SITE_WHERE = {
     "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
     "not_inspected": _IN_SITE,
     "geometry_item": "site_id = :site",
+    "soil_survey": "site_id = :site",
 }
 
 
@@ -70,7 +72,7 @@ SELECT s.name AS site, i.date AS inspection_date, i.kind AS inspection_kind,
        c.tag AS component_tag, c.kind AS component_kind, r.quantity, r.value,
        r.over_range, r.method, r.joint_state, r.taken_at, r.soil, r.unreliable,
        m.serial AS instrument_serial, r.note, s.id AS site_id, i.id AS inspection_id,
-       c.id AS component_id, r.id AS reading_id
+       c.id AS component_id, r.id AS reading_id, r.traverse
 FROM reading r
 JOIN inspection i ON i.id = r.inspection_id
 JOIN site s ON s.id = i.site_id

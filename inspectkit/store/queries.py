@@ -25,6 +25,7 @@ from inspectkit.model import (
     Record,
     Site,
     SiteRecords,
+    SoilSurvey,
 )
 from inspectkit.store.database import Store, StoreError
 from inspectkit.store.geometry import site_geometry
@@ -110,6 +111,7 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         instruments=instruments,
         not_inspected=store.select(NotInspected, in_site, [site_id]),
         geometry=site_geometry(store, site_id),
+        surveys=store.select(SoilSurvey, "site_id = ?", [site_id], order_by="date, created_at"),
     )
 
 
@@ -139,6 +141,9 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
                 store.select(GeometryItem, order_by="site_id"), key=attrgetter("site_id")
             )
         ),
+        "surveys": _by_site(
+            store, SoilSurvey, "SELECT * FROM soil_survey ORDER BY site_id, date, created_at"
+        ),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
     for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
@@ -162,6 +167,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             instruments={key: instruments[key] for key in used if key in instruments},
             not_inspected=parts.get("not_inspected", []),
             geometry=parts.get("geometry", []),
+            surveys=parts.get("surveys", []),
         )
 
 

@@ -356,6 +356,40 @@ def _site_access(db: sqlite_utils.Database) -> None:
     _add_columns(db, {"site": ("access TEXT NOT NULL DEFAULT ''",)})
 
 
+#: Columns for earthing work: a reading's traverse, an electrode's form and size.
+_EARTHING_COLUMNS = {
+    "reading": ("traverse TEXT",),
+    "component": (
+        "electrode_orientation TEXT",
+        "length_m REAL",
+        "diameter_m REAL",
+        "ring_radius_m REAL",
+    ),
+}
+
+_SOIL_SURVEY = f"""
+CREATE TABLE soil_survey (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    date TEXT NOT NULL,
+    direction TEXT NOT NULL DEFAULT '',
+    probe_depth_m REAL,
+    points TEXT NOT NULL,
+    chosen_spacing_m REAL,
+    instrument_id TEXT REFERENCES instrument(id),
+    note TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE INDEX soil_survey_site ON soil_survey(site_id, date);
+"""
+
+
+def _earthing(db: sqlite_utils.Database) -> None:
+    """Fall-of-potential traverses on readings, electrode form and size, Wenner surveys."""
+    _add_columns(db, _EARTHING_COLUMNS)
+    db.executescript(_SOIL_SURVEY)
+
+
 #: Step N (1-based) brings a database from version N-1 to N.
 MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _v1,
@@ -369,5 +403,6 @@ MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _site_access,
     _visit_records,
     _geometry,
+    _earthing,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -92,6 +92,7 @@ REFERENCES: dict[str, dict[str, str]] = {
     "photo": {"inspection_id": "inspection", "component_id": "component"},
     "not_inspected": {"inspection_id": "inspection", "component_id": "component"},
     "geometry_item": {"site_id": "site", "component_id": "component"},
+    "soil_survey": {"site_id": "site", "instrument_id": "instrument"},
 }
 
 

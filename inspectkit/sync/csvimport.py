@@ -21,6 +21,10 @@ from dateutil import parser as dateparser
 from pydantic import ValidationError
 
 from inspectkit import intake, units
+from inspectkit.earthing_input import parse_traverse
+from inspectkit.earthing_values import Traverse
+from inspectkit.engine.earthing import EarthingError
+from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.model import (
     METHODS_FOR,
     Component,
@@ -37,7 +41,8 @@ from inspectkit.model import (
 from inspectkit.store import Store
 
 #: What a column can hold, and which of them a file must have.
-FIELDS = ("tag", "value", "taken_at", "unit", "quantity", "method", "joint_state", "note")
+FIELDS = ("tag", "value", "taken_at", "unit", "quantity", "method", "joint_state", "note",
+          "traverse", "current_probe")  # fmt: skip
 REQUIRED = ("tag", "value", "taken_at")
 _BARE_NUMBER = re.compile(r">?\s*\+?[\d.,]+(?:[eE][+-]?\d+)?")
 
@@ -84,7 +89,11 @@ class ColumnMap:
                 columns[name] = int(column)
             else:
                 columns[name] = column
-        missing = [f for f in REQUIRED if f not in columns]
+        # A file of traverses may have no value column: each value comes from its traverse.
+        optional = {"value"} if "traverse" in columns else set()
+        missing = [f for f in REQUIRED if f not in columns and f not in optional]
+        if ("traverse" in columns) != ("current_probe" in columns):
+            raise CsvImportError(["--map: traverse and current_probe go together; map both"])
         if missing:
             raise CsvImportError(
                 [f"--map: say which column holds {', '.join(missing)} (e.g. {missing[0]}=2)"]
@@ -344,7 +353,8 @@ class _RowReader:
                 self.label("tag", "tag"), f"{tag} was retired on {component.retired_on}"
             )
         quantity = self._quantity(cells)
-        measured = self._value(cells, quantity)
+        series = self._traverse(cells)
+        measured = self._value(cells, quantity) if series is None else self._at_61_8(cells, series)
         data: dict[str, Any] = {
             "inspection_id": self.inspection.id,
             "component_id": component.id,
@@ -357,7 +367,10 @@ class _RowReader:
             "instrument_id": self.options.instrument_id,
             "soil": self.inspection.soil,
             "note": self.cell(cells, "note") or "",
+            "traverse": series.to_text() if series else None,
         }
+        if series is not None and not self.cell(cells, "method") and not self.options.method:
+            data["method"] = Method.FALL_OF_POTENTIAL_3P
         if data["method"] is None:
             allowed = ", ".join(sorted(m.value for m in METHODS_FOR[quantity]))
             raise _RowError(
@@ -405,6 +418,28 @@ class _RowReader:
             return units.parse(text, quantity)
         except units.UnitError as exc:
             raise _RowError(self.label("value", "value"), str(exc)) from None
+
+    def _traverse(self, cells: list[str]) -> Traverse | None:
+        """The row's traverse (`traverse` and `current_probe` columns), or None."""
+        text = self.cell(cells, "traverse")
+        if not text:
+            return None
+        try:
+            return parse_traverse(text, self.cell(cells, "current_probe") or "")
+        except units.UnitError as exc:
+            raise _RowError(self.label("traverse", "traverse"), str(exc)) from None
+
+    def _at_61_8(self, cells: list[str], series: Traverse) -> units.Measured:
+        """A traverse row's reading: the traverse at 61.8 %; the value cell stays empty."""
+        if self.cell(cells, "value"):
+            raise _RowError(
+                self.label("value", "value"), "a row with a traverse takes its value from it; "
+                "leave the value cell empty",
+            )  # fmt: skip
+        try:
+            return units.Measured(traverse_reading(series))
+        except EarthingError as exc:
+            raise _RowError(self.label("traverse", "traverse"), str(exc)) from None
 
     def _taken_at(self, cells: list[str]) -> datetime:
         text = self.cell(cells, "taken_at") or ""

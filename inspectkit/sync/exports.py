@@ -18,7 +18,7 @@ READING_FIELDS = (
     "site", "inspection_date", "inspection_kind", "component_tag", "component_kind",
     "quantity", "value", "unit", "over_range", "method", "joint_state", "taken_at", "soil",
     "unreliable", "instrument_serial", "note", "site_id", "inspection_id", "component_id",
-    "reading_id",
+    "reading_id", "traverse",
 )  # fmt: skip
 FINDING_FIELDS = (
     "site", "inspection_date", "inspection_kind", "component_tag", "grade", "category", "text",

@@ -9,6 +9,7 @@ from inspectkit.model import (
     Component,
     ComponentKind,
     EarthingArrangement,
+    ElectrodeOrientation,
     ElectrodeType,
     Inspector,
     Instrument,
@@ -106,6 +107,13 @@ def component_dialog(
             "electrode_type", "Electrode type", "only for earth electrodes", optional=True,
             choices=[(t.value, t.value) for t in ElectrodeType],
         ),
+        Field(
+            "electrode_orientation", "Lies", "electrodes: vertical, horizontal, inclined",
+            optional=True, choices=[(o.value, o.value) for o in ElectrodeOrientation],
+        ),
+        Field("length_m", "Length (m)", "electrodes: metres, e.g. 2.4", optional=True),
+        Field("diameter_m", "Diameter (m)", "rods: metres, e.g. 0.016 for 16 mm", optional=True),
+        Field("ring_radius_m", "Ring radius (m)", "rings: mean radius, e.g. 9", optional=True),
     ]
     base = component.model_dump() if component else {"site_id": site_id, "kind": kind}
     title = f"Edit {component.tag}" if component else "New component"

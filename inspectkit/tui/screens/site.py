@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from datetime import date
+from functools import partial
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -11,6 +12,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static, TabbedContent, TabPane, Tree
 
+from inspectkit.earthing_jobs import record_survey
 from inspectkit.engine.history import in_service, series
 from inspectkit.engine.results import SEVERITY_WORDS
 from inspectkit.engine.schedule import DueStatus
@@ -22,6 +24,7 @@ from inspectkit.model import (
     Inspector,
     Quantity,
     SiteRecords,
+    SoilSurvey,
 )
 from inspectkit.printable import printable
 from inspectkit.site_states import (
@@ -34,6 +37,9 @@ from inspectkit.site_states import (
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
+from inspectkit.tui.dialogs.survey_entry import SurveyDialog
+from inspectkit.tui.screens.calculator import calculator_for
+from inspectkit.tui.widgets.earthing_panel import EarthingPanel, earthing_for
 from inspectkit.tui.widgets.roof_plan import RoofPlanPane
 from inspectkit.tui.widgets.sparkline import sparkline
 from inspectkit.tui.widgets.state_badge import StateBadge, state_text
@@ -90,6 +96,14 @@ class SiteScreen(Screen[None]):
             tooltip="Discard the site's latest draft with what it recorded, after asking",
         ),
         Binding(
+            "c", "calculators", "Calculators", id="site.calculators", show=False,
+            tooltip="Earthing calculators, filled in from the highlighted component",
+        ),
+        Binding(
+            "s", "soil_survey", "Soil survey", id="site.soil_survey", show=False,
+            tooltip="Record a Wenner soil resistivity survey of the site",
+        ),
+        Binding(
             "r", "report", "Report", id="site.report", show=False,
             tooltip="Preview, sign and export the report of the visit highlighted in Visits",
         ),
@@ -126,6 +140,8 @@ class SiteScreen(Screen[None]):
                     yield DataTable(id="schedule", cursor_type="row")
                 with TabPane("Roof plan", id="tab-plan"):
                     yield RoofPlanPane(id="roof-plan")
+                with TabPane("Earthing", id="tab-earthing"), VerticalScroll():
+                    yield EarthingPanel(id="earthing")
         yield Footer()
 
     def on_mount(self) -> None:
@@ -181,6 +197,7 @@ class SiteScreen(Screen[None]):
         self._fill_visits(records)
         self._fill_schedule()
         self.query_one(RoofPlanPane).show(records)
+        self.query_one(EarthingPanel).show(earthing_for(records, today))
 
     def _fill_tree(self, records: SiteRecords, verdicts: dict[str, str], today: date) -> None:
         tree = self.tree
@@ -324,6 +341,26 @@ class SiteScreen(Screen[None]):
         from inspectkit.tui.screens.site_visits import discard_draft
 
         discard_draft(self)
+
+    def action_calculators(self) -> None:
+        """The earthing calculators, filled in from the site and the highlighted component."""
+        if self.records is not None:
+            self.app.push_screen(
+                calculator_for(self.records, self.highlighted_component(), self.app.today)
+            )
+
+    def action_soil_survey(self) -> None:
+        """Record a Wenner survey through the same job as `inspectkit soil record`."""
+        if self.records is None:
+            return
+
+        def saved(survey: SoilSurvey | None) -> None:
+            if survey is not None:
+                self.notify(f"Soil survey of {survey.date.isoformat()} saved")
+                self.reload()
+
+        save = partial(record_survey, self.app.store, self.site_id)
+        self.app.push_screen(SurveyDialog(self.records.site.name, self.app.today, save), saved)
 
     def action_report(self) -> None:
         """Open the report of the visit highlighted in the Visits tab (the latest by default)."""

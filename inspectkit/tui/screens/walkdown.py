@@ -14,6 +14,7 @@ from textual.screen import Screen
 from textual.widgets import Header, OptionList, Static
 from textual.widgets.option_list import Option
 
+from inspectkit.earthing_values import Traverse
 from inspectkit.model import (
     Finding,
     Grade,
@@ -35,6 +36,7 @@ from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
 from inspectkit.tui.widgets.stop_pane import StopPane, StopView, photo_label
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
 from inspectkit.tui.widgets.walk_bar import WalkBar
+from inspectkit.tui.widgets.walkdown_earthing import EARTHING_BINDINGS, WalkdownEarthing
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
@@ -75,7 +77,7 @@ _SETTLE_TIMEOUT = 0.5
 _DRAFT_EVERY = 0.5
 
 
-class WalkdownScreen(Screen[None]):
+class WalkdownScreen(WalkdownEarthing, Screen[None]):
     """One visit, walked component by component; nothing typed here waits for a Save key.
 
     A field saves when it is left (Tab, Enter, a click elsewhere, or moving to
@@ -170,6 +172,7 @@ class WalkdownScreen(Screen[None]):
             id="walkdown.back",
             tooltip="Save and leave the walkdown; it can be continued later",
         ),
+        *EARTHING_BINDINGS,
     ]
 
     def __init__(self, inspection_id: str) -> None:
@@ -398,7 +401,13 @@ class WalkdownScreen(Screen[None]):
     # -------------------------------------------------------------- saving
 
     def _save_reading(
-        self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool
+        self,
+        component_id: str,
+        quantity: Quantity,
+        text: str,
+        method: Method,
+        doubtful: bool,
+        traverse: Traverse | None = None,
     ) -> ReadingOutcome:
         soil = self.bar.soil
         # The instrument chosen for the kind that measures this quantity by this method.
@@ -416,6 +425,7 @@ class WalkdownScreen(Screen[None]):
             # The app's clock (on its fixed day in tests); a bare harness: the walkdown's.
             taken_at=self.app.now() if hasattr(self.app, "now") else None,
             context=self.context,
+            traverse=traverse,
         )
         self.saved.readings[(component_id, quantity)] = outcome
         self._refresh_mark()

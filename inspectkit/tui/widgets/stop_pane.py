@@ -24,6 +24,7 @@ from inspectkit.model import ComponentKind, Finding, Method, Quantity
 from inspectkit.tui.widgets.finding_form import FindingForm, FindingSaver
 from inspectkit.tui.widgets.reading_entry import ReadingEntry, Recorder
 from inspectkit.tui.widgets.saving_field import SavingField
+from inspectkit.tui.widgets.traverse_view import TraverseView
 from inspectkit.walkdown import QUANTITIES_FOR, ReadingOutcome, Stop
 
 #: Reading entries the pane holds: as many as any component has quantities.
@@ -115,6 +116,8 @@ class StopPane(VerticalScroll):
             with Vertical(id="work"):
                 for slot in range(SLOTS):
                     yield ReadingEntry(Quantity.CONTINUITY, self._record, id=f"entry-{slot}")
+                self._traverse = TraverseView(id="traverse")
+                yield self._traverse
                 yield FindingForm(self._grade)
                 yield SavingField(
                     photo_label(0),
@@ -196,6 +199,7 @@ class StopPane(VerticalScroll):
                     view.choices.get(quantity),
                     view.typed.get(f"q-{quantity.value}"),
                 )
+        self._traverse.show_outcomes(view.outcomes)
         typed = {key.removeprefix("finding-"): view.typed[key] for key in FINDING_FIELDS
                  if key in view.typed}  # fmt: skip
         self.finding.load(component.id, view.finding, typed)
