@@ -13,7 +13,6 @@ from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, o
 from inspectkit.cli.readings import readings_app
 from inspectkit.model import (
     METHODS_FOR,
-    Component,
     Grade,
     Method,
     Quantity,
@@ -22,6 +21,7 @@ from inspectkit.model import (
 )
 from inspectkit.repeats import RepeatError, mark_repeat
 from inspectkit.store.preferences import Preferences
+from inspectkit.store.record_queries import site_components
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
@@ -247,7 +247,7 @@ def add_photo(
             )
         except WalkdownError as exc:
             lookups.refused(exc)
-        tags = {c.id: c.tag for c in store.select(Component, "site_id = ?", [visit.site_id])}
+        tags = {c.id: c.tag for c in site_components(store, visit.site_id)}
     for match in matches:
         where = tags.get(match.component_id or "", "the inspection only")
         typer.echo(f"{match.photo.original_name} → {where}")

@@ -42,6 +42,7 @@ from inspectkit.report.letterhead import organisation_of
 from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
 from inspectkit.store import Store, StoreError
 from inspectkit.store.queries import load_site_records
+from inspectkit.store.record_queries import site_inspections
 
 
 class ReportError(StoreError):
@@ -405,7 +406,5 @@ def _parts(
 
 def latest_inspection(store: Store, site_id: str) -> Inspection | None:
     """A site's most recent inspection (by date, then by when it was recorded)."""
-    found = store.select(
-        Inspection, "site_id = ?", [site_id], order_by="date DESC, created_at DESC"
-    )
+    found = site_inspections(store, site_id)
     return found[0] if found else None

@@ -10,7 +10,13 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
-from inspectkit.model import Inspector, Instrument, Organisation, Record, Site
+from inspectkit.model import Instrument, Record, Site
+from inspectkit.store.record_queries import (
+    inspectors_by_name,
+    instruments_by_description,
+    organisations_by_name,
+    sites_by_name,
+)
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
 
@@ -84,18 +90,18 @@ class SettingsScreen(Screen[None]):
         self._fill(
             "#inspector",
             [(i.name + (f" · {i.organisation}" if i.organisation else ""), i.id)
-             for i in store.select(Inspector, order_by="name")],
+             for i in inspectors_by_name(store)],
             prefs.inspector_id,
         )
         self._fill(
             "#instrument",
             [(_instrument_label(i, self.app.today), i.id)
-             for i in store.select(Instrument, order_by="description")],
+             for i in instruments_by_description(store)],
             prefs.instrument_id,
         )
         table = self.profiles_table
         table.clear()
-        for site in store.select(Site, order_by="name COLLATE NOCASE"):
+        for site in sites_by_name(store):
             table.add_row(site.name, site.profile, key=site.id)
 
     def _fill(self, selector: str, options: list[tuple[str, str]], value: str | None) -> None:
@@ -134,7 +140,7 @@ class SettingsScreen(Screen[None]):
         self.app.push_screen(dialog, saved)  # type: ignore[arg-type]
 
     def action_add_inspector(self) -> None:
-        organisations = self.app.store.select(Organisation, order_by="name")
+        organisations = organisations_by_name(self.app.store)
         self._add(inspector_dialog(organisations), "inspector_id")
 
     def action_add_instrument(self) -> None:
