@@ -13,9 +13,11 @@ from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import as_of, calibration_lapsed, usable
+from inspectkit.engine.schedule import SiteSchedule
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
+    Component,
     EarthingArrangement,
     Finding,
     Inspection,
@@ -315,41 +317,11 @@ def build_report(
     readings = reading_rows(inspection, records, check, profile, components)
     seen = visit_findings(store, inspection, records, components)
     findings = seen.to_act_on
-    trends = tuple(
-        chart for chart in (_trend_chart(t, records) for t in check.trends) if chart is not None
-    )
     revision_label = _revision_label(inspection, signing)
     verdict_word, verdict = _VERDICTS[check.worst]
     to_do = actions(check)
-    amends_text = ""
-    changes: tuple[str, ...] = ()
-    earlier = chain_of(store, inspection)
-    if earlier:
-        original = earlier[0]
-        amends_text = (
-            f"This report amends the signed report of inspection {original.id} of "
-            f"{original.date.isoformat()} (revision {revision_of(original)}"
-            + (f", sha256 {original.report_sha256}" if original.report_sha256 else "")
-            + "), which it replaces."
-        )
-        changes = tuple(
-            describe_changes(
-                _parts(all_records, original.id), _parts(all_records, inspection.id), components
-            )
-        ) or ("No reading, finding or photo was changed.",)
+    amends_text, changes = _amendment(store, inspection, all_records, components)
     visit_readings = [r for r in records.readings if r.inspection_id == inspection.id]
-    inspection_fields = [
-        Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
-        Field("Inspector", inspector.name if inspector else "not recorded"),
-        Field("Qualification", inspector.qualification if inspector else ""),
-        Field("Organisation", org_name),
-        Field("Accompanied by", inspection.accompanied_by),
-        Field("Weather", inspection.weather),
-        Field("Soil", soil_words(inspection, visit_readings)),
-        *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
-        Field("Report", revision_label),
-        Field("Inspection id", inspection.id),
-    ]
     return ReportContent(
         title=_KIND_TITLES[inspection.kind],
         site_name=site.name,
@@ -361,7 +333,9 @@ def build_report(
         headline=headline(to_do, readings, findings, seen.sound),
         site=_general(site),
         structure=_structure(records, profile, inspection.date),
-        inspection=tuple(inspection_fields),
+        inspection=_inspection_fields(
+            inspection, inspector, org_name, revision_label, visit_readings
+        ),
         instruments=_instruments(inspection, records),
         readings=readings,
         findings=findings,
@@ -369,16 +343,8 @@ def build_report(
             Notice(RESULT_WORDS[r.severity], r.component_tag or "site", r.message)
             for r in check.results
         ),
-        trends=trends,
-        schedule=(
-            Field(
-                "Intervals",
-                f"visual every {check.schedule.visual_months} months, complete "
-                f"every {check.schedule.complete_months} months ({check.schedule.interval_basis})",
-            ),
-            Field("Next visual inspection", check.schedule.next_visual.isoformat()),
-            Field("Next complete inspection", check.schedule.next_complete.isoformat()),
-        ),
+        trends=tuple(c for t in check.trends if (c := _trend_chart(t, records)) is not None),
+        schedule=_schedule(check.schedule),
         not_inspected=inspection.not_inspected,
         changes_since_last=inspection.changes_since_last,
         signer_name=inspector.name if inspector else "",
@@ -391,6 +357,62 @@ def build_report(
         actions=to_do,
         visits=visits(check),
         legend=legend(),
+    )
+
+
+def _amendment(
+    store: Store, inspection: Inspection, all_records: SiteRecords, components: dict[str, Component]
+) -> tuple[str, tuple[str, ...]]:
+    """What an amendment says of the signed report it replaces, and what it changed;
+    empty for an original inspection."""
+    earlier = chain_of(store, inspection)
+    if not earlier:
+        return "", ()
+    original = earlier[0]
+    amends_text = (
+        f"This report amends the signed report of inspection {original.id} of "
+        f"{original.date.isoformat()} (revision {revision_of(original)}"
+        + (f", sha256 {original.report_sha256}" if original.report_sha256 else "")
+        + "), which it replaces."
+    )
+    changes = tuple(
+        describe_changes(
+            _parts(all_records, original.id), _parts(all_records, inspection.id), components
+        )
+    ) or ("No reading, finding or photo was changed.",)
+    return amends_text, changes
+
+
+def _inspection_fields(
+    inspection: Inspection,
+    inspector: Inspector | None,
+    org_name: str,
+    revision_label: str,
+    visit_readings: list[Reading],
+) -> tuple[Field, ...]:
+    return (
+        Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
+        Field("Inspector", inspector.name if inspector else "not recorded"),
+        Field("Qualification", inspector.qualification if inspector else ""),
+        Field("Organisation", org_name),
+        Field("Accompanied by", inspection.accompanied_by),
+        Field("Weather", inspection.weather),
+        Field("Soil", soil_words(inspection, visit_readings)),
+        *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
+        Field("Report", revision_label),
+        Field("Inspection id", inspection.id),
+    )
+
+
+def _schedule(schedule: SiteSchedule) -> tuple[Field, ...]:
+    return (
+        Field(
+            "Intervals",
+            f"visual every {schedule.visual_months} months, complete "
+            f"every {schedule.complete_months} months ({schedule.interval_basis})",
+        ),
+        Field("Next visual inspection", schedule.next_visual.isoformat()),
+        Field("Next complete inspection", schedule.next_complete.isoformat()),
     )
 
 
