@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from inspectkit.model import Finding, Quantity, Reading
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.store import Store
 from inspectkit.walkdown import (
     drafts_for,

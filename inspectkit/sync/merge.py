@@ -43,9 +43,9 @@ from typing import Any, Literal
 
 from inspectkit.model import MODEL_FOR_TABLE, Record
 from inspectkit.store import FrozenRecordError, Store
-from inspectkit.store.exchange import DELETABLE, deleted_here
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
+from inspectkit.store.sync_rows import DELETABLE, deleted_here
 from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits, site_label
 from inspectkit.sync.signers import check_signed_inspections, untrusted_signers
