@@ -6,14 +6,16 @@ import os
 import signal
 import subprocess
 import sys
+import zipfile
 from datetime import date
 from pathlib import Path
 
 import pytest
 
-from inspectkit.model import Finding, Quantity, Reading
+from inspectkit.model import Finding, Inspection, Quantity, Reading
 from inspectkit.report.gather import build_report
 from inspectkit.store import Store
+from inspectkit.sync.bundle import export_bundle
 from inspectkit.walkdown import (
     drafts_for,
     drafts_told,
@@ -89,17 +91,23 @@ async def test_a_killed_walkdown_offers_back_what_was_typed_where_it_was(
         assert drafts_for(app.store, visit_id).texts == {(ids["DC-02"], "finding-text"): NOTE}
 
 
-def test_drafts_are_not_readings(walk: tuple[Path, str, dict[str, str]]) -> None:
-    """Not judged, not counted, not in the report: a draft is only text kept for later."""
+def test_drafts_are_not_readings(walk: tuple[Path, str, dict[str, str]], tmp_path: Path) -> None:
+    """Not judged, not counted, not in a report or a bundle: a draft is only text kept."""
     path, visit_id, ids = walk
     with Store.open(path) as store:
         record_reading(store, visit_id, ids["DC-01"], "continuity", "0.12")
+        site_id = store.get(Inspection, visit_id).site_id
         typed = {(ids["ER-01"], "q-earth_isolated"): "25", (ids["DC-02"], "q-continuity"): "  "}
         keep_drafts(store, visit_id, typed, ids["ER-01"])
         saved = saved_entries(store, visit_id)
         assert list(saved.readings) == [(ids["DC-01"], Quantity.CONTINUITY)]
         assert [r.component_id for r in store.select(Reading)].count(ids["ER-01"]) == 1  # earlier
         assert drafts_for(store, visit_id).texts == {(ids["ER-01"], "q-earth_isolated"): "25"}
+        bundle = tmp_path / "site.zip"
+        export_bundle(store, site_id, bundle)
+        with zipfile.ZipFile(bundle) as archive:
+            packed = b"".join(archive.read(name) for name in archive.namelist())
+        assert b"q-earth_isolated" not in packed and b"entry_draft" not in packed
         rows = build_report(store, visit_id).readings
         assert any(row.tag == "DC-01" for row in rows)  # the saved reading is reported
         assert not any(row.tag == "ER-01" and row.value.startswith("25") for row in rows)

@@ -85,7 +85,8 @@ def test_values_typed_in_a_terminal_after_each_move_are_stored_where_typed(
         send(socket, "NPage")  # AT-02 → RC-01
         for stop in stops[2 : 2 + len(TYPED)]:
             for text in TYPED[stop.component.tag]:
-                send(socket, text, literal=True)
+                for char in text:  # one key at a time, as fingers do
+                    send(socket, char, literal=True)
                 send(socket, "Enter")
             send(socket, "Enter")  # the grade: sound
             send(socket, "NPage")

@@ -1,3 +1,4 @@
+# ruff: noqa: F811 - the walk_db fixture is imported, then named as an argument
 """Every key typed in the walkdown lands on the component it was typed for, at any speed.
 
 The keys for a whole demo site (every value, each followed by Enter, the grade, then
@@ -25,7 +26,7 @@ from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.stop_pane import StopPane
 from inspectkit.units import parse
 from inspectkit.walkdown import Stop, judge_reading, site_context, start_inspection, walk_for
-from tests.test_tui_walkdown import WalkHarness, screen_of
+from tests.test_tui_walkdown import WalkHarness, screen_of, walk_db, walking  # noqa: F401
 
 ANCHOR = date(2026, 6, 1)
 #: A mid-sized demo site with every kind of component (the largest is timed in bench/).
@@ -147,3 +148,21 @@ async def test_keys_typed_straight_after_each_move_land_on_their_component(
             if expected[(reading.component_id, reading.quantity)] in failing:
                 assert verdict.startswith("FAIL"), verdict
         assert walk_for(store, visit_id) == stops
+
+
+async def test_keys_typed_straight_after_a_jump_to_a_tag_land_there(
+    walk_db: tuple[Path, str],
+) -> None:
+    _, visit_id = walk_db
+    async with walking(walk_db) as (app, pilot, screen):
+        await screen.show_stop(2)  # RC-01, its continuity field in focus
+        for key in ["ctrl+g", *"tj-03", "enter", *"4.2", "enter"]:
+            app.post_message(key_event(key))  # at once: nothing waits for the prompt
+        for _ in range(50):
+            await pilot.pause(0.1)
+            if app.store.select(Reading, "inspection_id = ?", [visit_id]):
+                break
+        [reading] = app.store.select(Reading, "inspection_id = ?", [visit_id])
+        assert screen.stop.component.tag == "TJ-03"
+        assert reading.component_id == screen.stop.component.id
+        assert reading.value == pytest.approx(4.2)

@@ -27,8 +27,8 @@ class Preferences:
 
     @property
     def inspector_id(self) -> str | None:
-        """The inspector whose name goes on new inspections."""
-        return self.store.get_setting(INSPECTOR_SETTING) or None
+        """The inspector whose name goes on new inspections (None once retired)."""
+        return self._in_service(Inspector, self.store.get_setting(INSPECTOR_SETTING))
 
     @inspector_id.setter
     def inspector_id(self, value: str) -> None:
@@ -37,7 +37,14 @@ class Preferences:
     @property
     def instrument_id(self) -> str | None:
         """The instrument readings are taken with unless the walkdown says otherwise."""
-        return self.store.get_setting(INSTRUMENT_SETTING) or None
+        return self._in_service(Instrument, self.store.get_setting(INSTRUMENT_SETTING))
+
+    def _in_service(
+        self, model: type[Inspector] | type[Instrument], chosen: str | None
+    ) -> str | None:
+        """The chosen id, unless that record is gone or retired since."""
+        record = self.store.get(model, chosen) if chosen else None
+        return chosen if record is not None and record.retired_on is None else None
 
     @instrument_id.setter
     def instrument_id(self, value: str) -> None:

@@ -75,11 +75,6 @@ def inspectors_with_certificate(store: Store) -> list[Inspector]:
     return store.select(Inspector, "certificate_pem != ''", order_by="name")
 
 
-def instruments_by_description(store: Store) -> list[Instrument]:
-    """Every instrument in the order of its description."""
-    return store.select(Instrument, order_by="description")
-
-
 def organisations_by_name(store: Store, *, default_first: bool = False) -> list[Organisation]:
     """Every organisation in name order; with `default_first`, the default one leads."""
     return store.select(Organisation, order_by="is_default DESC, name" if default_first else "name")

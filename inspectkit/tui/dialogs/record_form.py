@@ -19,6 +19,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Checkbox, Input, Label, Select, Static
 
 from inspectkit.model import Record, explain
+from inspectkit.tui.widgets.held_keys import PickList, ShownCheckbox
 
 R = TypeVar("R", bound=Record)
 
@@ -83,7 +84,8 @@ class RecordDialog(ModalScreen[R | None], Generic[R]):
         self.base = base
 
     def compose(self) -> ComposeResult:
-        with VerticalScroll():
+        with VerticalScroll() as form:
+            form.can_focus = False  # Tab walks the fields and buttons, not their frame
             yield Static(self.form_title, id="title")
             for field in self.fields:
                 with Horizontal(classes="row"):
@@ -95,15 +97,20 @@ class RecordDialog(ModalScreen[R | None], Generic[R]):
                 yield Button("Cancel", id="cancel", compact=True)
                 yield Button("Save (ctrl+s)", id="save", variant="primary", compact=True)
 
+    def on_mount(self) -> None:
+        """Open with the first field ready for typing, so no key goes astray."""
+        if self.fields:
+            self.set_focus(self.query_one(f"#field-{self.fields[0].name}"))
+
     def _editor(self, field: Field) -> Input | Select[str] | Checkbox:
         current = self.base.get(field.name)
         widget_id = f"field-{field.name}"
         if field.flag:
-            return Checkbox(value=bool(current), id=widget_id, compact=True)
+            return ShownCheckbox(value=bool(current), id=widget_id, compact=True)
         if field.choices:
             value = _text(current)
             known = {v for _, v in field.choices}
-            return Select(
+            return PickList(
                 list(field.choices),
                 value=value if value in known else Select.NULL,
                 allow_blank=field.optional or value not in known,

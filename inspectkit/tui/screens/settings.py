@@ -10,15 +10,13 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
-from inspectkit.model import Instrument, Record, Site
-from inspectkit.store.record_queries import (
-    inspectors_by_name,
-    instruments_by_description,
-    organisations_by_name,
-    sites_by_name,
-)
+from inspectkit.model import Inspector, Instrument, Record, Site
+from inspectkit.retiring import in_service, retire
+from inspectkit.store.record_queries import organisations_by_name, sites_by_name
 from inspectkit.tui.dialogs.choice import ChoiceDialog
+from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
+from inspectkit.tui.widgets.held_keys import PickList
 
 
 def _instrument_label(instrument: Instrument, today: date) -> str:
@@ -49,6 +47,10 @@ class SettingsScreen(Screen[None]):
             "p", "pick_profile", "Site profile", id="settings.profile",
             tooltip="Choose the rule set the highlighted site is held to",
         ),
+        Binding(
+            "r", "retire", "Retire", id="settings.retire", show=False,
+            tooltip="Retire the chosen inspector or instrument (the one whose picker has focus)",
+        ),
     ]
 
     @property
@@ -60,12 +62,14 @@ class SettingsScreen(Screen[None]):
         with Vertical(id="choices"):
             with Horizontal(classes="setting"):
                 yield Label("Inspector", classes="setting-label")
-                yield Select[str]([], id="inspector", prompt="choose the inspector", compact=True)
+                yield PickList([], id="inspector", prompt="choose the inspector", compact=True)
                 yield Button("Add…", id="add-inspector", compact=True)
+                yield Button("Retire…", id="retire-inspector", compact=True)
             with Horizontal(classes="setting"):
                 yield Label("Instrument", classes="setting-label")
-                yield Select[str]([], id="instrument", prompt="choose the instrument", compact=True)
+                yield PickList([], id="instrument", prompt="choose the instrument", compact=True)
                 yield Button("Add…", id="add-instrument", compact=True)
+                yield Button("Retire…", id="retire-instrument", compact=True)
             with Horizontal(classes="setting"):
                 yield Label("Data folder", classes="setting-label")
                 yield Static("", id="data-folder")
@@ -90,13 +94,13 @@ class SettingsScreen(Screen[None]):
         self._fill(
             "#inspector",
             [(i.name + (f" · {i.organisation}" if i.organisation else ""), i.id)
-             for i in inspectors_by_name(store)],
+             for i in in_service(store, Inspector, "name")],
             prefs.inspector_id,
         )
         self._fill(
             "#instrument",
             [(_instrument_label(i, self.app.today), i.id)
-             for i in instruments_by_description(store)],
+             for i in in_service(store, Instrument, "description")],
             prefs.instrument_id,
         )
         table = self.profiles_table
@@ -127,6 +131,41 @@ class SettingsScreen(Screen[None]):
             self.action_add_inspector()
         elif event.button.id == "add-instrument":
             self.action_add_instrument()
+        elif event.button.id in ("retire-inspector", "retire-instrument"):
+            self._retire(Inspector if event.button.id == "retire-inspector" else Instrument)
+
+    def action_retire(self) -> None:
+        """Retire what the focused row is about: its picker, or its Retire button."""
+        focused = self.focused
+        row = focused.parent if focused is not None else None
+        if row is not None and row.query("#inspector"):
+            self._retire(Inspector)
+        elif row is not None and row.query("#instrument"):
+            self._retire(Instrument)
+        else:
+            self.notify("Put the cursor on the inspector or the instrument first",
+                        severity="warning")  # fmt: skip
+
+    def _retire(self, model: type[Inspector] | type[Instrument]) -> None:
+        """Ask, then retire the chosen inspector or instrument: kept for history, not offered."""
+        select = self.query_one(f"#{model.table}", Select)
+        if select.value is Select.NULL:
+            self.notify(f"Choose the {model.table} to retire first", severity="warning")
+            return
+        record = self.app.store.get(model, str(select.value))
+        if record is None:
+            return
+        name = (record.name if isinstance(record, Inspector)
+                else f"{record.description} {record.serial}")  # fmt: skip
+
+        def done(confirmed: bool | None) -> None:
+            if confirmed:
+                retire(self.app.store, model, record.id, self.app.today)
+                self.notify(f"{name} retired: kept for old records, no longer offered")
+                self.reload()
+
+        question = f"Retire {name}?\nOld inspections keep it; pickers no longer offer it."
+        self.app.push_screen(ConfirmDialog(question, yes_label="Retire"), done)
 
     def _add(self, dialog: object, setting: str) -> None:
         def saved(record: Record | None) -> None:

@@ -10,28 +10,26 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import Header, OptionList, Select, Static
+from textual.widgets import Header, OptionList, Static
 from textual.widgets.option_list import Option
 
 from inspectkit.model import (
     Finding,
     Grade,
     Inspection,
-    Instrument,
     Method,
     Quantity,
-    SoilCondition,
 )
 from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
-from inspectkit.tui.widgets.held_keys import PickList
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.steady_footer import SteadyFooter
 from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
 from inspectkit.tui.widgets.stop_pane import StopPane, StopView, photo_label
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
+from inspectkit.tui.widgets.walk_bar import WalkBar
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
     JOINT_FOR,
@@ -51,15 +49,12 @@ from inspectkit.walkdown import (
     record_reading,
     saved_entries,
     set_details,
-    set_soil,
     site_context,
     walk_for,
     withdraw_reading,
 )
 from inspectkit.wording import counted
 
-#: Setting that remembers the instrument in use, shared with the settings screen.
-INSTRUMENT_SETTING = "instrument_id"
 #: How many ungraded tags the finish question names before "and N more".
 _UNGRADED_SHOWN = 20
 
@@ -161,6 +156,7 @@ class WalkdownScreen(Screen[None]):
         self._by_id: dict[str, Stop] = {}
         self._done: int | None = None
         self._place: str | None = None
+        self._finished = False
         #: What `keep_typing` last kept: the unsaved texts and the component in view.
         self._kept: tuple[dict[tuple[str, str], str], str] = ({}, "")
 
@@ -203,21 +199,9 @@ class WalkdownScreen(Screen[None]):
         self.title = printable(site.name)
         self.sub_title = f"{inspection.kind.value.replace('_', '-')} inspection, {inspection.date}"
         yield Header()
-        with Horizontal(id="bar"):
-            self._where = Static(id="where")
-            yield self._where
-            yield PickList(
-                self._instrument_options(),
-                prompt="instrument…",
-                value=self._instrument_in_use() or Select.NULL,
-                id="instrument",
-            )
-            yield PickList(
-                [(f"ground {s.value}", s.value) for s in SoilCondition],
-                prompt="ground…",
-                value=inspection.soil.value if inspection.soil else Select.NULL,
-                id="soil",
-            )
+        self.bar = WalkBar(self.store, self.inspection_id, inspection.soil,
+                           getattr(self.app, "today", None))  # fmt: skip
+        yield self.bar
         with Horizontal(id="body"):
             self._stop_list = StopList(*self._options(), id="stops")
             self._stop_list.on_go = self.move_now
@@ -230,25 +214,10 @@ class WalkdownScreen(Screen[None]):
                 yield Static("This site has no components in service to inspect.", id="detail")
         yield SteadyFooter()
 
-    def _instrument_options(self) -> list[tuple[str, str]]:
-        today = self.app.today if hasattr(self.app, "today") else None
-        options = []
-        for instrument in self.store.select(Instrument, order_by="description, serial"):
-            label = f"{instrument.description} {instrument.serial}"
-            due = instrument.calibration_due
-            if due is not None and today is not None and due < today:
-                label += " (calibration lapsed)"
-            options.append((label, instrument.id))
-        return options
-
-    def _instrument_in_use(self) -> str | None:
-        chosen = self.store.get_setting(INSTRUMENT_SETTING)
-        known = {value for _, value in self._instrument_options()}
-        return chosen if chosen in known else None
-
     def on_screen_resume(self) -> None:
-        # Components may have been edited on another screen meanwhile.
+        """Back from another screen: components, instruments or the choice may have changed."""
         self.context = site_context(self.store, self.context.site.id)
+        self.bar.refresh_instruments()
 
     def on_mount(self) -> None:
         if not self.stops:
@@ -280,7 +249,7 @@ class WalkdownScreen(Screen[None]):
 
     def keep_typing(self) -> None:
         """Keep in the database what is typed and not saved, if it changed since last time."""
-        if not self.stops or not self.pane.component_id:
+        if not self.stops or not self.pane.component_id or self._finished:
             return
         unsaved = self._unsaved()
         if unsaved != self._kept:
@@ -371,12 +340,7 @@ class WalkdownScreen(Screen[None]):
         """The position on the walk, and how many components are done (counted after a save)."""
         if count or self._done is None:
             self._done = sum(1 for s in self.stops if self._complete(s))
-        self._where.update(
-            Text.assemble(
-                (f" {self.index + 1} of {len(self.stops)} ", "bold reverse"),
-                f"  {self._done} done",
-            )
-        )
+        self.bar.show_where(self.index, len(self.stops), self._done)
 
     def keep_unsaved(self) -> None:
         """Save every changed field of the stop in view; keep refused text as typed."""
@@ -407,8 +371,7 @@ class WalkdownScreen(Screen[None]):
     def _save_reading(
         self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool
     ) -> ReadingOutcome:
-        soil = self.query_one("#soil", Select).value
-        instrument = self.query_one("#instrument", Select).value
+        soil = self.bar.soil
         outcome = record_reading(
             self.store,
             self.inspection_id,
@@ -416,8 +379,8 @@ class WalkdownScreen(Screen[None]):
             quantity,
             text,
             method=method,
-            instrument_id=None if instrument is Select.NULL else str(instrument),
-            soil=None if soil is Select.NULL or quantity not in JOINT_FOR else str(soil),
+            instrument_id=self.bar.instrument_id,
+            soil=soil if quantity in JOINT_FOR else None,
             unreliable=doubtful,
             context=self.context,
         )
@@ -465,23 +428,6 @@ class WalkdownScreen(Screen[None]):
         field.set_label(photo_label(count))
         field.query_one(".status").scroll_visible(animate=False)
 
-    @on(Select.Changed, "#instrument")
-    def _instrument_changed(self, event: Select.Changed) -> None:
-        if event.value is not Select.NULL and event.value != self._instrument_in_use():
-            self.store.set_setting(INSTRUMENT_SETTING, str(event.value))
-            self.notify("Instrument remembered for the next readings")
-
-    @on(Select.Changed, "#soil")
-    def _soil_changed(self, event: Select.Changed) -> None:
-        value = None if event.value is Select.NULL else str(event.value)
-        current = self.inspection.soil
-        if value == (current.value if current else None):
-            return
-        try:
-            set_soil(self.store, self.inspection_id, value)
-        except WalkdownError as exc:
-            self.notify(str(exc), severity="error")
-
     # ------------------------------------------------------------- actions
 
     async def action_step(self, delta: int) -> None:
@@ -493,13 +439,9 @@ class WalkdownScreen(Screen[None]):
         self.stop_list.focus()
 
     def action_go_to_tag(self) -> None:
-        async def go(tag: str | None) -> None:
-            if tag is None:
-                return
-            index = next(i for i, s in enumerate(self.stops) if s.component.tag == tag)
-            await self.show_stop(index)
-
-        self.app.push_screen(TagPrompt([s.component.tag for s in self.stops]), go)
+        """Ask for a tag; the walk moves as Enter arrives, before the prompt closes."""
+        tags = [s.component.tag for s in self.stops]
+        self.app.push_screen(TagPrompt(tags, lambda tag: self.move_now(tags.index(tag))))
 
     def action_finish(self) -> None:
         if self.stops:
@@ -515,6 +457,7 @@ class WalkdownScreen(Screen[None]):
                 self.notify(str(exc), severity="error")
                 return
             forget_drafts(self.store, self.inspection_id)
+            self._finished = True
             self.notify("Inspection marked complete")
             self.dismiss()
 

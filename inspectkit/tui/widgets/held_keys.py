@@ -39,8 +39,8 @@ def pass_on(widget: Widget, event: events.Key) -> bool:
         True when the key was passed on (the caller does nothing more with it).
     """
     try:
-        focused = widget.screen.focused
-    except Exception:  # noqa: BLE001 - a widget being removed has no screen
+        focused = widget.app.focused  # the active screen's: a dialog on top takes the keys
+    except Exception:  # noqa: BLE001 - a widget being removed has no app
         return False
     if focused is None or widget in focused.ancestors_with_self:
         return False  # in focus, or a key coming up from a part of it (a menu)

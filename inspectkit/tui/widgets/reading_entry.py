@@ -89,9 +89,16 @@ def format_unit(quantity: Quantity) -> str:
 
 
 @cache
-def method_options(quantity: Quantity) -> list[tuple[str, str]]:
+def method_options(quantity: Quantity) -> tuple[tuple[str, str], ...]:
     """The pick list's choices for a quantity's methods, in the order of `Method`."""
-    return [(METHOD_NAMES[m], m.value) for m in Method if m in METHODS_FOR[quantity]]
+    return tuple((METHOD_NAMES[m], m.value) for m in Method if m in METHODS_FOR[quantity])
+
+
+#: Each different list of methods, in the order of `Quantity`: an entry holds a pick
+#: list for each and shows the one its quantity needs, so a move never rebuilds one.
+METHOD_LISTS: tuple[tuple[tuple[str, str], ...], ...] = tuple(
+    dict.fromkeys(method_options(q) for q in Quantity if len(method_options(q)) > 1)
+)
 
 
 class ReadingEntry(SavingField):
@@ -128,7 +135,7 @@ class ReadingEntry(SavingField):
         self._record = record
         self.method, self.doubtful = DEFAULT_METHOD[quantity], False
         self._box: Checkbox | None = None
-        self._select: Select[str] | None = None
+        self._lists: dict[tuple[tuple[str, str], ...], Select[str]] = {}
         super().__init__(
             entry_label(quantity),
             self._save,
@@ -150,15 +157,17 @@ class ReadingEntry(SavingField):
         yield Label(self.label)
         with Horizontal(classes="reading-row"):
             yield self.make_input()
-            select = PickList(
-                method_options(self.quantity),
-                value=self.method.value,
-                allow_blank=False,
-                classes="method",
-                tooltip="How the reading was taken (Enter to choose)",
-            )
-            select.display = len(self.methods) > 1
-            yield select
+            for options in METHOD_LISTS:
+                select = PickList(
+                    options,
+                    value=options[0][1],
+                    allow_blank=False,
+                    classes="method",
+                    tooltip="How the reading was taken (Enter to choose)",
+                )
+                select.display = options == method_options(self.quantity)
+                self._lists[options] = select
+                yield select
             box = ShownCheckbox(
                 "doubtful",
                 self.doubtful,
@@ -200,18 +209,16 @@ class ReadingEntry(SavingField):
 
     def _measure(self, quantity: Quantity) -> None:
         """Make the entry one for another quantity: label, example and methods."""
-        before = method_options(self.quantity)
+        before = self._lists.get(method_options(self.quantity))
         self.quantity = quantity
         self.set_label(entry_label(quantity))
         self.input.placeholder = PLACEHOLDERS[quantity]
-        select = self._method_list()
-        options = method_options(quantity)
-        if options != before:
-            with select.prevent(Select.Changed):
-                select.set_options(options)
-                select.value = DEFAULT_METHOD[quantity].value
-        if select.display != (len(options) > 1):
-            select.display = len(options) > 1
+        after = self._lists.get(method_options(quantity))
+        if after is not before:
+            if before is not None:
+                before.display = False
+            if after is not None:
+                after.display = True
 
     def _show_choices(self) -> None:
         select = self.method_select
@@ -223,15 +230,10 @@ class ReadingEntry(SavingField):
             with box.prevent(Checkbox.Changed):
                 box.value = self.doubtful
 
-    def _method_list(self) -> Select[str]:
-        if self._select is None:
-            self._select = self.query_one(".method", Select)
-        return self._select
-
     @property
     def method_select(self) -> Select[str] | None:
         """The method pick list, or None where the quantity has only one method."""
-        return self._method_list() if len(self.methods) > 1 else None
+        return self._lists.get(method_options(self.quantity))
 
     @property
     def doubt_box(self) -> Checkbox:
@@ -271,7 +273,7 @@ class ReadingEntry(SavingField):
         event.stop()
         if event.value is Select.NULL or event.value == self.method.value:
             return
-        if event.select.value != event.value:
+        if event.select is not self.method_select or event.select.value != event.value:
             return  # an old choice, made before this entry showed another component
         self.method = Method(str(event.value))
         self.save_choices()

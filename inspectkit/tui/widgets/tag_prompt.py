@@ -2,17 +2,23 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Input, Label, Static
+from textual.widgets import Label, Static
+
+from inspectkit.tui.widgets.held_keys import FieldInput
 
 
 class TagPrompt(ModalScreen[str | None]):
-    """Dismisses with a tag that is on the walk, or None when let go with Escape."""
+    """Dismisses with a tag that is on the walk, or None when let go with Escape.
+
+    `on_pick` hears the tag as Enter arrives, before the prompt closes, so the walk is
+    at that component before any key typed after Enter reaches it.
+    """
 
     DEFAULT_CSS = """
     TagPrompt { align: center middle; }
@@ -27,25 +33,35 @@ class TagPrompt(ModalScreen[str | None]):
         Binding("escape", "cancel", "Cancel", id="tag.cancel", tooltip="Stay where you are"),
     ]
 
-    def __init__(self, tags: Sequence[str]) -> None:
+    def __init__(
+        self, tags: Sequence[str], on_pick: Callable[[str], object] | None = None
+    ) -> None:
         super().__init__()
         self.tags = list(tags)
+        self.on_pick = on_pick
 
     def compose(self) -> ComposeResult:
         with Vertical():
             yield Label("Go to the component tagged:")
-            yield Input(placeholder="e.g. TJ-03", id="tag")
+            field = FieldInput(placeholder="e.g. TJ-03", id="tag")
+            field.on_enter = lambda: self.submit(field.value)
+            yield field
             yield Static("", id="tag-error")
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        event.stop()
-        wanted = event.value.strip().upper()
+    def _pick(self, tag: str) -> None:
+        if self.on_pick is not None:
+            self.on_pick(tag)
+        self.dismiss(tag)
+
+    def submit(self, text: str) -> None:
+        """Go to the tag typed, or the one tag it starts; else say which tags there are."""
+        wanted = text.strip().upper()
         if wanted in self.tags:
-            self.dismiss(wanted)
+            self._pick(wanted)
             return
         near = [t for t in self.tags if t.startswith(wanted)] if wanted else []
         if len(near) == 1:
-            self.dismiss(near[0])
+            self._pick(near[0])
             return
         shown = ", ".join((near or self.tags)[:12])
         self.query_one("#tag-error", Static).update(
