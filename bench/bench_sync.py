@@ -64,10 +64,11 @@ from inspectkit.store.seal import covered_now
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
 
-#: What each test joint gets at each visit: quantity, method, joint state, value range.
+#: What each test joint gets at each visit: quantity, method, joint state, value range
+#: (a joint carries earth readings only: a bundle with continuity on one is refused).
 MEASURED = (
     (Quantity.EARTH_ISOLATED, Method.FALL_OF_POTENTIAL_3P, JointState.OPEN, 4.0, 40.0),
-    (Quantity.CONTINUITY, Method.LOW_OHM_4W, None, 0.01, 0.3),
+    (Quantity.EARTH_COMBINED, Method.FALL_OF_POTENTIAL_3P, JointState.CLOSED, 1.0, 9.0),
 )
 PASSPHRASE = b"bench passphrase"
 TABLES = ("site", "component", "instrument", "inspector", "inspection", "reading", "finding",

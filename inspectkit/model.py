@@ -252,11 +252,96 @@ METHODS_FOR: dict[Quantity, frozenset[Method]] = {
 }
 
 
+class InstrumentKind(StrEnum):
+    """What sort of test instrument it is; each kind measures its own quantities."""
+
+    EARTH_TESTER = "earth_tester"
+    LOW_OHMMETER = "low_ohmmeter"
+    CLAMP_METER = "clamp_meter"
+
+    @property
+    def label(self) -> str:
+        return _INSTRUMENT_KIND_LABELS[self]
+
+
+_INSTRUMENT_KIND_LABELS = {
+    InstrumentKind.EARTH_TESTER: "earth tester",
+    InstrumentKind.LOW_OHMMETER: "low-resistance ohmmeter",
+    InstrumentKind.CLAMP_METER: "clamp meter",
+}
+
+#: The methods each kind of instrument works by (common practice): an earth tester
+#: drives current through auxiliary probes, a low-resistance ohmmeter through leads,
+#: a clamp meter induces it in a closed loop.
+INSTRUMENT_METHODS: dict[InstrumentKind, frozenset[Method]] = {
+    InstrumentKind.EARTH_TESTER: frozenset(
+        {Method.FALL_OF_POTENTIAL_3P, Method.FOUR_POLE, Method.WENNER}
+    ),
+    InstrumentKind.LOW_OHMMETER: frozenset({Method.LOW_OHM_2W, Method.LOW_OHM_4W}),
+    InstrumentKind.CLAMP_METER: frozenset({Method.CLAMP_ON}),
+}
+
+#: The quantities each kind of instrument measures: those its methods measure. A
+#: strike counter is read by eye, with no instrument.
+INSTRUMENT_QUANTITIES: dict[InstrumentKind, frozenset[Quantity]] = {
+    kind: frozenset(q for q, ways in METHODS_FOR.items() if ways & methods)
+    for kind, methods in INSTRUMENT_METHODS.items()
+}
+
+
+def instrument_misfit(
+    kind: InstrumentKind | None, quantity: Quantity, method: Method, named: str
+) -> str | None:
+    """Why an instrument of this kind cannot have taken the reading, or None when it can.
+
+    An instrument whose kind is not recorded is not judged.
+
+    Args:
+        named: How to call the instrument in the message (description and serial).
+    """
+    if kind is None:
+        return None
+    if quantity not in INSTRUMENT_QUANTITIES[kind]:
+        fits = ", ".join(
+            k.label for k in InstrumentKind if quantity in INSTRUMENT_QUANTITIES[k]
+        ) or "none (it is read by eye)"
+        return (
+            f"{named} is a {kind.label} and does not measure {quantity.label}; "
+            f"take it with an instrument of kind: {fits}"
+        )
+    if method not in INSTRUMENT_METHODS[kind]:
+        ways = ", ".join(sorted(m.value for m in INSTRUMENT_METHODS[kind] & METHODS_FOR[quantity]))
+        return (
+            f"{named} is a {kind.label} and does not measure by {method.value}; "
+            f"give the method it used: {ways}"
+        )
+    return None
+
+
 class JointState(StrEnum):
     """Whether the test joint was open (electrode alone) or closed (whole system)."""
 
     OPEN = "open"
     CLOSED = "closed"
+
+
+#: What can be measured on each kind of component, in entry order. Soil resistivity is
+#: optional at a test joint or electrode; air terminals and SPDs are judged by eye only.
+#: A reading of any other quantity on a component is refused, whichever way it comes.
+QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
+    ComponentKind.AIR_TERMINAL: (),
+    ComponentKind.AIR_CONDUCTOR: (Quantity.CONTINUITY,),
+    ComponentKind.DOWN_CONDUCTOR: (Quantity.CONTINUITY,),
+    ComponentKind.TEST_JOINT: (
+        Quantity.EARTH_ISOLATED,
+        Quantity.EARTH_COMBINED,
+        Quantity.SOIL_RESISTIVITY,
+    ),
+    ComponentKind.EARTH_ELECTRODE: (Quantity.EARTH_ISOLATED, Quantity.SOIL_RESISTIVITY),
+    ComponentKind.BONDING: (Quantity.BONDING,),
+    ComponentKind.SPD: (),
+    ComponentKind.STRIKE_COUNTER: (Quantity.STRIKE_COUNT,),
+}
 
 
 class SoilCondition(StrEnum):
@@ -398,6 +483,9 @@ class Site(Record):
     #: e.g. "mesh on flat roof with rods on plant".
     air_termination: str = Field(default="", max_length=300)
     earthing_arrangement: EarthingArrangement | None = None
+    #: When the site can be visited, e.g. "weekdays 08:00-15:00; not school_term"
+    #: (read by the planner, `inspectkit.plan.access`); empty for any working day.
+    access: str = Field(default="", max_length=200)
 
     @field_validator("name")
     @classmethod
@@ -519,9 +607,21 @@ class Instrument(Record):
     description: str = Field(min_length=1, max_length=200)
     serial: str = Field(min_length=1, max_length=100)
     calibration_due: date | None = None
+    #: What it measures; None for instruments recorded before kinds were (not judged).
+    kind: InstrumentKind | None = None
     #: Set when the instrument is no longer used (or was added by mistake): kept for
     #: the readings taken with it, no longer offered.
     retired_on: date | None = None
+
+    @field_validator("kind", mode="before")
+    @classmethod
+    def _kind(cls, value: Any) -> Any:
+        return None if value == "" else _enum_or_hint(value, InstrumentKind, "instrument kind")
+
+    @property
+    def named(self) -> str:
+        """`earth tester ET-4410` as messages name it."""
+        return f"{self.description} {self.serial}"
 
 
 class Organisation(Record):
@@ -584,8 +684,14 @@ class Inspection(Record):
     report_revision: int = 0
     #: The signed inspection this one corrects (kind amendment).
     amends_id: str | None = None
-    #: What could not be inspected and why (no roof access, buried, locked).
+    #: What could not be inspected and why (no roof access, buried, locked), in words;
+    #: each component not inspected is a `NotInspected` record as well.
     not_inspected: str = Field(default="", max_length=2000)
+    #: The inspector confirmed, on finishing, that every test joint opened for an
+    #: isolated reading was reconnected and re-tested; None: not asked (no joint opened).
+    joints_reconnected: bool | None = None
+    #: Why the joints were not confirmed reconnected, when they were not.
+    reconnection_note: str = Field(default="", max_length=500)
     #: Who went round with the inspector (site manager, client's engineer).
     accompanied_by: str = Field(default="", max_length=200)
     #: Changes to the structure since the last visit that need more protection.
@@ -735,6 +841,57 @@ class Finding(Record):
         return self
 
 
+class NotInspectedReason(StrEnum):
+    """Why a component was not inspected on a visit."""
+
+    NO_ACCESS = "no_access"
+    UNSAFE = "unsafe"
+    COVERED = "covered"
+    REMOVED = "removed"
+    OTHER = "other"
+
+    @property
+    def label(self) -> str:
+        return self.value.replace("_", " ")
+
+
+class NotInspected(Record):
+    """A component the inspector could not inspect on a visit, and why.
+
+    It stands instead of a grade: a visit is complete when every component is graded
+    or marked so, and the next round plans a return for it.
+    """
+
+    table: ClassVar[str] = "not_inspected"
+
+    inspection_id: str
+    component_id: str
+    reason: NotInspectedReason
+    #: What stopped the inspection, in words; required when the reason is `other`.
+    text: str = Field(default="", max_length=500)
+
+    @field_validator("reason", mode="before")
+    @classmethod
+    def _reason(cls, value: Any) -> Any:
+        return _enum_or_hint(value, NotInspectedReason, "reason")
+
+    @model_validator(mode="after")
+    def _other_needs_words(self) -> NotInspected:
+        if self.reason is NotInspectedReason.OTHER and not self.text.strip():
+            raise ValueError(
+                "text is empty; say why it was not inspected, e.g. 'locked plant room'"
+            )
+        return self
+
+    @property
+    def why(self) -> str:
+        """`no access: locked compound`, the reason and its words."""
+        words = self.text.strip()
+        if self.reason is NotInspectedReason.OTHER:
+            return words
+        return f"{self.reason.label}: {words}" if words else self.reason.label
+
+
 class Photo(Record):
     """A photo; the file lives in a content-addressed folder beside the database."""
 
@@ -762,6 +919,7 @@ RECORD_TYPES: tuple[type[Record], ...] = (
     Reading,
     Finding,
     Photo,
+    NotInspected,
 )
 
 MODEL_FOR_TABLE: dict[str, type[Record]] = {m.table: m for m in RECORD_TYPES}
@@ -809,3 +967,4 @@ class SiteRecords(BaseModel):
     findings: list[Finding] = Field(default_factory=list)
     photos: list[Photo] = Field(default_factory=list)
     instruments: dict[str, Instrument] = Field(default_factory=dict)
+    not_inspected: list[NotInspected] = Field(default_factory=list)

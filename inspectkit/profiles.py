@@ -65,8 +65,23 @@ class Limits(BaseModel):
     earth_isolated_per_electrode: float | None = Field(default=None, gt=0)
     continuity: float = Field(gt=0)
     bonding: float = Field(gt=0)
-    #: A rise by more than this fraction on the baseline or previous reading is `watch`.
+    #: A rise by more than this fraction on the baseline or previous reading is `watch`:
+    #: an electrode's isolated reading...
     rise_fraction: float = Field(gt=0, le=10)
+    #: ...and each other quantity with a limit; left out, the electrode's step applies
+    #: (profiles written before these keys existed still load).
+    earth_combined_rise_fraction: float | None = Field(default=None, gt=0, le=10)
+    continuity_rise_fraction: float | None = Field(default=None, gt=0, le=10)
+    bonding_rise_fraction: float | None = Field(default=None, gt=0, le=10)
+
+    def rise_step(self, quantity: Quantity) -> float:
+        """The fraction a reading of this quantity may rise before it is watched."""
+        own = {
+            Quantity.EARTH_COMBINED: self.earth_combined_rise_fraction,
+            Quantity.CONTINUITY: self.continuity_rise_fraction,
+            Quantity.BONDING: self.bonding_rise_fraction,
+        }.get(quantity)
+        return self.rise_fraction if own is None else own
 
     @field_validator(*_LIMIT_QUANTITY, mode="before")
     @classmethod

@@ -17,11 +17,15 @@ from typing import Any
 
 from pydantic import ValidationError
 
+from inspectkit import intake
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
+    INSTRUMENT_METHODS,
+    INSTRUMENT_QUANTITIES,
+    QUANTITIES_FOR,
     WALKING_ORDER,
     Component,
     ComponentKind,
@@ -30,9 +34,13 @@ from inspectkit.model import (
     Inspection,
     InspectionKind,
     InspectionState,
+    Inspector,
     Instrument,
+    InstrumentKind,
     JointState,
     Method,
+    NotInspected,
+    NotInspectedReason,
     Photo,
     Quantity,
     Reading,
@@ -45,28 +53,9 @@ from inspectkit.model import (
 )
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import FrozenRecordError, Store, StoreError, drafts
-from inspectkit.store.photos import attach_photo, file_sha256, read_exif
+from inspectkit.store.photos import attach_photo, file_sha256, read_exif, remove_unreferenced
+from inspectkit.store.preferences import INSTRUMENT_SETTING
 from inspectkit.units import UnitError, format_value, parse
-from inspectkit.wording import with_article
-
-#: What can be measured on each kind of component during a walkdown, in entry order.
-#: Soil resistivity is optional at a test joint or electrode; air terminals and SPDs
-#: are judged by eye only. A test joint with an electrode below it asks only for the
-#: combined reading: the isolated one is the electrode's (see `walking_order`).
-QUANTITIES_FOR: dict[ComponentKind, tuple[Quantity, ...]] = {
-    ComponentKind.AIR_TERMINAL: (),
-    ComponentKind.AIR_CONDUCTOR: (Quantity.CONTINUITY,),
-    ComponentKind.DOWN_CONDUCTOR: (Quantity.CONTINUITY,),
-    ComponentKind.TEST_JOINT: (
-        Quantity.EARTH_ISOLATED,
-        Quantity.EARTH_COMBINED,
-        Quantity.SOIL_RESISTIVITY,
-    ),
-    ComponentKind.EARTH_ELECTRODE: (Quantity.EARTH_ISOLATED, Quantity.SOIL_RESISTIVITY),
-    ComponentKind.BONDING: (Quantity.BONDING,),
-    ComponentKind.SPD: (),
-    ComponentKind.STRIKE_COUNTER: (Quantity.STRIKE_COUNT,),
-}
 
 #: The method assumed when none is chosen: the one most instruments in the trade use.
 DEFAULT_METHOD: dict[Quantity, Method] = {
@@ -191,11 +180,20 @@ def start_inspection(
     kind: InspectionKind | str,
     inspector_id: str | None,
     today: date,
+    *,
+    continue_draft: bool = True,
 ) -> Inspection:
-    """The site's open draft, or a new draft visit dated `today`.
+    """The site's open draft, the same day's draft of this kind, or a new draft visit.
 
     An open draft is one not yet signed nor marked finished: a walkdown left half
-    done is continued, never started twice.
+    done is continued, never started twice. A draft of the same kind on the same
+    day that was marked finished is opened again (`same_day_draft`), so that one
+    visit makes one inspection and one report. Either way the inspector given is
+    put on a draft that has none.
+
+    Args:
+        continue_draft: False to start a second visit of that kind on that day even
+            though one is finished (the person was asked and said so).
 
     Raises:
         WalkdownError: no such site, or the kind or date is not valid.
@@ -208,13 +206,93 @@ def start_inspection(
         [site_id, InspectionState.DRAFT.value],
         order_by="date DESC, created_at DESC",
     )
-    if drafts:
-        return drafts[0]
-    inspection = _validated(
+    candidate = _validated(
         Inspection,
         {"site_id": site_id, "kind": kind, "date": today, "inspector_id": inspector_id},
     )
-    return store.save(inspection)
+    earlier = same_day_draft(store, site_id, candidate.kind, today) if continue_draft else None
+    draft = drafts[0] if drafts else earlier
+    if draft is not None:
+        changes: dict[str, Any] = {}
+        if draft.finished:  # opened again: the joints are confirmed afresh when it is finished
+            changes = {"finished": False, "joints_reconnected": None, "reconnection_note": ""}
+        if inspector_id and not draft.inspector_id:
+            changes["inspector_id"] = _known_inspector(store, inspector_id)
+        return _update_inspection(store, draft.id, changes) if changes else draft
+    return store.save(candidate)
+
+
+def same_day_draft(
+    store: Store, site_id: str, kind: InspectionKind | str, day: date
+) -> Inspection | None:
+    """The unsigned visit of this kind to the site on that day, finished or not, if any.
+
+    Starting another would make two inspections of one visit, whose report would
+    mix them; the screen offers to continue this one instead.
+    """
+    found = store.select(
+        Inspection,
+        "site_id = ? AND kind = ? AND date = ? AND state = ?",
+        [site_id, InspectionKind(kind).value, day.isoformat(), InspectionState.DRAFT.value],
+        order_by="created_at DESC",
+    )
+    return found[0] if found else None
+
+
+def set_inspector(store: Store, inspection_id: str, inspector_id: str) -> Inspection:
+    """Put the inspector on a draft visit, or change who it is, until it is signed.
+
+    Raises:
+        WalkdownError: no such inspector, or the inspection is signed.
+    """
+    return _update_inspection(
+        store, inspection_id, {"inspector_id": _known_inspector(store, inspector_id)}
+    )
+
+
+def _known_inspector(store: Store, inspector_id: str) -> str:
+    if store.get(Inspector, inspector_id) is None:
+        raise WalkdownError(
+            "inspector_id", f"no inspector with id {inspector_id}; add the inspector first"
+        )
+    return inspector_id
+
+
+def discard_inspection(store: Store, inspection_id: str) -> Inspection:
+    """Take a draft visit out of the records: started twice, on the wrong site, a test.
+
+    Its readings, findings, photos and not-inspected marks go with it, in one
+    transaction; the audit log keeps them all, and a bundle carries the discard to
+    the other laptops as it carries a withdrawn reading. Findings of earlier visits
+    it had marked as put right are open again. A signed inspection is never
+    discarded: amend it.
+
+    Raises:
+        WalkdownError: no such inspection, or it is signed.
+    """
+    inspection = _open_inspection(store, inspection_id)
+    parts: list[tuple[type[Any], Any]] = [
+        (model, record)
+        for model in (Reading, Finding, Photo, NotInspected)
+        for record in store.select(model, "inspection_id = ?", [inspection_id])
+    ]
+    reopened = [
+        f.model_copy(update={"resolved_by": None})
+        for f in store.select(Finding, "resolved_by = ? AND inspection_id != ?", [
+            inspection_id, inspection_id
+        ])
+    ]
+    try:
+        with store.transaction():
+            store.save_all(reopened)
+            for model, record in parts:
+                store.delete(model, record.id)
+            drafts.drop_drafts(store, inspection_id)  # text typed and not saved goes too
+            store.delete(Inspection, inspection_id)
+    except FrozenRecordError as exc:
+        raise WalkdownError("inspection", str(exc)) from None
+    remove_unreferenced(store, sorted({r.sha256 for m, r in parts if m is Photo}))
+    return inspection
 
 
 def _inspection(store: Store, inspection_id: str) -> Inspection:
@@ -268,6 +346,70 @@ def _save(store: Store, record: Any) -> Any:
         return store.save(record)
     except FrozenRecordError as exc:
         raise WalkdownError("inspection", str(exc)) from None
+
+
+# ------------------------------------------------------------------- instruments
+
+#: Setting of the one instrument chosen before kinds were recorded (any quantity).
+ANY_INSTRUMENT_SETTING = INSTRUMENT_SETTING
+
+#: Chosen instruments by kind; None: one whose kind is not recorded.
+Chosen = dict[InstrumentKind | None, Instrument]
+
+
+def instrument_setting(kind: InstrumentKind) -> str:
+    """The setting that holds the chosen instrument of a kind."""
+    return f"{ANY_INSTRUMENT_SETTING}.{kind.value}"
+
+
+def chosen_instruments(store: Store) -> Chosen:
+    """The instrument chosen for each kind of measurement, as kept in this database.
+
+    An instrument chosen before kinds were recorded counts for its own kind, or, with
+    none recorded, under None for any quantity no chosen kind measures.
+    """
+    chosen: Chosen = {}
+    for kind in InstrumentKind:
+        key = store.get_setting(instrument_setting(kind))
+        instrument = store.get(Instrument, key) if key else None
+        if instrument is not None:
+            chosen[kind] = instrument
+    key = store.get_setting(ANY_INSTRUMENT_SETTING)
+    older = store.get(Instrument, key) if key else None
+    if older is not None and older.kind not in chosen:
+        chosen[older.kind] = older
+    return chosen
+
+
+def choose_instrument(store: Store, instrument_id: str) -> Instrument:
+    """Make this instrument the one readings of its kind are taken with from now on.
+
+    Raises:
+        WalkdownError: no such instrument.
+    """
+    instrument = store.get(Instrument, instrument_id)
+    if instrument is None:
+        raise WalkdownError("instrument_id", f"no instrument with id {instrument_id}")
+    if instrument.kind is None:
+        store.set_setting(ANY_INSTRUMENT_SETTING, instrument.id)
+    else:
+        store.set_setting(instrument_setting(instrument.kind), instrument.id)
+    return instrument
+
+
+def instrument_for(chosen: Chosen, quantity: Quantity, method: Method) -> Instrument | None:
+    """The chosen instrument whose kind measures this quantity by this method, if any.
+
+    The usual method's instrument when none fits the method given; an instrument of
+    no recorded kind when no kind fits at all (it is not judged).
+    """
+    fits = [
+        chosen[kind]
+        for kind in InstrumentKind
+        if kind in chosen and quantity in INSTRUMENT_QUANTITIES[kind]
+    ]
+    exact = [i for i in fits if i.kind is not None and method in INSTRUMENT_METHODS[i.kind]]
+    return next(iter(exact or fits), chosen.get(None))
 
 
 # ---------------------------------------------------------------------- readings
@@ -333,27 +475,21 @@ def record_reading(
         joint_state: Open or closed; taken from the quantity for earth readings.
         unreliable: The inspector doubts the reading (leads, probes, weather): it is
             kept but does not count as a pass.
-        taken_at: When it was read (default: now).
+        taken_at: When it was read (default: now); it must lie on the visit's day
+            (`intake.refusal`).
         context: The site's profile and parts, if the caller holds them already
             (the screen does, for the whole walk).
 
     Raises:
-        WalkdownError: the text, method, state or note is not valid, or the
-            inspection is signed; `field` says which.
+        WalkdownError: the text, method, state or note is not valid; the quantity,
+            time or instrument does not fit (`intake.refusal`); or the inspection is
+            signed or finished; `field` says which.
     """
     inspection = _open_inspection(store, inspection_id)
     if context is None or context.site.id != inspection.site_id:
         context = site_context(store, inspection.site_id)
     component = context.part(component_id)
     quantity = _validated_enum(Quantity, quantity, "quantity")
-    if quantity not in QUANTITIES_FOR[component.kind]:
-        allowed = ", ".join(q.label for q in QUANTITIES_FOR[component.kind]) or "none"
-        raise WalkdownError(
-            "quantity",
-            f"{with_article(quantity.label)} is not measured on "
-            f"{with_article(component.kind.label)}; "
-            f"readings here: {allowed}",
-        )
     try:
         measured = parse(text, quantity)
     except UnitError as exc:
@@ -377,7 +513,13 @@ def record_reading(
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
-    reading = _save(store, _validated(Reading, data, now=now))
+    reading = _validated(Reading, data, now=now)
+    instrument = context.instrument(store, reading.instrument_id) if reading.instrument_id else None
+    window = intake.reading_window(store)
+    refused = intake.refusal(reading, inspection, component, instrument, window)
+    if refused is not None:
+        raise WalkdownError(refused.field, str(refused))
+    reading = _save(store, reading)
     return judge_reading(store, inspection, reading, context)
 
 
@@ -653,24 +795,81 @@ def grade_component(
     Raises:
         WalkdownError: not-sound without words, a bad due date, or a signed inspection.
     """
-    inspection = _open_inspection(store, inspection_id)
-    _component(store, inspection, component_id)
-    existing = store.select(
-        Finding, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
-    )
-    data: dict[str, Any] = {
-        "inspection_id": inspection_id,
-        "component_id": component_id,
+    fields = {
         "grade": grade,
         "text": text.strip(),
         "remedial_action": remedial_action.strip(),
         "due_by": _day(due_by, "due_by") if isinstance(due_by, str) else due_by,
         "category": category.strip(),
     }
+    # Graded after all: no longer "not inspected".
+    return _component_entry(store, Finding, NotInspected, inspection_id, component_id, fields)
+
+
+def mark_not_inspected(
+    store: Store,
+    inspection_id: str,
+    component_id: str,
+    reason: NotInspectedReason | str,
+    text: str = "",
+) -> NotInspected:
+    """Record that a component could not be inspected on this visit, and why.
+
+    It stands instead of a grade (a grade given for it in this visit is taken back;
+    the audit log keeps it), so the visit can be complete without it; the report
+    lists it and the next round plans a return. Marking it again corrects the reason.
+
+    Raises:
+        WalkdownError: not a reason, `other` without words, or the inspection is signed.
+    """
+    fields = {"reason": reason, "text": text.strip()}
+    return _component_entry(store, NotInspected, Finding, inspection_id, component_id, fields)
+
+
+def _component_entry(
+    store: Store,
+    model: type[Any],
+    replaces: type[Any],
+    inspection_id: str,
+    component_id: str,
+    fields: dict[str, Any],
+) -> Any:
+    """This visit's one `model` record for the component, made or corrected, in place of
+    its `replaces` record (a grade and a "not inspected" mark exclude each other)."""
+    inspection = _open_inspection(store, inspection_id)
+    _component(store, inspection, component_id)
+    existing = store.select(
+        model, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
+    )
+    data: dict[str, Any] = {"inspection_id": inspection_id, "component_id": component_id, **fields}
     if existing:
         data["id"] = existing[0].id
         data["created_at"] = existing[0].created_at
-    return _save(store, _validated(Finding, data, whole="text"))
+    record = _validated(model, data, whole="text")
+    with store.transaction():
+        _drop(store, replaces, inspection_id, component_id)
+        return _save(store, record)
+
+
+def clear_not_inspected(store: Store, inspection_id: str, component_id: str) -> None:
+    """Take back a "not inspected" mark made by mistake; the component is to grade again.
+
+    Raises:
+        WalkdownError: the inspection is signed.
+    """
+    _open_inspection(store, inspection_id)
+    _drop(store, NotInspected, inspection_id, component_id)
+
+
+def _drop(store: Store, model: type[Any], inspection_id: str, component_id: str) -> None:
+    """Delete this visit's record of `model` for the component, if there is one."""
+    for record in store.select(
+        model, "inspection_id = ? AND component_id = ?", [inspection_id, component_id]
+    ):
+        try:
+            store.delete(model, record.id)
+        except FrozenRecordError as exc:
+            raise WalkdownError("inspection", str(exc)) from None
 
 
 def _day(text: str, field: str) -> date | None:
@@ -842,7 +1041,11 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
         day = max([judged.date, *(r.taken_at.date() for r in readings)])
         check = check_site(records, context.profile, day)
         items.extend(Missing(None, r.message) for r in check.results if r.rule == "incomplete")
-    graded = {f.component_id for f in store.select(Finding, "inspection_id = ?", [inspection_id])}
+    graded = {
+        record.component_id
+        for model in (Finding, NotInspected)  # a component not inspected needs no grade
+        for record in store.select(model, "inspection_id = ?", [inspection_id])
+    }
     items.extend(
         Missing(s.component, f"{s.component.tag}: not graded yet")
         for s in stops
@@ -851,19 +1054,97 @@ def missing_for_completion(store: Store, inspection_id: str) -> list[Missing]:
     return items
 
 
-def finish_inspection(store: Store, inspection_id: str) -> list[Missing]:
+def opened_joints(store: Store, inspection_id: str) -> list[Component]:
+    """The test joints opened in this visit for an isolated earth reading, by tag.
+
+    A reading with the joint open was taken on the joint itself or on an electrode
+    below it; each such joint must be closed again and re-tested before leaving.
+    """
+    return sorted(_opened(store, inspection_id)[0].values(), key=lambda c: _tag_key(c.tag))
+
+
+def joints_not_retested(store: Store, inspection_id: str) -> list[str]:
+    """Tags of opened joints with no reading across them since: neither a combined reading
+    on the joint nor its down conductor's continuity, taken after it was last opened.
+
+    The finishing question names them, so the re-test is not forgotten.
+    """
+    opened, last_open = _opened(store, inspection_id)
+    readings = store.select(Reading, "inspection_id = ?", [inspection_id])
+    left = []
+    for joint in opened.values():
+        across = {(joint.id, Quantity.EARTH_COMBINED), (joint.parent_id, Quantity.CONTINUITY)}
+        if not any(
+            (r.component_id, r.quantity) in across and r.taken_at >= last_open[joint.id]
+            for r in readings
+        ):
+            left.append(joint.tag)
+    return sorted(left, key=_tag_key)
+
+
+def _opened(
+    store: Store, inspection_id: str
+) -> tuple[dict[str, Component], dict[str, datetime]]:
+    """The joints opened in the visit by id, and when each was last read open."""
+    inspection = _inspection(store, inspection_id)
+    parts = {c.id: c for c in store.select(Component, "site_id = ?", [inspection.site_id])}
+    opened: dict[str, Component] = {}
+    last: dict[str, datetime] = {}
+    for reading in store.select(Reading, "inspection_id = ? AND joint_state = ?", [
+        inspection_id, JointState.OPEN.value
+    ]):
+        part = parts.get(reading.component_id)
+        if part is not None and part.kind is ComponentKind.EARTH_ELECTRODE:
+            part = parts.get(part.parent_id or "", part)
+        if part is not None:
+            opened[part.id] = part
+            last[part.id] = max(reading.taken_at, last.get(part.id, reading.taken_at))
+    return opened, last
+
+
+def finish_inspection(
+    store: Store,
+    inspection_id: str,
+    *,
+    reconnected: bool = False,
+    not_reconnected: str = "",
+) -> list[Missing]:
     """Mark the visit finished and return what it still lacked, for the record.
 
     The screen lists `missing_for_completion` and asks before calling this; a
     finished visit counts towards the schedule and is no longer the open draft.
+    A visit that opened test joints (`opened_joints`) is finished only once the
+    inspector confirms each was reconnected and re-tested, or says why not; the
+    answer is kept with the visit and printed in the report.
+
+    Args:
+        reconnected: The inspector confirms every opened test joint was reconnected
+            and re-tested (combined reading, or continuity across the joint).
+        not_reconnected: Why they were not, when they were not.
 
     Raises:
-        WalkdownError: the inspection is signed already.
+        WalkdownError: the inspection is signed already, or it opened test joints
+            and neither a confirmation nor a reason is given (`field` is
+            `reconnected`); nothing is saved.
     """
     inspection = _open_inspection(store, inspection_id)
     missing = missing_for_completion(store, inspection_id)
-    if not inspection.finished:
-        _save(store, inspection.model_copy(update={"finished": True}))
+    changes: dict[str, Any] = {"finished": True}
+    opened = opened_joints(store, inspection_id)
+    if opened:
+        reason = not_reconnected.strip()
+        if not reconnected and not reason:
+            tags = ", ".join(c.tag for c in opened)
+            untested = joints_not_retested(store, inspection_id)
+            since = f" (no reading across {', '.join(untested)} since)" if untested else ""
+            raise WalkdownError(
+                "reconnected",
+                f"test joints opened for isolated readings ({tags}){since}: confirm each "
+                "was reconnected and re-tested, or say why not",
+            )
+        changes["joints_reconnected"] = reconnected
+        changes["reconnection_note"] = "" if reconnected else reason
+    _update_inspection(store, inspection.id, changes)
     return missing
 
 
@@ -878,11 +1159,13 @@ class SavedEntries:
         readings: The judged reading per (component id, quantity).
         findings: The finding per component id.
         photos: How many photos per component id (None: on the inspection alone).
+        not_inspected: The "not inspected" mark per component id.
     """
 
     readings: dict[tuple[str, Quantity], ReadingOutcome]
     findings: dict[str, Finding]
     photos: dict[str | None, int]
+    not_inspected: dict[str, NotInspected] = field(default_factory=dict)
 
 
 def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
@@ -905,6 +1188,10 @@ def saved_entries(store: Store, inspection_id: str) -> SavedEntries:
             if f.component_id
         },
         photos=photos,
+        not_inspected={
+            n.component_id: n
+            for n in store.select(NotInspected, "inspection_id = ?", [inspection_id])
+        },
     )
 
 

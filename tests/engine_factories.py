@@ -16,6 +16,7 @@ from inspectkit.model import (
     Instrument,
     JointState,
     Method,
+    NotInspected,
     Quantity,
     Reading,
     Site,
@@ -45,6 +46,7 @@ class SiteBuilder:
         self.inspections: list[Inspection] = []
         self.readings: list[Reading] = []
         self.findings: list[Finding] = []
+        self.not_inspected: list[NotInspected] = []
         self.instruments: dict[str, Instrument] = {}
 
     def component(
@@ -142,6 +144,20 @@ class SiteBuilder:
         self.findings.append(finding)
         return finding
 
+    def grade_all(self, inspection: Inspection) -> None:
+        """Every component found sound at this visit, as a complete walkdown grades each."""
+        for component in self.components:
+            self.finding(inspection, component, Grade.SOUND, "")
+
+    def skip(
+        self, inspection: Inspection, component: Component, reason: str, text: str = ""
+    ) -> NotInspected:
+        mark = NotInspected(
+            inspection_id=inspection.id, component_id=component.id, reason=reason, text=text
+        )
+        self.not_inspected.append(mark)
+        return mark
+
     def records(self) -> SiteRecords:
         return SiteRecords(
             site=self.site,
@@ -150,4 +166,5 @@ class SiteBuilder:
             readings=list(self.readings),
             findings=list(self.findings),
             instruments=dict(self.instruments),
+            not_inspected=list(self.not_inspected),
         )

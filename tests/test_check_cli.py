@@ -28,6 +28,7 @@ def _save(store: Store, *builders: SiteBuilder) -> None:
                 *records.inspections,
                 *records.readings,
                 *records.findings,
+                *records.not_inspected,
             ]
         )
 
@@ -35,14 +36,18 @@ def _save(store: Store, *builders: SiteBuilder) -> None:
 def _failing(name: str = "Quarry Office") -> SiteBuilder:
     site = SiteBuilder("II", name=name)
     _, electrode = site.joint_with_electrode(1, down=False)
-    site.reading(site.visit(date(2026, 3, 1)), electrode, Quantity.EARTH_ISOLATED, 14.2)
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, electrode, Quantity.EARTH_ISOLATED, 14.2)
+    site.grade_all(visit)
     return site
 
 
 def _clean(name: str = "Mill House") -> SiteBuilder:
     site = SiteBuilder("II", name=name)
     _, electrode = site.joint_with_electrode(1, down=False)
-    site.reading(site.visit(date(2026, 3, 1)), electrode, Quantity.EARTH_ISOLATED, 4.0)
+    visit = site.visit(date(2026, 3, 1))
+    site.reading(visit, electrode, Quantity.EARTH_ISOLATED, 4.0)
+    site.grade_all(visit)
     return site
 
 
@@ -82,6 +87,7 @@ def test_json_objects_carry_the_agreed_keys(db):
         "limit",
         "unit",
         "due",
+        "components",
         "readings",
     }
     assert item["site"] == "Quarry Office" and item["severity"] == "fail"

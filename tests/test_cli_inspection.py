@@ -105,7 +105,7 @@ def test_a_whole_walkdown_by_commands(demo: Path, tmp_path: Path) -> None:
             elif quantity in (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED):
                 value, instrument, code = "4.2 Ω", "ET4-20417", 0
             else:
-                value, instrument, code = "120 mΩ", "LR-8812", 0
+                value, instrument, code = "45 mΩ", "LR-8812", 0
             result = add(demo, visit, tag, quantity.value, value, "--instrument", instrument)
             assert result.exit_code == code, result.output
             verdicts[f"{tag} {quantity.value}"] = result.stdout
@@ -141,13 +141,17 @@ def test_a_whole_walkdown_by_commands(demo: Path, tmp_path: Path) -> None:
     assert "PASS 4.2 Ω ≤ 10 Ω" in verdicts["E-01 earth_isolated"]
     assert "% on 2026-03-03" in verdicts["E-01 earth_isolated"]  # against the last visit
     # Continuity default limit 0.2 Ω (from memory, docs/sources.md "Rules of the trade").
-    assert "PASS 120 mΩ ≤ 200 mΩ" in verdicts["DC-01 continuity"]
+    # 45 mΩ: within 50 % (continuity_rise_fraction, our default) of DC-01's 55 mΩ baseline.
+    assert "PASS 45 mΩ ≤ 200 mΩ" in verdicts["DC-01 continuity"]
 
     text = run(demo, "inspection", "show", visit)
     assert "FAIL 25 Ω > 10 Ω" in text.stdout and "Nothing missing." in text.stdout
     assert "defect: guard at ground level broken" in text.stdout
 
-    finished = run(demo, "inspection", "finish", visit)
+    unconfirmed = run(demo, "inspection", "finish", visit)
+    assert unconfirmed.exit_code == 2  # joints opened for isolated readings: say so first
+    assert "--reconnected: test joints opened for isolated readings (TJ-01" in unconfirmed.output
+    finished = run(demo, "inspection", "finish", visit, "--reconnected")
     assert finished.exit_code == 0, finished.output
     assert "Nothing missing" in finished.stdout and "marked complete" in finished.stdout
 
@@ -157,6 +161,7 @@ def test_a_whole_walkdown_by_commands(demo: Path, tmp_path: Path) -> None:
     with Store.open(demo) as store:
         done = store.get(Inspection, visit)
         assert done is not None and done.finished and done.inspector_id is not None
+        assert done.joints_reconnected is True
         e02 = next(
             r
             for r in store.select(Reading, "inspection_id = ?", [visit])
@@ -293,6 +298,8 @@ def test_readings_add_is_the_same_command(demo: Path) -> None:
         "--quantity",
         "earth_isolated",
         "4.2",
+        "--taken-at",
+        TAKEN,
     )
     assert result.exit_code == 0, result.output
     assert "PASS 4.2 Ω ≤ 10 Ω" in result.stdout
@@ -375,14 +382,14 @@ def test_a_folder_of_photos_is_matched_by_time(demo: Path, tmp_path: Path) -> No
 
 def test_show_lists_the_walk_in_order(demo: Path) -> None:
     visit = start(demo)
-    add(demo, visit, "TJ-01", "earth_combined", "3.9")
+    add(demo, visit, "TJ-01", "earth_combined", "2.0")  # the demo's baseline: 1.51 Ω
     result = run(demo, "inspection", "show", visit)
     lines = result.stdout.splitlines()
     assert lines[0].startswith(f"{SITE} · complete inspection 2026-06-01 · draft")
     tags = [line.split()[0] for line in lines[1:-1] if not line.lstrip().startswith("·")]
     assert tags[:4] == ["AT-01", "AT-02", "AT-03", "AT-04"]  # roof first
     assert tags.index("DC-01") < tags.index("TJ-01") < tags.index("E-01") < tags.index("DC-02")
-    assert any("PASS 3.9 Ω ≤ 10 Ω" in line for line in lines)
+    assert any("PASS 2 Ω ≤ 10 Ω" in line for line in lines)
     assert any("E-01" in line and "not graded" in line for line in lines)
 
 

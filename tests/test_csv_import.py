@@ -48,7 +48,7 @@ def test_columns_by_name_with_units_per_column_and_in_the_cell(site, tmp_path):
     result = import_readings_csv(
         store, path, records.inspection.id,
         ColumnMap.parse("tag=Point,value=Reading,unit=Unit,taken_at=Date"),
-        CsvOptions(quantity=Quantity.CONTINUITY, method=Method.LOW_OHM_4W),
+        CsvOptions(quantity=Quantity.EARTH_COMBINED, method=Method.FALL_OF_POTENTIAL_3P),
     )  # fmt: skip
     assert result.added == 3
     new = _new_readings(store, records)
@@ -129,7 +129,7 @@ def test_dry_run_saves_nothing_and_a_second_import_skips_what_is_there(site, tmp
     store, records = site
     path = _csv(tmp_path, "Point,Date,Reading\nTJ-01,2026-06-02 11:00,0.05\n")
     mapping = ColumnMap.parse("tag=Point,value=Reading,taken_at=Date")
-    options = CsvOptions(quantity=Quantity.BONDING, method=Method.LOW_OHM_4W)
+    options = CsvOptions(quantity=Quantity.EARTH_COMBINED, method=Method.FALL_OF_POTENTIAL_3P)
     args = (store, path, records.inspection.id, mapping, options)
     assert import_readings_csv(*args, dry_run=True).added == 1
     assert _new_readings(store, records) == []

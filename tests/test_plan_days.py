@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from inspectkit.plan.days import split_cycle, split_days
+from inspectkit.plan.days import DayRules, Roads, split_cycle, split_days
 from inspectkit.plan.geo import Point, distance_matrix
 from inspectkit.plan.route import plan_route
 
@@ -17,6 +19,11 @@ points = st.builds(
 
 def _drive(km: float) -> float:
     return km * 1.3 / 50 * 60
+
+
+def _roads(dist: list[list[float]], drive: Callable[[float], float] = float) -> Roads:
+    """Roads whose minutes are `drive` of each distance."""
+    return Roads(dist, [[drive(km) for km in row] for row in dist])
 
 
 @given(
@@ -30,10 +37,10 @@ def test_days_never_exceed_the_day_length(sites: list[tuple[Point, float]], hour
     route = plan_route(dist)[1:]
     onsite = [0.0] + [m for _, m in sites]
     day_minutes = hours * 60
-    days = split_days(route, onsite.__getitem__, dist, day_minutes, _drive)
+    days = split_days(route, onsite.__getitem__, _roads(dist, _drive), DayRules(day_minutes))
     # Every site once, in route order, and no visit split across days.
     assert [leg.node for d in days for leg in d.legs] == route
-    entered = split_cycle(route, onsite.__getitem__, dist, day_minutes, _drive)
+    entered = split_cycle(route, onsite.__getitem__, _roads(dist, _drive), DayRules(day_minutes))
     assert sorted(leg.node for d in entered for leg in d.legs) == sorted(route)
     assert len(entered) <= len(days)
     for d in days + entered:
@@ -54,7 +61,7 @@ def test_days_never_exceed_the_day_length(sites: list[tuple[Point, float]], hour
 def test_a_site_too_long_for_a_day_is_alone_and_flagged() -> None:
     dist = [[0, 10, 10, 10], [10, 0, 1, 1], [10, 1, 0, 1], [10, 1, 1, 0]]
     onsite = {1: 60.0, 2: 600.0, 3: 60.0}
-    days = split_days([1, 2, 3], onsite.__getitem__, dist, 480, lambda km: km)
+    days = split_days([1, 2, 3], onsite.__getitem__, _roads(dist), DayRules(480))
     assert [[leg.node for leg in d.legs] for d in days] == [[1], [2], [3]]
     assert [d.too_long for d in days] == [False, True, False]
 
@@ -86,7 +93,7 @@ def test_as_few_days_as_filling_each_day_and_no_more_time(
     dist = distance_matrix([depot] + [p for p, _ in sites])
     route = plan_route(dist)[1:]
     onsite = [0.0] + [m for _, m in sites]
-    days = split_days(route, onsite.__getitem__, dist, 480, lambda km: km)
+    days = split_days(route, onsite.__getitem__, _roads(dist), DayRules(480))
     greedy_count, greedy_minutes = _greedy_days(route, onsite, dist, 480)
     assert len(days) == greedy_count
     assert sum(d.minutes for d in days) <= greedy_minutes + 1e-6
@@ -98,14 +105,14 @@ def test_the_cut_that_drives_least_among_the_fewest_days() -> None:
     # [1] (260) then [2, 3] (50+100+1+100+50 = 301) is two days as well, in 561.
     dist = [[0, 5, 50, 50], [5, 0, 46, 46], [50, 46, 0, 1], [50, 46, 1, 0]]
     onsite = {1: 250.0, 2: 100.0, 3: 100.0}
-    days = split_days([1, 2, 3], onsite.__getitem__, dist, 480, lambda km: km)
+    days = split_days([1, 2, 3], onsite.__getitem__, _roads(dist), DayRules(480))
     assert [[leg.node for leg in d.legs] for d in days] == [[1], [2, 3]]
     assert [d.minutes for d in days] == [260, 301]
     assert _greedy_days([1, 2, 3], [0, *onsite.values()], dist, 480) == (2, 651)
 
 
 def test_empty_route_has_no_days() -> None:
-    assert split_days([], lambda n: 0.0, [[0.0]], 480, lambda km: km) == []
+    assert split_days([], lambda n: 0.0, _roads([[0.0]]), DayRules(480)) == []
 
 
 def test_a_closed_tour_is_entered_where_it_gives_fewest_days() -> None:
@@ -119,6 +126,20 @@ def test_a_closed_tour_is_entered_where_it_gives_fewest_days() -> None:
         [10, 1, 15, 15, 0],
     ]
     onsite = {1: 100.0, 2: 100.0, 3: 100.0, 4: 100.0}
-    assert len(split_days([1, 2, 3, 4], onsite.__getitem__, dist, 230, lambda km: km)) == 3
-    days = split_cycle([1, 2, 3, 4], onsite.__getitem__, dist, 230, lambda km: km)
+    assert len(split_days([1, 2, 3, 4], onsite.__getitem__, _roads(dist), DayRules(230))) == 3
+    days = split_cycle([1, 2, 3, 4], onsite.__getitem__, _roads(dist), DayRules(230))
     assert sorted(sorted(leg.node for leg in d.legs) for d in days) == [[1, 4], [2, 3]]
+
+
+def test_a_break_before_the_drive_home_makes_the_day_longer() -> None:
+    # Depot, one site 60 minutes away; 120 minutes on site. Leaving at 180, the drive
+    # home would pass the break's latest start (200), so the break comes first.
+    dist = [[0.0, 60.0], [60.0, 0.0]]
+    rules = DayRules(480, break_minutes=30, break_by=200)
+    (day,) = split_days([1], {1: 120.0}.__getitem__, _roads(dist), rules)
+    assert day.break_at == 180
+    assert day.minutes == 180 + 30 + 60
+    (on_arrival,) = split_days([1], {1: 150.0}.__getitem__, _roads(dist), rules)
+    # Arriving at 60 the visit would run past 200: the break is taken on arrival.
+    assert on_arrival.break_at == 60 and on_arrival.legs[0].start == 90
+    assert on_arrival.minutes == 90 + 150 + 60

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from datetime import date
+from datetime import date, timedelta
 from pathlib import Path
 from typing import Any
 
@@ -10,6 +10,7 @@ import pytest
 from engine_factories import SiteBuilder
 
 from inspectkit.model import ComponentKind, Grade, Inspection, InspectionKind, InspectionState
+from inspectkit.plan.calendar import WorkCalendar
 from inspectkit.plan.drafts import create_drafts
 from inspectkit.plan.geo import Point, PointError
 from inspectkit.plan.planner import (
@@ -19,7 +20,6 @@ from inspectkit.plan.planner import (
     plan_round,
     save_depot,
     saved_depot,
-    working_days,
 )
 from inspectkit.plan.round import by_priority
 from inspectkit.plan.settings import (
@@ -188,8 +188,14 @@ def test_days_are_dated_on_working_days_most_urgent_first(iec: Profile) -> None:
 
 
 def test_working_days_skip_the_weekend() -> None:
-    days = working_days(date(2026, 3, 6), 3, load_plan_settings())
-    assert days == [date(2026, 3, 6), date(2026, 3, 9), date(2026, 3, 10)]
+    calendar = WorkCalendar(load_plan_settings())
+    days = [date(2026, 3, 6) + timedelta(days=k) for k in range(5)]
+    assert [d for d in days if calendar.closed_why(d) is None] == [
+        date(2026, 3, 6),
+        date(2026, 3, 9),
+        date(2026, 3, 10),
+    ]
+    assert calendar.closed_why(date(2026, 3, 7)) == "Saturday: not a working day"
 
 
 def test_travel_time_is_distance_times_road_factor_over_speed() -> None:
@@ -226,6 +232,13 @@ def test_user_plan_file_overrides_key_by_key() -> None:
         ('working_days = ["mon", "funday"]\n', "funday"),
         ("[minutes.visual]\nspd = -1\n", "minutes"),
         ("speed_kmh = \n", "not valid TOML"),
+        ('closed_days = ["1 May"]\n', "closed_days"),
+        ('closed_days = ["2027-05-09..2027-05-01"]\n', "ends before it starts"),
+        ('time_zone = "Mars/Olympus"\n', "time_zone"),
+        ('holiday_country = "XX"\n', "holiday_country"),
+        ("break_minutes = -5\n", "break_minutes"),
+        ('[periods]\nschool_term = ["next term"]\n', "periods"),
+        ('[[roads]]\na = "depot"\nb = "Hall"\nkm = 0\n', "roads"),
     ],
 )
 def test_bad_user_plan_file_names_file_and_key(tmp_path: Path, text: str, words: str) -> None:

@@ -2,9 +2,12 @@
 
 from __future__ import annotations
 
+import csv
+from datetime import datetime, timedelta
 from pathlib import Path
 
 import pytest
+from icalendar import Calendar
 from test_plan_export import FIRST, fill_round_db
 from textual.pilot import Pilot
 from textual.widgets import DataTable, Input
@@ -143,3 +146,93 @@ async def test_without_a_depot_typing_goes_to_the_depot_field(db_path: Path) -> 
         await pilot.pause()
         assert screen.query_one("#depot", Input).value == "52,-1"
         assert screen.plan is not None and _visits(screen)
+
+
+async def test_move_a_visit_to_the_next_day_and_export_it(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(100, 30)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is not None
+        day, visit = screen.plan.visits[0]
+        name = visit.candidate.site.name
+        await _press_on(screen, pilot, name, "]")
+        assert screen.plan is not None
+        moved = {v.candidate.site.name: (d, v) for d, v in screen.plan.visits}
+        new_day, new_visit = moved[name]
+        # 2 March 2026 is a Monday: the next day it can be made is Tuesday 3 March.
+        assert new_day.day == day.day + timedelta(days=1)
+        assert new_day.moved
+        # The day it joined is timed again: each visit after the drive from the stop before.
+        clock = datetime.combine(
+            new_day.day, screen.plan.settings.day_start, new_visit.start.tzinfo
+        )
+        for v in new_day.visits:
+            assert abs((v.arrive - clock).total_seconds() / 60 - v.drive_minutes) <= 1
+            clock = v.leave
+        table = screen.query_one("#round", DataTable)
+        assert str(table.get_cell(visit.candidate.site.id, "arrive")) == f"{new_visit.start:%H:%M}"
+        await pilot.press("x")
+        await pilot.pause()
+    stem = round_db.parent / f"round-{FIRST.isoformat()}"
+    with stem.with_suffix(".csv").open(encoding="utf-8") as f:
+        rows = {r["site"]: r for r in csv.DictReader(f)}
+    assert rows[name]["date"] == new_day.day.isoformat()
+    assert rows[name]["start"] == f"{new_visit.start:%H:%M}"
+    events = Calendar.from_ical(stem.with_suffix(".ics").read_bytes()).walk("VEVENT")
+    (event,) = [e for e in events if str(e["SUMMARY"]).startswith(name + ":")]
+    assert event.decoded("DTSTART") == new_visit.start
+
+
+async def test_earlier_day_stops_at_the_window(round_db: Path) -> None:
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is not None
+        first_day = screen.plan.days[0]
+        name = first_day.visits[0].candidate.site.name
+        await _press_on(screen, pilot, name, "[")
+        assert screen.moved == {}
+        assert first_day.day == FIRST
+
+
+async def test_h_chooses_the_holiday_calendar_and_replans(round_db: Path) -> None:
+    from inspectkit.plan.settings import load_plan_settings, user_settings_path
+    from inspectkit.tui.dialogs.choice import ChoiceDialog
+
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        await pilot.press("h")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)
+        app.screen.dismiss("DE")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)  # now the regions of Germany
+        assert "BY" in [key for key, _ in app.screen.items]
+        app.screen.dismiss("BY")
+        await pilot.pause()
+        assert app.screen is screen
+        assert screen.plan is not None
+        assert (screen.plan.settings.holiday_country, screen.plan.settings.holiday_region) == (
+            "DE",
+            "BY",
+        )
+    loaded = load_plan_settings()
+    assert (loaded.holiday_country, loaded.holiday_region) == ("DE", "BY")
+    assert user_settings_path().is_file()
+
+
+async def test_the_highlighted_visit_says_why_it_is_in_the_round(round_db: Path) -> None:
+    from textual.widgets import Static
+
+    app = make_app(round_db, today=FIRST)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await _open(pilot)
+        assert screen.plan is not None
+        _, visit = screen.plan.visits[-1]
+        table = screen.query_one("#round", DataTable)
+        table.move_cursor(row=table.get_row_index(visit.candidate.site.id))
+        await pilot.pause()
+        why = str(screen.query_one("#why", Static).render())
+        assert why.startswith("why: ")
+        assert visit.candidate.reasons[0].text[:30] in why.replace("\n", " ")

@@ -94,6 +94,51 @@ def test_rise_on_baseline_or_previous_is_watch(values, against):
     assert against in result.message and "50 %" in result.message  # rise_fraction: our default
 
 
+@pytest.mark.parametrize(
+    ("kind", "quantity", "values", "against"),
+    [
+        # The case: a down conductor's continuity from 79 to 180 mΩ (+128 %).
+        (ComponentKind.DOWN_CONDUCTOR, Quantity.CONTINUITY, (0.079, 0.180), "baseline"),
+        (ComponentKind.BONDING, Quantity.BONDING, (0.10, 0.11, 0.16), "baseline"),
+        (ComponentKind.BONDING, Quantity.BONDING, (0.10, 0.06, 0.095), "previous reading"),
+        (ComponentKind.TEST_JOINT, Quantity.EARTH_COMBINED, (2.0, 3.2), "baseline"),
+    ],
+)
+def test_every_quantity_with_a_limit_rises_by_the_profile_s_own_step(
+    kind, quantity, values, against
+):
+    site = SiteBuilder("II")
+    part = site.component(kind, "P-01")
+    for n, value in enumerate(values):
+        site.reading(site.visit(date(2023 + n, 3, 1)), part, quantity, value)
+    (result,) = _by_rule(site, "rise")
+    # 50 % on baseline or previous: continuity_rise_fraction etc., our default in the profile.
+    assert result.severity is Severity.WATCH and result.component_tag == "P-01"
+    assert against in result.message and "more than the 50 % allowed" in result.message
+    assert result.limit == pytest.approx(values[0 if against == "baseline" else -2] * 1.5)
+    assert IEC.limits.rise_step(quantity) == 0.5
+    # Within the limit it still passes: the rise is watched, not failed.
+    assert _by_rule(site, "limit") == []
+
+
+def test_a_profile_without_the_new_steps_uses_the_electrode_s():
+    limits = IEC.limits.model_copy(
+        update={"continuity_rise_fraction": None, "rise_fraction": 2.0}
+    )
+    assert limits.rise_step(Quantity.CONTINUITY) == 2.0
+    assert IEC.limits.model_copy(update={"bonding_rise_fraction": 0.2}).rise_step(
+        Quantity.BONDING
+    ) == 0.2
+
+
+def test_a_doubtful_latest_reading_says_nothing_of_a_rise():
+    site = SiteBuilder("II")
+    down = site.component(ComponentKind.DOWN_CONDUCTOR, "DC-01")
+    site.reading(site.visit(date(2023, 3, 1)), down, Quantity.CONTINUITY, 0.05)
+    site.reading(site.visit(date(2024, 3, 1)), down, Quantity.CONTINUITY, 0.15, unreliable=True)
+    assert _by_rule(site, "rise") == []
+
+
 def test_small_rise_is_no_result():
     site, _, _ = _one_electrode(4.0, 5.0, 5.9, start=2023)
     assert _by_rule(site, "rise") == []
@@ -314,6 +359,7 @@ def test_overdue_site_and_drifting_electrode_through_check_site():
         visit = site.visit(date(2020 + n, 5, 1))
         site.reading(visit, electrode, Quantity.EARTH_ISOLATED, value)
         site.reading(visit, site.components[0], Quantity.CONTINUITY, 0.05)
+    site.grade_all(visit)
     check = check_site(site.records(), IEC, TODAY)
     assert check.worst is Severity.OVERDUE and check.needs_action
     (schedule,) = [r for r in check.results if r.rule == "schedule"]
@@ -353,8 +399,9 @@ def test_readings_on_the_same_day_the_later_one_decides():
 
 
 def test_clean_site_is_ok():
-    site, _, _ = _one_electrode(4.0, start=2026)
+    site, _, (visit,) = _one_electrode(4.0, start=2026)
     site.components = [c for c in site.components if c.kind is not ComponentKind.DOWN_CONDUCTOR]
+    site.grade_all(visit)
     check = check_site(site.records(), IEC, date(2026, 3, 2))
     assert check.results == () and check.worst is Severity.OK
     assert check.summary.startswith("all clear")

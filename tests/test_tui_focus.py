@@ -51,12 +51,14 @@ async def test_tab_walks_a_dialog_in_reading_order(tui_db: Path) -> None:
     async with app.run_test(size=(80, 24)) as pilot:
         dialog = await _dialog(pilot, "m")
         seen = []
-        for _ in range(5):
+        for _ in range(6):
             seen.append(app.focused.id if app.focused else None)
             await pilot.press("tab")
-        assert seen == ["field-description", "field-serial", "field-calibration_due",
-                        "cancel", "save"]  # fmt: skip
-        assert all(isinstance(dialog.query_one(f"#{i}"), (Input, Button)) for i in seen)
+        assert seen == ["field-description", "field-kind", "field-serial",
+                        "field-calibration_due", "cancel", "save"]  # fmt: skip
+        assert all(
+            isinstance(dialog.query_one(f"#{i}"), (Input, Button, Select)) for i in seen
+        )
 
 
 async def test_a_pick_list_opens_on_enter_only(walk_db: tuple[Path, str]) -> None:

@@ -9,7 +9,7 @@ from pathlib import Path
 from textual.widgets import DataTable, Input, OptionList, Select, Static
 from tui_factories import ANCHOR, settled, tui_db  # noqa: F401
 
-from inspectkit.model import Inspector, Instrument, Site
+from inspectkit.model import Inspector, Instrument, InstrumentKind, Site
 from inspectkit.store import Store
 from inspectkit.store.preferences import INSPECTOR_SETTING, INSTRUMENT_SETTING
 from inspectkit.tui.app import make_app
@@ -65,6 +65,23 @@ async def test_add_instrument_validates_then_becomes_default(tui_db: Path) -> No
         added = app.store.select(Instrument, "serial = 'LM2-77'")
         assert len(added) == 1
         assert app.settings.instrument_id == added[0].id
+        assert added[0].kind is None  # no kind given: not judged
+
+
+async def test_a_new_instrument_is_given_its_kind(tui_db: Path) -> None:
+    app = make_app(tui_db, today=ANCHOR)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _settings(pilot)
+        await pilot.press("m")
+        await pilot.pause()
+        dialog = app.screen
+        dialog.query_one("#field-description", Input).value = "Low-ohm meter LM-3"
+        dialog.query_one("#field-serial", Input).value = "LM3-01"
+        dialog.query_one("#field-kind", Select).value = InstrumentKind.LOW_OHMMETER.value
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        [added] = app.store.select(Instrument, "serial = 'LM3-01'")
+        assert added.kind is InstrumentKind.LOW_OHMMETER
 
 
 async def test_profile_per_site(tui_db: Path) -> None:

@@ -157,7 +157,10 @@ async def test_walkdown_starts_a_draft_and_continues_it(tui_db: Path) -> None:
         screen = await _open(pilot, tui_db, "Harbour Depot")
         await pilot.press("w")
         await pilot.pause()
+        assert "Who is inspecting" in app.screen.prompt  # none chosen yet: asked first
         await pilot.press("enter")
+        await pilot.pause()
+        await pilot.press("enter")  # the kind of visit
         await pilot.pause()
         assert isinstance(app.screen, walkdown.WalkdownScreen)
         drafts = app.store.select(

@@ -58,11 +58,15 @@ DEMO_SITE = "Pellow Ridge Quarry Offices"
 class WalkHarness(App[None]):
     """The walkdown screen alone on a store, as the site screen would push it."""
 
-    def __init__(self, path: Path, inspection_id: str) -> None:
+    def __init__(self, path: Path, inspection_id: str, today: date | None = None) -> None:
         super().__init__()
         self.store = Store.open(path)
-        self.today = date.today()
+        self.today = today or date.today()
         self.inspection_id = inspection_id
+
+    def now(self) -> datetime:
+        """Readings typed now are taken on the harness's day, as the app's are on its own."""
+        return datetime.combine(self.today, datetime.now(UTC).timetz())
 
     def on_mount(self) -> None:
         self.push_screen(WalkdownScreen(self.inspection_id))
@@ -204,12 +208,18 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         assert "Still missing" not in question
         await pilot.press("y")
         await pilot.pause()
+        # The electrodes were read with their joints open: were they all closed again?
+        asked = str(app.screen.query_one("#prompt", Static).render())
+        assert "Test joints opened for isolated readings: TJ-01" in asked
+        await pilot.press("enter")  # the first answer: yes, all reconnected and re-tested
+        await pilot.pause()
         assert not isinstance(app.screen, WalkdownScreen)
         assert app.store.get_setting("instrument_id") == hired.id
 
     with Store.open(db_path) as store:
         done = store.get(Inspection, visit.id)
         assert done is not None and done.finished and done.soil is SoilCondition.NORMAL
+        assert done.joints_reconnected is True
         records = load_site_records(store, site.id)
         parts = {c.id: c for c in records.components}
         readings = [r for r in records.readings if r.inspection_id == visit.id]

@@ -6,9 +6,11 @@ import subprocess
 import sys
 from datetime import UTC, date, datetime, timedelta
 from pathlib import Path
+from typing import Any
 
 import pytest
 
+from inspectkit import walkdown
 from inspectkit.checklists import load_checklist
 from inspectkit.model import (
     ComponentKind,
@@ -32,7 +34,6 @@ from inspectkit.walkdown import (
     finish_inspection,
     grade_component,
     missing_for_completion,
-    record_reading,
     saved_entries,
     set_details,
     set_soil,
@@ -43,6 +44,14 @@ from inspectkit.walkdown import (
 from tests.walkdown_factories import EARLIER, WalkSite, build_walk_site, write_photo
 
 TODAY = date(2026, 6, 1)
+#: When the readings of the visit on TODAY are taken unless a test says otherwise.
+AT = datetime(2026, 6, 1, 10, 0, tzinfo=UTC)
+
+
+def record_reading(*args: Any, **kwargs: Any) -> walkdown.ReadingOutcome:
+    """The walkdown's own, with the readings taken on the visit's day rather than the clock's."""
+    kwargs.setdefault("taken_at", AT)
+    return walkdown.record_reading(*args, **kwargs)
 
 
 @pytest.fixture
@@ -133,9 +142,11 @@ def test_rise_on_the_baseline_is_watch(store: Store, site: WalkSite, visit: Insp
 def test_continuity_in_milliohms(store: Store, site: WalkSite, visit: Inspection) -> None:
     outcome = record_reading(store, visit.id, site.tag("DC-01").id, "continuity", "180 mΩ")
     # Continuity limit 0.2 Ω: from memory (docs/sources.md, "Rules of the trade"), as set
-    # in the iec-62305-3 profile.
-    assert outcome.verdict == "PASS 180 mΩ ≤ 200 mΩ"
+    # in the iec-62305-3 profile; within it, but 80 % above the 100 mΩ of the last visit,
+    # more than the 50 % step (continuity_rise_fraction, our default): watched, not passed.
+    assert outcome.verdict == "WATCH 180 mΩ ≤ 200 mΩ"
     assert outcome.comparison == f"+80 % on {EARLIER.isoformat()}"
+    assert "80 % above its baseline of 100 mΩ" in outcome.messages[0]
 
 
 def test_counter_rise_shows_the_count_and_asks_for_a_post_strike_visit(

@@ -107,7 +107,7 @@ async def test_keys_typed_straight_after_each_move_land_on_their_component(
     path, visit_id, site_id = demo_walk
     if callable(slowed):
         slowed(monkeypatch)
-    app = WalkHarness(path, visit_id)
+    app = WalkHarness(path, visit_id, today=ANCHOR)
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = screen_of(app)

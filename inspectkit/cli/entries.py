@@ -1,4 +1,5 @@
-"""`inspectkit reading add`, `grade`, `photo add`: one walkdown entry each, saved at once."""
+"""`inspectkit reading add`, `grade`, `not-inspected`, `photo add`: one walkdown entry each, saved
+at once."""
 
 from __future__ import annotations
 
@@ -11,24 +12,30 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, fail, open_store
 from inspectkit.cli.readings import readings_app
+from inspectkit.intake import ReadingRefused, reading_window, set_reading_window
 from inspectkit.model import (
     METHODS_FOR,
     Grade,
     Method,
+    NotInspectedReason,
     Quantity,
     Severity,
     SoilCondition,
 )
 from inspectkit.repeats import RepeatError, mark_repeat
-from inspectkit.store.preferences import Preferences
 from inspectkit.store.record_queries import site_components
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
+    DEFAULT_METHOD,
     JOINT_FOR,
     ReadingOutcome,
     WalkdownError,
     attach_photos,
+    chosen_instruments,
+    clear_not_inspected,
     grade_component,
+    instrument_for,
+    mark_not_inspected,
     record_reading,
     withdraw_reading,
 )
@@ -96,7 +103,10 @@ def add_reading(
     ] = None,
     instrument: Annotated[
         str | None,
-        typer.Option("--instrument", help="Serial or id (default: the one the walkdown uses)."),
+        typer.Option(
+            "--instrument",
+            help="Serial or id (default: the one chosen for the kind that measures it).",
+        ),
     ] = None,
     soil: Annotated[
         SoilCondition | None,
@@ -121,11 +131,12 @@ def add_reading(
     """Save one reading and print its verdict; typing it again corrects it; exit 1 on FAIL."""
     with open_store(ctx, db) as store:
         visit, component = lookups.visit_part(store, inspection, tag)
-        instrument_id = (
-            lookups.instrument(store, instrument).id
-            if instrument is not None
-            else Preferences(store).instrument_id
-        )
+        if instrument is not None:
+            instrument_id: str | None = lookups.instrument(store, instrument).id
+        else:
+            usual = method or DEFAULT_METHOD[quantity]
+            found = instrument_for(chosen_instruments(store), quantity, usual)
+            instrument_id = found.id if found else None
         if soil is None and quantity in JOINT_FOR:
             soil = visit.soil
         try:
@@ -224,6 +235,65 @@ def grade_command(
     typer.echo(line)
 
 
+def not_inspected_command(
+    ctx: typer.Context,
+    inspection: InspectionOption,
+    tag: TagOption,
+    reason: Annotated[
+        NotInspectedReason | None,
+        typer.Option("--reason", help="Why it could not be inspected.", show_default=False),
+    ] = None,
+    text: Annotated[
+        str, typer.Option("--text", help="What stopped it, in words; needed with 'other'.")
+    ] = "",
+    clear: Annotated[
+        bool, typer.Option("--clear", help="Take back the mark: the component is to grade.")
+    ] = False,
+    db: DbOption = None,
+) -> None:
+    """Mark a component not inspected on this visit, and why; it stands instead of a grade."""
+    with open_store(ctx, db) as store:
+        visit, component = lookups.visit_part(store, inspection, tag)
+        try:
+            if clear:
+                clear_not_inspected(store, visit.id, component.id)
+            elif reason is None:
+                fail("--reason: say why it was not inspected: " + _REASONS)
+            else:
+                mark = mark_not_inspected(store, visit.id, component.id, reason, text)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    if clear:
+        typer.echo(f"{component.tag}: not-inspected mark taken back; grade it.")
+    else:
+        typer.echo(f"{component.tag}: not inspected ({mark.why}).")
+
+
+_REASONS = ", ".join(r.value for r in NotInspectedReason)
+
+
+def window_command(
+    ctx: typer.Context,
+    hours: Annotated[
+        float | None,
+        typer.Argument(help="Hours either side of the visit's day (0 to 48); none: show it."),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """How far outside its visit's day a reading's time may lie, on every way in."""
+    with open_store(ctx, db) as store:
+        if hours is not None:
+            try:
+                set_reading_window(store, hours)
+            except ReadingRefused as exc:
+                fail(f"HOURS: {exc}")
+        window = reading_window(store)
+    typer.echo(
+        f"Readings are accepted from {window.total_seconds() / 3600:g} h before a visit's day "
+        "to as long after it."
+    )
+
+
 @photo_app.command("add")
 def add_photo(
     ctx: typer.Context,
@@ -258,6 +328,8 @@ def register(app: typer.Typer) -> None:
     # `readings add` beside `readings import`; `reading add` is taken too, as people type it.
     readings_app.command("add")(add_reading)
     readings_app.command("withdraw")(withdraw_command)
+    readings_app.command("window")(window_command)
     app.add_typer(readings_app, name="reading", hidden=True)
     app.command("grade")(grade_command)
+    app.command("not-inspected")(not_inspected_command)
     app.add_typer(photo_app, name="photo")

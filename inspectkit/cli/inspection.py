@@ -1,4 +1,4 @@
-"""`inspectkit inspection start|show|details|missing|finish`: a walkdown from the command line."""
+"""`inspectkit inspection start|show|details|missing|finish|discard`: a walkdown by commands."""
 
 from __future__ import annotations
 
@@ -12,7 +12,7 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
 from inspectkit.cli.entries import outcome_json, outcome_line
-from inspectkit.model import Inspection, Site
+from inspectkit.model import Inspection, Inspector, Site
 from inspectkit.store.preferences import Preferences
 from inspectkit.store.record_queries import site_inspections
 from inspectkit.walkdown import (
@@ -21,10 +21,12 @@ from inspectkit.walkdown import (
     SavedEntries,
     Stop,
     WalkdownError,
+    discard_inspection,
     finish_inspection,
     missing_for_completion,
     saved_entries,
     set_details,
+    set_inspector,
     start_inspection,
     walk_for,
 )
@@ -65,9 +67,21 @@ def start(
             show_default=False,
         ),
     ] = None,
+    new: Annotated[
+        bool,
+        typer.Option(
+            "--new",
+            help="Start a second visit even though a finished draft of that kind and day "
+            "exists (it is continued otherwise).",
+        ),
+    ] = False,
     db: DbOption = None,
 ) -> None:
-    """Start a walkdown and print its id; a site's open draft is continued, never doubled."""
+    """Start a walkdown and print its id; a site's open draft is continued, never doubled.
+
+    A finished draft of the same kind on the same day is opened again and continued,
+    so one visit is one inspection and one report.
+    """
     with open_store(ctx, db) as store:
         found = lookups.site(store, site)
         inspector_id = (
@@ -75,7 +89,7 @@ def start(
             if inspector is not None
             else Preferences(store).inspector_id
         )
-        known = {v.id for v in site_inspections(store, found.id)}
+        known = {v.id: v for v in site_inspections(store, found.id)}
         try:
             visit = start_inspection(
                 store,
@@ -83,14 +97,18 @@ def start(
                 kind.value,
                 inspector_id,
                 day.date() if day is not None else date.today(),
+                continue_draft=not new,
             )
         except WalkdownError as exc:
             lookups.refused(exc)
     if visit.id in known:
         other = visit.kind.value != kind.value or (day is not None and visit.date != day.date())
+        state = "finished" if known[visit.id].finished else "open"
         typer.echo(
-            f"Continuing the open {visit.kind.value} draft of {visit.date.isoformat()}"
-            + ("; finish it before starting another." if other else "."),
+            f"Continuing the {state} {visit.kind.value} draft of {visit.date.isoformat()}"
+            + ("; finish it before starting another." if other else ".")
+            + (" It is open again: finish it once more when done." if state == "finished" else "")
+            + ("" if visit.inspector_id else " No inspector on it: give --inspector."),
             err=True,
         )
     typer.echo(visit.id)
@@ -146,6 +164,12 @@ def details(
         _text_option("--changes", "Changes to the structure since the last visit."),
     ] = None,
     notes: Annotated[str | None, _text_option("--notes", "Anything else about the visit.")] = None,
+    inspector: Annotated[
+        str | None,
+        typer.Option(
+            "--inspector", help="Who inspected: name or id; set or changed until it is signed."
+        ),
+    ] = None,
     db: DbOption = None,
 ) -> None:
     """Record the visit's details the report prints, then show all of them as recorded.
@@ -155,19 +179,53 @@ def details(
     with open_store(ctx, db) as store:
         visit = lookups.inspection(store, inspection)
         try:
-            visit = set_details(
-                store,
-                visit.id,
-                weather=weather,
-                not_inspected=not_inspected,
-                accompanied_by=accompanied_by,
-                changes_since_last=changes,
-                notes=notes,
-            )
+            with store.transaction():  # all the options given, or none
+                if inspector is not None:
+                    set_inspector(store, visit.id, lookups.inspector(store, inspector).id)
+                visit = set_details(
+                    store,
+                    visit.id,
+                    weather=weather,
+                    not_inspected=not_inspected,
+                    accompanied_by=accompanied_by,
+                    changes_since_last=changes,
+                    notes=notes,
+                )
         except WalkdownError as exc:
             lookups.refused(exc)
+        who = store.get(Inspector, visit.inspector_id) if visit.inspector_id else None
+    typer.echo(f"  {'Inspector:':<{_DETAIL_WIDTH}} {who.name if who else '(none)'}")
     for line in _detail_lines(visit, blanks=True):
         typer.echo(line)
+
+
+@inspection_app.command("discard")
+def discard(
+    ctx: typer.Context,
+    inspection: IdArgument,
+    yes: Annotated[
+        bool, typer.Option("--yes", help="Discard without asking (for scripts).")
+    ] = False,
+    db: DbOption = None,
+) -> None:
+    """Discard a draft visit with its readings, findings and photos; a signed one never.
+
+    The audit log keeps everything discarded, and a bundle carries the discard to the
+    other laptops as it carries a withdrawn reading.
+    """
+    with open_store(ctx, db) as store:
+        visit = lookups.inspection(store, inspection)
+        site = store.get(Site, visit.site_id)
+        where = site.name if site else visit.site_id
+        what = f"the {visit.kind.value} draft of {visit.date.isoformat()} at {where}"
+        if not yes and not typer.confirm(f"Discard {what} and everything recorded in it?"):
+            typer.echo("Nothing discarded.")
+            raise typer.Exit(int(Exit.ACT))
+        try:
+            discard_inspection(store, visit.id)
+        except WalkdownError as exc:
+            lookups.refused(exc)
+    typer.echo(f"Discarded {what}; the audit log keeps it.")
 
 
 @inspection_app.command("missing")
@@ -196,9 +254,27 @@ def finish(
     anyway: Annotated[
         bool, typer.Option("--anyway", help="Mark it complete even though something is missing.")
     ] = False,
+    reconnected: Annotated[
+        bool,
+        typer.Option(
+            "--reconnected",
+            help="Confirm every test joint opened for an isolated reading was reconnected "
+            "and re-tested.",
+        ),
+    ] = False,
+    not_reconnected: Annotated[
+        str,
+        typer.Option(
+            "--not-reconnected", help="Why the opened test joints were not all reconnected."
+        ),
+    ] = "",
     db: DbOption = None,
 ) -> None:
-    """List what is missing, then mark the visit complete; exit 1 (unchanged) if something is."""
+    """List what is missing, then mark the visit complete; exit 1 (unchanged) if something is.
+
+    A visit that opened test joints is marked complete only with --reconnected, or
+    with --not-reconnected and the reason; the report prints which.
+    """
     with open_store(ctx, db) as store:
         visit = lookups.inspection(store, inspection)
         try:
@@ -208,7 +284,9 @@ def finish(
             if items and not anyway:
                 typer.echo("Not marked complete: enter what is missing, or give --anyway.")
                 raise typer.Exit(int(Exit.ACT))
-            finish_inspection(store, visit.id)
+            finish_inspection(
+                store, visit.id, reconnected=reconnected, not_reconnected=not_reconnected
+            )
         except WalkdownError as exc:
             lookups.refused(exc)
     typer.echo(f"Inspection {visit.id} marked complete.")
@@ -269,6 +347,9 @@ def _stop_json(stop: Stop, saved: SavedEntries) -> dict[str, Any]:
             "due_by": finding.due_by.isoformat() if finding.due_by else None,
         },
         "photos": saved.photos.get(component.id, 0),
+        "not_inspected": None
+        if (mark := saved.not_inspected.get(component.id)) is None
+        else {"reason": mark.reason.value, "text": mark.text},
     }
 
 
@@ -292,6 +373,8 @@ def _render(
         graded = finding.grade.value.replace("_", " ") if finding else "not graded"
         if finding and finding.text:
             graded += f": {finding.text}"
+        if (mark := saved.not_inspected.get(component.id)) is not None:
+            graded = f"not inspected ({mark.why})"
         photos = saved.photos.get(component.id, 0)
         extra = f" · {counted(photos, 'photo')}" if photos else ""
         tag = component.tag.ljust(12 - 2 * stop.depth)
@@ -305,13 +388,16 @@ def _render(
     yield f"{counted(len(missing), 'thing')} missing." if missing else "Nothing missing."
 
 
+#: Width of the labels in the details listing.
+_DETAIL_WIDTH = max(len(label) for label in DETAIL_LABELS.values()) + 1
+
+
 def _detail_lines(visit: Inspection, *, blanks: bool) -> Iterator[str]:
     """`  Weather: dry, overcast`, one line per detail; `blanks` shows unrecorded ones too."""
-    width = max(len(label) for label in DETAIL_LABELS.values()) + 1
     for name, label in DETAIL_LABELS.items():
         value = getattr(visit, name)
         if value or blanks:
-            yield f"  {label + ':':<{width}} {value or '(none)'}"
+            yield f"  {label + ':':<{_DETAIL_WIDTH}} {value or '(none)'}"
 
 
 def register(app: typer.Typer) -> None:

@@ -60,6 +60,8 @@ OPTION_FOR = {
     "accompanied_by": "--accompanied-by",
     "changes_since_last": "--changes",
     "notes": "--notes",
+    "reconnected": "--reconnected",
+    "reason": "--reason",
 }
 
 

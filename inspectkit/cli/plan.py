@@ -45,6 +45,10 @@ def plan(
     pin: Annotated[
         list[str] | None, _option("--pin", "Put this site (name or id) first; may be repeated.")
     ] = None,
+    move: Annotated[
+        list[str] | None,
+        _option("--move", "Move a site's visit to a day, SITE=YYYY-MM-DD; may be repeated."),
+    ] = None,
     csv_file: Annotated[
         Path | None, _option("--csv", "Also write the visits to this CSV file.", dir_okay=False)
     ] = None,
@@ -90,13 +94,15 @@ def plan(
             keep_depot(store, new_depot)
             typer.echo(f"Depot saved: {new_depot.lat:.6f},{new_depot.lon:.6f}")
             return
-        ids = {}
-        for option, names in (("--drop", drop or []), ("--pin", pin or [])):
+        ids: dict[str, list[str]] = {}
+        moves = dict(_move(text) for text in move or [])
+        for option, names in (("--drop", drop or []), ("--pin", pin or []), ("--move", moves)):
             for name in names:
                 site = find_site(store, name)
                 if site is None:
                     fail(f"{option}: no site called {name!r}; see `inspectkit sites`")
                 ids.setdefault(option, []).append(site.id)
+        moved = dict(zip(ids.get("--move", []), moves.values(), strict=True))
         try:
             result = make_plan(
                 store,
@@ -105,6 +111,7 @@ def plan(
                 depot,
                 dropped=ids.get("--drop", []),
                 pinned=ids.get("--pin", []),
+                moved=moved,
             )
         except PointError as exc:
             fail(str(exc))
@@ -125,6 +132,17 @@ def plan(
     for label, path in (("CSV", csv_file), ("iCalendar", ics_file)):
         if path is not None:
             typer.echo(f"{label} written to {path}")
+
+
+def _move(text: str) -> tuple[str, date]:
+    """A "SITE=YYYY-MM-DD" move, or exit 2 saying how to write one."""
+    name, sep, day = text.rpartition("=")
+    try:
+        if not sep or not name.strip():
+            raise ValueError
+        return name.strip(), date.fromisoformat(day.strip())
+    except ValueError:
+        fail(f"--move: {text!r} is not SITE=YYYY-MM-DD; e.g. --move 'Hall 2=2027-01-12'")
 
 
 def register(app: typer.Typer) -> None:

@@ -20,7 +20,9 @@ from dateutil.relativedelta import relativedelta
 from inspectkit.demo.photos import draw_photo
 from inspectkit.demo.scenario import Scenario, load_scenario
 from inspectkit.demo.visits import DEMO_USER, DemoContext, DemoRecords, Shot, SiteHistory, stamps
-from inspectkit.model import Inspector, Instrument, Organisation, Photo
+from inspectkit.model import Inspector, Instrument, InstrumentKind, Organisation, Photo
+from inspectkit.plan.geo import parse_point
+from inspectkit.plan.planner import save_depot
 from inspectkit.store import Store
 from inspectkit.store.photos import put_file, read_exif
 
@@ -34,13 +36,20 @@ def build_demo(path: Path, anchor: date) -> Path:
     path = Path(path)
     if path.exists():
         raise FileExistsError(f"{path} exists already; give a new path for the demo database")
-    demo = demo_records(load_scenario(), anchor)
+    scenario = load_scenario()
+    demo = demo_records(scenario, anchor)
     with Store.open(path, user=DEMO_USER) as store, tempfile.TemporaryDirectory() as scratch:
         photos = [_store_photo(store, Path(scratch), shot) for shot in demo.shots]
         with store.transaction():
             store.save_all(demo.records, touch=False)
             store.save_all(photos, touch=False)
+        if scenario.contractor.depot:
+            save_depot(store, parse_point(scenario.contractor.depot, "contractor.depot"))
     return path
+
+
+#: The kind of instrument the scenario's `use` names.
+_KIND_OF_USE = {"earth": InstrumentKind.EARTH_TESTER, "low_ohm": InstrumentKind.LOW_OHMMETER}
 
 
 def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
@@ -71,6 +80,7 @@ def demo_records(scenario: Scenario, anchor: date) -> DemoRecords:
             description=spec.description,
             serial=spec.serial,
             calibration_due=anchor + timedelta(days=spec.calibration_due_days),
+            kind=_KIND_OF_USE[spec.use],
             **since,
         )
         demo.instruments[spec.key] = (instrument, spec.use)

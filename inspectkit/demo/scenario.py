@@ -9,10 +9,11 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Literal
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
-from inspectkit.model import ElectrodeType, Grade, ProtectionLevel
+from inspectkit.model import ElectrodeType, Grade, NotInspectedReason, ProtectionLevel
 from inspectkit.paths import demo_dir
+from inspectkit.plan.geo import parse_point
 from inspectkit.tomlfile import read_toml, validated
 
 #: Names an inspection can be referred to by in the scenario file.
@@ -27,16 +28,28 @@ class _Data(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True)
 
 
-class Contractor(_Data):
-    """The demo's own contractor: the default organisation, like the branding file's."""
-
+class _Firm(_Data):
     name: str
     address: str = ""
     phone: str = ""
     email: str = ""
 
 
-class OrganisationSpec(Contractor):
+class Contractor(_Firm):
+    """The demo's own contractor: the default organisation, like the branding file's."""
+
+    #: The depot rounds are planned from, "LAT,LON".
+    depot: str | None = None
+
+    @field_validator("depot")
+    @classmethod
+    def _position(cls, value: str | None) -> str | None:
+        if value is not None:
+            parse_point(value, "depot")  # a PointError is a ValueError: named by pydantic
+        return value
+
+
+class OrganisationSpec(_Firm):
     """Another inspecting organisation some inspectors work for."""
 
     key: str
@@ -68,6 +81,14 @@ class FixedEarth(_Data):
 
     tag: str
     ohms: float = Field(gt=0)
+
+
+class SkippedPart(_Data):
+    """A component the latest complete inspection could not inspect, and why."""
+
+    tag: str
+    reason: NotInspectedReason
+    text: str = ""
 
 
 class DriftingEarth(_Data):
@@ -124,6 +145,8 @@ class SiteSpec(_Data):
     roofing: str = ""
     design_standard: str = ""
     air_termination: str = ""
+    #: When the site can be visited, as the planner reads it.
+    access: str = ""
     years: int = Field(ge=2, le=15)
     air_terminals: int = Field(ge=1)
     mesh_conductors: int = Field(ge=0)
@@ -146,6 +169,8 @@ class SiteSpec(_Data):
     lapsed_instrument: str | None = None
     missing_readings: list[str] = Field(default_factory=list)
     not_inspected: str = ""
+    #: Components the latest complete inspection marked not inspected.
+    skipped: list[SkippedPart] = Field(default_factory=list)
     #: Who went round with the inspector at the latest complete inspection.
     accompanied_by: str = ""
     #: Changes to the structure found at the latest complete inspection.

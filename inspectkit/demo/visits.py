@@ -34,6 +34,7 @@ from inspectkit.model import (
     Instrument,
     JointState,
     Method,
+    NotInspected,
     Quantity,
     Reading,
     Record,
@@ -92,9 +93,15 @@ _SITE_FIELDS = {
     "roofing",
     "design_standard",
     "air_termination",
+    "access",
 }
 #: Scenario keys that are set on the latest complete inspection.
 _LATEST_FIELDS = {"not_inspected", "accompanied_by", "changes_since_last"}
+
+
+def _derived_id(visit: _Visit, component: Component, what: str) -> str:
+    """A key made from the visit, the component and what it is, the same every build."""
+    return str(uuid.uuid5(uuid.UUID(visit.inspection.id), f"{component.id} {what}"))
 
 
 def stamps(at: datetime, by: str = DEMO_USER) -> dict[str, Any]:
@@ -207,10 +214,12 @@ class SiteHistory:
         self.system: System = lay_out(
             spec, self.site.id, self.start, created, demo.new_id, self.rng
         )
+        #: The values of each series so far (electrodes, conductors, bonds, the system).
         self.earth_history: dict[str, list[float]] = {}
         self.visits: list[_Visit] = []
         self.readings: list[Reading] = []
         self.findings: list[Finding] = []
+        self.skipped: list[NotInspected] = []
 
     # ----------------------------------------------------------- the visits
 
@@ -336,7 +345,6 @@ class SiteHistory:
         rng = self.rng
         factor = SOIL_FACTOR[visit.inspection.soil or SoilCondition.NORMAL]
         drift = special.drifting.get(electrode.tag)
-        history = self.earth_history.setdefault(electrode.id, [])
         if electrode.tag in special.earth:
             value = special.earth[electrode.tag]
         elif drift is not None:
@@ -347,15 +355,25 @@ class SiteHistory:
             value = trend * (1 + 0.25 * (factor - 1)) * math.exp(rng.gauss(0, 0.015))
         else:
             value = self.system.typical[electrode.id] * factor * math.exp(rng.gauss(0, 0.04))
-            if history:
-                value = min(value, _MAX_RISE * history[0], _MAX_RISE * history[-1])
-        history.append(value)
+            value = self._within_scatter(electrode.id, value)
+        if drift is not None or electrode.tag in special.earth:
+            self.earth_history.setdefault(electrode.id, []).append(value)
         return round(value, 1 if value >= 10 else 2)
 
     def _continuity_value(self, down: Component, special: _Special) -> float:
         if down.tag in special.continuity:
             return special.continuity[down.tag]
-        return round(self.system.typical[down.id] * math.exp(self.rng.gauss(0, 0.08)), 3)
+        value = self.system.typical[down.id] * math.exp(self.rng.gauss(0, 0.08))
+        return round(self._within_scatter(down.id, value), 3)
+
+    def _within_scatter(self, key: str, value: float) -> float:
+        """The value kept below `_MAX_RISE` times the first and the previous of its series,
+        so that only the scenario's own cases rise enough to be watched."""
+        history = self.earth_history.setdefault(key, [])
+        if history:
+            value = min(value, _MAX_RISE * history[0], _MAX_RISE * history[-1])
+        history.append(value)
+        return value
 
     def _tests(self, visit: _Visit, special: _Special, *, joints: int | None = None) -> None:
         """Continuity per down conductor, each electrode isolated, the whole system, bonds.
@@ -379,11 +397,13 @@ class SiteHistory:
         if joints is not None:
             return
         # Electrodes in parallel, less their mutual resistance (invented spread).
-        combined = round(rng.uniform(1.3, 1.7) / sum(1 / v for v in values), 2)
         tj01 = self.system.tagged("TJ-01")
+        combined = rng.uniform(1.3, 1.7) / sum(1 / v for v in values)
+        combined = round(self._within_scatter(f"{tj01.id}:combined", combined), 2)
         self._reading(visit, tj01, Quantity.EARTH_COMBINED, combined, earth)
         for bond in self.system.of_kind(ComponentKind.BONDING):
-            value = round(self.system.typical[bond.id] * math.exp(rng.gauss(0, 0.1)), 3)
+            value = self.system.typical[bond.id] * math.exp(rng.gauss(0, 0.1))
+            value = round(self._within_scatter(bond.id, value), 3)
             self._reading(visit, bond, Quantity.BONDING, value, low_ohm)
 
     def _counter_readings(self, visit: _Visit, count: int) -> None:
@@ -421,7 +441,7 @@ class SiteHistory:
 
     def _build(self) -> None:
         spec = self.spec
-        named = [*spec.failing_earth, *spec.failing_continuity, *spec.drifting_earth]
+        named = [*spec.failing_earth, *spec.failing_continuity, *spec.drifting_earth, *spec.skipped]
         for tag in [*(n.tag for n in named), *spec.missing_readings]:
             self.system.tagged(tag)
         for kind, day in self._schedule():
@@ -463,13 +483,21 @@ class SiteHistory:
             latest.inspection = latest.inspection.model_copy(update=latest_fields)
         self._minor_findings()
         self._scenario_findings(refs)
+        self._skip_parts(latest)
         finished = [v for v in self.visits if v.inspection.finished]
         for visit in {id(v): v for v in (latest, *finished[-1:])}.values():
             self._sound_grades(visit)
         if spec.draft_today:
             self._draft(count, usual)
+        opened = {r.inspection_id for r in self.readings if r.joint_state is JointState.OPEN}
         for visit in self.visits:
-            visit.inspection = visit.inspection.model_copy(update={"updated_at": visit.clock})
+            confirmed = visit.inspection.finished and visit.inspection.id in opened
+            visit.inspection = visit.inspection.model_copy(
+                update={
+                    "updated_at": visit.clock,
+                    "joints_reconnected": True if confirmed else None,
+                }
+            )
         self.demo.out.records.extend(
             [
                 self.site,
@@ -477,8 +505,28 @@ class SiteHistory:
                 *(v.inspection for v in self.visits),
                 *self.readings,
                 *self.findings,
+                *self.skipped,
             ]
         )
+
+    # The marks below take their ids from the visit and the component, and their times
+    # from the visit's clock, not from the seeded generator (as `_sound_grades` does):
+    # the rest of the scenario draws the same numbers as it did before they were added.
+
+    def _skip_parts(self, visit: _Visit) -> None:
+        """The components the scenario says the latest complete inspection could not inspect."""
+        for part in self.spec.skipped:
+            component = self.system.tagged(part.tag)
+            self.skipped.append(
+                NotInspected(
+                    id=_derived_id(visit, component, "not inspected"),
+                    inspection_id=visit.inspection.id,
+                    component_id=component.id,
+                    reason=part.reason,
+                    text=part.text,
+                    **stamps(visit.clock, visit.inspection.updated_by),
+                )
+            )
 
     def _finding(
         self,
@@ -530,6 +578,7 @@ class SiteHistory:
         rest of the scenario draws the same numbers as before.
         """
         graded = {f.component_id for f in self.findings if f.inspection_id == visit.inspection.id}
+        graded |= {s.component_id for s in self.skipped if s.inspection_id == visit.inspection.id}
         day = visit.inspection.date
         for component in self.system.components:
             if component.id in graded or (component.retired_on and component.retired_on <= day):

@@ -19,6 +19,7 @@ from inspectkit.model import (
     Inspection,
     InspectionKind,
     InspectionState,
+    NotInspected,
     Quantity,
     Reading,
     SiteRecords,
@@ -63,7 +64,32 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         findings=findings,
         photos=[p for p in records.photos if p.inspection_id in known],
         instruments=records.instruments,
+        not_inspected=[n for n in records.not_inspected if n.inspection_id in known],
     )
+
+
+def open_not_inspected(records: SiteRecords, today: date) -> list[tuple[NotInspected, date]]:
+    """Components marked not inspected that no later visit has graded or measured since,
+    with the day of the visit that marked them; those still in service, by day.
+
+    A return visit is owed for each.
+    """
+    dates = {i.id: i.date for i in records.inspections}
+    seen: dict[str, date] = {}
+    for record in [*records.findings, *records.readings]:
+        day = dates.get(record.inspection_id)
+        if day is not None and record.component_id:
+            seen[record.component_id] = max(day, seen.get(record.component_id, day))
+    parts = {c.id: c for c in records.components}
+    found = []
+    for mark in records.not_inspected:
+        day = dates.get(mark.inspection_id)
+        part = parts.get(mark.component_id)
+        if day is None or part is None or not in_service(part, today):
+            continue
+        if seen.get(mark.component_id, day) <= day:
+            found.append((mark, day))
+    return sorted(found, key=lambda item: item[1])
 
 
 def counts_as_done(inspection: Inspection) -> bool:

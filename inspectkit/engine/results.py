@@ -60,8 +60,8 @@ class Result:
         severity: ok < watch < incomplete < retake < fail < overdue (words and meanings
             in `SEVERITY_WORDS`).
         rule: short id of the rule that made it: "limit", "rise", "calibration",
-            "unreliable", "strike-counter", "incomplete", "carried-defect",
-            "schedule" or "trend".
+            "unreliable", "strike-counter", "incomplete", "ungraded", "not-inspected",
+            "carried-defect", "schedule" or "trend".
         site_id, site_name: the site.
         component_id, component_tag: the component, where the result is about one.
         reading_id: the reading, where it is about one.
@@ -71,6 +71,7 @@ class Result:
         value, limit, unit: the figure judged and what it was judged against (SI units;
             for a trend, the fitted value at the last reading).
         due: the date something must be done by, where there is one.
+        components: the tags of the components a result about several names.
     """
 
     severity: Severity
@@ -85,6 +86,7 @@ class Result:
     limit: float | None = None
     unit: str | None = None
     due: date | None = None
+    components: tuple[str, ...] = ()
     reading_ids: tuple[str, ...] = ()
     listed: tuple[str, ...] = ()
 
@@ -108,5 +110,6 @@ class Result:
             "limit": self.limit,
             "unit": self.unit,
             "due": self.due.isoformat() if self.due else None,
+            "components": list(self.components),
             "readings": list(self.listed),
         }

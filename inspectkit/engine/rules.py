@@ -22,6 +22,7 @@ from inspectkit.engine.history import (
     electrode_count,
     first_found,
     in_service,
+    open_not_inspected,
     series,
 )
 from inspectkit.engine.results import Result
@@ -128,10 +129,6 @@ def _shown(reading: Reading) -> str:
     return format_value(reading.value, reading.quantity, reading.over_range, digits=3)
 
 
-def _ohms(value: float) -> str:
-    return format_value(value, Quantity.EARTH_ISOLATED, digits=3)
-
-
 @cache
 def _limit_text(limit: float, quantity: Quantity) -> str:
     """A limit as the messages show it; a profile has few, and thousands of readings meet them."""
@@ -174,33 +171,107 @@ def reading_limits(facts: SiteFacts) -> Iterator[Result]:
             )
 
 
-def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
-    """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
-    step = facts.profile.limits.rise_fraction
-    for trend in facts.trends:  # the trend has already sorted out the readings that count
-        values, days = trend.values, trend.days
-        if len(values) < 2:
-            continue
-        last = values[-1]
+#: What to look at when a reading has risen, by quantity.
+RISE_ACTIONS = {
+    Quantity.EARTH_ISOLATED: "investigate the electrode and its connection",
+    Quantity.EARTH_COMBINED: "check the test joints and electrodes before the limit is reached",
+    Quantity.CONTINUITY: "check the joints and fixings along the conductor",
+    Quantity.BONDING: "clean and tighten the bond",
+}
+
+
+@dataclass(frozen=True)
+class _Series:
+    """The readings of one component and quantity that count for a rise, oldest first."""
+
+    facts: SiteFacts
+    component_id: str
+    tag: str
+    quantity: Quantity
+    values: list[float]
+    days: list[str]
+    reading_ids: list[str]
+
+    def rise(self) -> Result | None:
+        """`watch` when the last value is up by more than the profile's step on the first
+        (the baseline) or on the one before it; the baseline is named first."""
+        step = self.facts.profile.limits.rise_step(self.quantity)
+        if len(self.values) < 2:
+            return None
+        last = self.values[-1]
+        what = "electrode" if self.quantity is Quantity.EARTH_ISOLATED else self.quantity.label
         for name, at in (("baseline", 0), ("previous reading", -2)):
-            earlier = values[at]
+            earlier = self.values[at]
             if earlier and last > earlier * (1 + step):
-                rise = 100 * (last / earlier - 1)
-                yield facts.result(
+                shown = [format_value(v, self.quantity, digits=3) for v in (last, earlier)]
+                return self.facts.result(
                     Severity.WATCH,
                     "rise",
-                    f"{trend.component_tag} electrode {_ohms(last)} on {days[-1]} is "
-                    f"{rise:.0f} % above its {name} of {_ohms(earlier)} ({days[at]}), "
-                    f"more than the {100 * step:.0f} % allowed: investigate the electrode and "
-                    "its connection.",
-                    component_id=trend.component_id,
-                    component_tag=trend.component_tag,
-                    reading_id=trend.reading_ids[-1],
+                    f"{self.tag} {what} {shown[0]} on {self.days[-1]} is "
+                    f"{100 * (last / earlier - 1):.0f} % above its {name} of {shown[1]} "
+                    f"({self.days[at]}), more than the {100 * step:.0f} % allowed: "
+                    f"{RISE_ACTIONS[self.quantity]}.",
+                    component_id=self.component_id,
+                    component_tag=self.tag,
+                    reading_id=self.reading_ids[-1],
                     value=last,
                     limit=earlier * (1 + step),
-                    unit=Quantity.EARTH_ISOLATED.unit,
+                    unit=self.quantity.unit,
                 )
-                break
+        return None
+
+
+def electrode_rises(facts: SiteFacts) -> Iterator[Result]:
+    """An electrode's isolated reading up by more than the allowed step on baseline or previous."""
+    for trend in facts.trends:  # the trend has already sorted out the readings that count
+        found = _Series(
+            facts,
+            trend.component_id,
+            trend.component_tag,
+            Quantity.EARTH_ISOLATED,
+            list(trend.values),
+            [str(day) for day in trend.days],
+            list(trend.reading_ids),
+        ).rise()
+        if found is not None:
+            yield found
+
+
+def series_rises(facts: SiteFacts) -> Iterator[Result]:
+    """The whole system's, a conductor's or a bond's latest reading up by more than the
+    profile's step on its baseline or previous reading, as for an electrode.
+
+    Counted as for a trend: readings that prove nothing (doubtful, over-range, taken
+    with a lapsed instrument) are left out, and a latest reading of that sort says
+    nothing of a rise.
+    """
+    for (component_id, quantity), readings in facts.history.items():
+        if quantity not in RISE_ACTIONS or quantity is Quantity.EARTH_ISOLATED:
+            continue
+        counted = [r for r in readings if _proves(facts, r)]
+        if len(counted) < 2 or counted[-1] is not readings[-1]:
+            continue
+        found = _Series(
+            facts,
+            component_id,
+            facts.tag(component_id),
+            quantity,
+            [r.value for r in counted if r.value is not None],
+            [_day(r) for r in counted],
+            [r.id for r in counted],
+        ).rise()
+        if found is not None:
+            yield found
+
+
+def _proves(facts: SiteFacts, reading: Reading) -> bool:
+    """A reading that can show a rise: a number, not doubted, from a calibrated instrument."""
+    return (
+        reading.value is not None
+        and not reading.over_range
+        and not reading.unreliable
+        and not calibration_lapsed(facts.records, reading)
+    )
 
 
 def lapsed_calibration(facts: SiteFacts) -> Iterator[Result]:
@@ -284,19 +355,34 @@ def strike_counters(facts: SiteFacts) -> Iterator[Result]:
         )
 
 
-def missing_tests(facts: SiteFacts) -> Iterator[Result]:
-    """A complete inspection lacking an electrode's isolated reading or a conductor's continuity.
-
-    Judged: the latest counted complete inspection, and any unfinished draft of one.
-    """
+def _judged_complete(facts: SiteFacts) -> list[tuple[Inspection, bool]]:
+    """The complete inspections whose gaps matter: the latest counted one, and any
+    unfinished draft of one (True beside a draft)."""
     complete = sorted(
         (i for i in facts.records.inspections if i.kind in COMPLETE_KINDS), key=lambda i: i.date
     )
     done = [i for i in complete if counts_as_done(i)]
     drafts = [i for i in complete if i.state is InspectionState.DRAFT and not i.finished]
-    judged = [(i, False) for i in done[-1:]] + [(i, True) for i in drafts]
-    for inspection, draft in judged:
-        missing = _missing(facts, inspection)
+    return [(i, False) for i in done[-1:]] + [(i, True) for i in drafts]
+
+
+def missing_tests(facts: SiteFacts) -> Iterator[Result]:
+    """A complete inspection lacking an electrode's isolated reading or a conductor's continuity.
+
+    Judged: the latest counted complete inspection, and any unfinished draft of one.
+    Components it marked not inspected are left to `not_inspected`, which says why.
+    """
+    for inspection, draft in _judged_complete(facts):
+        marked = {
+            facts.tag(n.component_id)
+            for n in facts.records.not_inspected
+            if n.inspection_id == inspection.id
+        }
+        missing = {
+            label: left
+            for label, tags in _missing(facts, inspection).items()
+            if (left := [t for t in tags if t not in marked])
+        }
         if not missing:
             continue
         what = "; ".join(f"{label} for {', '.join(tags)}" for label, tags in missing.items())
@@ -306,6 +392,7 @@ def missing_tests(facts: SiteFacts) -> Iterator[Result]:
             "incomplete",
             f"The {state}complete inspection of {inspection.date.isoformat()} has no {what}: "
             f"take them {action}.",
+            components=tuple(t for tags in missing.values() for t in tags),
         )
 
 
@@ -345,6 +432,53 @@ def _missing(facts: SiteFacts, inspection: Inspection) -> dict[str, list[str]]:
 
 
 _tag = attrgetter("tag")
+
+
+def ungraded_components(facts: SiteFacts) -> Iterator[Result]:
+    """A complete inspection with components neither graded nor marked not inspected.
+
+    Judged as `missing_tests` judges: the latest counted complete inspection and any
+    unfinished draft of one. A complete inspection looks at every component.
+    """
+    for inspection, draft in _judged_complete(facts):
+        seen = {f.component_id for f in facts.records.findings if f.inspection_id == inspection.id}
+        seen |= {
+            n.component_id for n in facts.records.not_inspected if n.inspection_id == inspection.id
+        }
+        left = [
+            c.tag
+            for c in sorted(facts.records.components, key=_tag)
+            if c.id not in seen and in_service(c, inspection.date)
+        ]
+        if not left:
+            continue
+        state, action = ("draft ", "before signing") if draft else ("", "at a return visit")
+        yield facts.result(
+            Severity.INCOMPLETE,
+            "ungraded",
+            f"The {state}complete inspection of {inspection.date.isoformat()} neither graded "
+            f"nor marked not inspected {len(left)} component(s): {', '.join(left)}; "
+            f"inspect them {action}.",
+            components=tuple(left),
+        )
+
+
+def not_inspected(facts: SiteFacts) -> Iterator[Result]:
+    """Components the latest visit of each kind could not inspect: a return visit is owed.
+
+    Only the site's latest visit that looked at the component counts: once a later
+    visit grades it or reads it, the gap is closed.
+    """
+    for mark, day in open_not_inspected(facts.records, facts.today):
+        component = facts.components[mark.component_id]
+        yield facts.result(
+            Severity.INCOMPLETE,
+            "not-inspected",
+            f"{component.tag} was not inspected on {day.isoformat()} ({mark.why}): "
+            "inspect it at a return visit.",
+            component_id=component.id,
+            component_tag=component.tag,
+        )
 
 
 def open_defects(facts: SiteFacts) -> Iterator[Result]:
@@ -468,10 +602,13 @@ def drifting_electrodes(facts: SiteFacts) -> Iterator[Result]:
 RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     reading_limits,
     electrode_rises,
+    series_rises,
     lapsed_calibration,
     doubtful_readings,
     strike_counters,
     missing_tests,
+    ungraded_components,
+    not_inspected,
     open_defects,
     schedule_items,
     drifting_electrodes,
@@ -482,6 +619,7 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
 SERIES_RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     reading_limits,
     electrode_rises,
+    series_rises,
     lapsed_calibration,
     doubtful_readings,
     strike_counters,

@@ -2,25 +2,32 @@
 
 from __future__ import annotations
 
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, replace
-from datetime import date, datetime, timedelta
+from datetime import UTC, date, datetime, timedelta
+from zoneinfo import ZoneInfo
 
 from inspectkit.engine.schedule import schedule_site
 from inspectkit.model import SiteRecords
-from inspectkit.plan.days import DaySplit, split_cycle, split_days
-from inspectkit.plan.geo import Point, PointError, distance_matrix, format_point, parse_point
+from inspectkit.plan.access import Access, AccessError, parse_access
+from inspectkit.plan.booking import HORIZON_DAYS, RoutedSites, book_dates
+from inspectkit.plan.calendar import WorkCalendar
+from inspectkit.plan.days import (
+    DaySplit,
+    Roads,
+)
+from inspectkit.plan.geo import Point, PointError, format_point, parse_point
 from inspectkit.plan.round import (
     Candidate,
     by_priority,
     defects_to_recheck,
-    priority_key,
+    held_back,
     reasons_for,
+    return_visits,
     visit_kinds,
 )
-from inspectkit.plan.route import plan_route
 from inspectkit.plan.settings import PlanSettings
-from inspectkit.plan.timing import component_counts, onsite_minutes, travel_minutes
+from inspectkit.plan.timing import component_counts, onsite_minutes
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records, site_ids
@@ -48,16 +55,22 @@ class Visit:
     Attributes:
         order: its place in the day, from 1.
         candidate: the site and what is done there.
-        km, drive_minutes: from the previous stop or the depot.
-        arrive, leave: clock times on the day.
+        km, drive_minutes: the road from the previous stop or the depot, and its time.
+        known_road: `km` comes from the table of known roads, not the estimate.
+        arrive: when the crew gets there.
+        start, leave: the visit itself, in the plan's time zone.
+        fits: the visit lies inside the site's access window.
     """
 
     order: int
     candidate: Candidate
     km: float
     drive_minutes: float
+    known_road: bool
     arrive: datetime
+    start: datetime
     leave: datetime
+    fits: bool = True
 
 
 @dataclass(frozen=True)
@@ -70,6 +83,10 @@ class PlannedDay:
         home_km, home_minutes: the drive back to the depot.
         back: clock time back at the depot.
         too_long: one site whose round trip alone is longer than a working day.
+        break_start, break_end: the day's break, if it has one.
+        outside_window: a visit cannot fit its site's access window.
+        moved: a visit was moved onto or off this day by hand.
+        home_known: the road home comes from the table of known roads.
     """
 
     day: date
@@ -78,6 +95,11 @@ class PlannedDay:
     home_minutes: float
     back: datetime
     too_long: bool
+    break_start: datetime | None = None
+    break_end: datetime | None = None
+    outside_window: bool = False
+    moved: bool = False
+    home_known: bool = False
 
     @property
     def km(self) -> float:
@@ -96,6 +118,8 @@ class RoundPlan:
         no_position: candidates without coordinates, to be placed by hand.
         dropped: candidates the office took out.
         skipped: sites that could not be judged, with the reason.
+        unbookable: candidates with no day they can be visited on, with the reason.
+        notes: things the office should know about the plan (unknown roads, moves refused).
     """
 
     window: Window
@@ -105,6 +129,8 @@ class RoundPlan:
     no_position: tuple[Candidate, ...] = ()
     dropped: tuple[Candidate, ...] = ()
     skipped: tuple[tuple[str, str], ...] = ()
+    unbookable: tuple[tuple[Candidate, str], ...] = ()
+    notes: tuple[str, ...] = ()
 
     @property
     def visits(self) -> list[tuple[PlannedDay, Visit]]:
@@ -133,22 +159,52 @@ def make_candidates(
     candidates = []
     for records, profile in sites:
         schedule = schedule_site(records, profile, window.first)
-        defects = defects_to_recheck(records, window.first, window.last)
-        reasons = reasons_for(schedule, defects, window.first, window.last)
+        defects, waiting = held_back(
+            schedule, defects_to_recheck(records, window.first, window.last), window.last
+        )
+        returns = return_visits(records, window.first)
+        reasons = reasons_for(schedule, defects, window.first, window.last, returns)
         if not reasons:
             continue
         kinds = visit_kinds(schedule, window.last)
         counts = component_counts(records.components, window.first)
+        minutes = onsite_minutes(counts, kinds, settings, len(defects))
+        if returns and not kinds:
+            minutes += settings.return_minutes
         candidates.append(
             Candidate(
                 site=records.site,
                 kinds=kinds,
                 reasons=reasons,
                 rechecks=tuple(f.id for f in defects),
-                onsite_minutes=onsite_minutes(counts, kinds, settings, len(defects)),
+                onsite_minutes=minutes,
+                earliest=max((f.due_by for f in defects if f.due_by), default=None),
+                waiting=tuple(waiting),
             )
         )
     return by_priority(candidates)
+
+
+def _access_of(c: Candidate, calendar: WorkCalendar) -> Access | str:
+    """The site's access rule, or why it cannot be booked on any day."""
+    try:
+        access = parse_access(c.site.access)
+    except AccessError as exc:
+        return f"{exc}; fix the site's access"
+    unknown = calendar.unknown_periods(access)
+    if unknown:
+        return (
+            f"access {access.text!r} names {', '.join(unknown)}, which is not in "
+            "[periods] of plan.toml; add it"
+        )
+    office = calendar.settings.weekday_numbers
+    if access.weekdays is not None and not access.weekdays & office:
+        return (
+            f"access {access.text!r} allows none of the working days "
+            f"({', '.join(calendar.settings.working_days)}); add its days to working_days "
+            "in plan.toml or book it by hand"
+        )
+    return access
 
 
 def plan_round(
@@ -159,82 +215,130 @@ def plan_round(
     *,
     dropped: Iterable[str] = (),
     pinned: Iterable[str] = (),
+    moved: Mapping[str, date] | None = None,
 ) -> RoundPlan:
     """Route the candidates from the depot and cut the route into dated working days.
 
-    The route is one closed tour (shortest found), cut into days that each start and
-    end at the depot; a site too long for any day is given one alone and flagged.
-    Each day is a loop of its own, so the days can be put in any order at no cost in
-    driving: they are dated most urgent first, by the most urgent visit each holds.
+    The route is one closed tour (shortest found by road distance), cut into days
+    that each start and end at the depot, fit the working day and the sites' access
+    windows, and hold the break; a site too long for any day is given one alone and
+    flagged. Each day is a loop of its own, so the days can be put in any order at no
+    cost in driving: they are dated most urgent first, each on the first date its
+    sites can all be visited that is not a holiday or closed day, and not before a
+    remedy it re-checks is due.
 
     Args:
         candidates: the sites owing a visit.
-        window: the round's days; the first working day on or after `window.first`
-            is the first day of the round.
+        window: the round's days; no day is booked before `window.first`.
         depot: where each day starts and ends.
-        settings: speeds, day length, working weekdays, day start.
+        settings: speeds, roads, day length, break, calendar, day start.
         dropped: site ids the office took out of the round.
         pinned: site ids the office wants first, whatever their priority.
+        moved: site ids moved by hand to a date, after the rest is planned.
     """
+    calendar = WorkCalendar(settings)
     dropped_ids, pinned_ids = set(dropped), set(pinned)
-    kept, out, no_position = [], [], []
+    kept: list[tuple[Candidate, Access]] = []
+    out, no_position, unbookable = [], [], []
+    names: dict[str, str] = {}
     for c in candidates:
         c = replace(c, pinned=c.site.id in pinned_ids)
+        names[c.site.id] = c.site.name
+        access = _access_of(c, calendar)
         if c.site.id in dropped_ids:
             out.append(c)
         elif c.point is None:
             no_position.append(c)
+        elif isinstance(access, str):
+            unbookable.append((c, access))
         else:
-            kept.append(c)
-    dist = distance_matrix([depot] + [c.point for c in kept])  # type: ignore[misc]
-    day_minutes = settings.hours_per_day * 60
-
-    def drive(km: float) -> float:
-        return travel_minutes(km, settings)
-
-    def onsite(node: int) -> float:
-        return kept[node - 1].onsite_minutes
-
-    # A site too long for a day with nothing else gets a day of its own; routing it
-    # with the others would only cut the days either side of it short.
-    alone = [n for n in range(1, len(dist)) if 2 * drive(dist[0][n]) + onsite(n) > day_minutes]
-    routed = [0] + [n for n in range(1, len(dist)) if n not in set(alone)]
-    tour = plan_route([[dist[i][j] for j in routed] for i in routed])
-    splits = split_cycle([routed[i] for i in tour[1:]], onsite, dist, day_minutes, drive)
-    splits += [d for n in alone for d in split_days([n], onsite, dist, day_minutes, drive)]
-    splits.sort(key=lambda s: min(priority_key(kept[leg.node - 1]) for leg in s.legs))
-    dates = working_days(window.first, len(splits), settings)
+            kept.append((c, access))
+    routed = RoutedSites(
+        [c for c, _ in kept], [a for _, a in kept], window.first, window.days, depot, calendar
+    )
+    splits = routed.cut()
+    dates = book_dates(
+        splits,
+        window.first,
+        lambda s: max(routed.sites[g.node - 1].earliest or window.first for g in s.legs),
+        lambda s: [routed.accesses[g.node - 1] for g in s.legs],
+        calendar,
+    )
+    booked: dict[date, DaySplit] = {}
+    for split, day in zip(splits, dates, strict=True):
+        if day is None:
+            unbookable += [(routed.sites[g.node - 1], _no_day_why(window)) for g in split.legs]
+        else:
+            booked[day] = split
+    touched: set[date] = set()
+    for site_id, target in (moved or {}).items():
+        booked, touched = routed.move(booked, site_id, target, touched, names.get(site_id, ""))
     days = tuple(
-        _dated(split, day, kept, settings) for split, day in zip(splits, dates, strict=True)
+        _dated(booked[d], d, routed.sites, routed.roads, settings, d in touched)
+        for d in sorted(booked)
     )
     return RoundPlan(
-        window, depot, settings, days, tuple(by_priority(no_position)), tuple(by_priority(out))
+        window,
+        depot,
+        settings,
+        days,
+        tuple(by_priority(no_position)),
+        tuple(by_priority(out)),
+        unbookable=tuple(unbookable),
+        notes=tuple(routed.notes),
     )
 
 
-def working_days(first: date, count: int, settings: PlanSettings) -> list[date]:
-    """The first `count` working days from `first` on."""
-    days: list[date] = []
-    day = first
-    while len(days) < count:
-        if day.weekday() in settings.weekday_numbers:
-            days.append(day)
-        day += timedelta(days=1)
-    return days
+def _no_day_why(window: Window) -> str:
+    return (
+        f"no day from {window.first.isoformat()} within {HORIZON_DAYS} days on which the "
+        "office works and the site can be visited"
+    )
 
 
-def _dated(split: DaySplit, day: date, kept: list[Candidate], settings: PlanSettings) -> PlannedDay:
-    start = datetime.combine(day, settings.day_start)
+def _dated(
+    split: DaySplit,
+    day: date,
+    kept: list[Candidate],
+    roads: Roads,
+    settings: PlanSettings,
+    moved: bool,
+) -> PlannedDay:
+    start = datetime.combine(day, settings.day_start, tzinfo=ZoneInfo(settings.zone))
 
     def clock(minutes: float) -> datetime:
-        return start + timedelta(minutes=round(minutes))
+        # Whole minutes, counted on the UTC timeline so a clock change is kept.
+        return (start.astimezone(UTC) + timedelta(minutes=round(minutes))).astimezone(start.tzinfo)
 
     visits = tuple(
-        Visit(n, kept[leg.node - 1], leg.km, leg.drive, clock(leg.arrive), clock(leg.leave))
-        for n, leg in enumerate(split.legs, start=1)
+        Visit(
+            n,
+            kept[leg.node - 1],
+            leg.km,
+            leg.drive,
+            (prev, leg.node) in roads.known,
+            clock(leg.arrive),
+            clock(leg.start),
+            clock(leg.leave),
+            leg.fits,
+        )
+        for n, (prev, leg) in enumerate(
+            zip([0, *(g.node for g in split.legs)], split.legs, strict=False), start=1
+        )
     )
+    brk = split.break_at
     return PlannedDay(
-        day, visits, split.home_km, split.home_drive, clock(split.minutes), split.too_long
+        day,
+        visits,
+        split.home_km,
+        split.home_drive,
+        clock(split.minutes),
+        split.too_long,
+        None if brk is None else clock(brk),
+        None if brk is None else clock(brk + split.break_minutes),
+        split.outside_window,
+        moved,
+        (split.legs[-1].node, 0) in roads.known,
     )
 
 
@@ -291,6 +395,7 @@ def make_plan(
     *,
     dropped: Iterable[str] = (),
     pinned: Iterable[str] = (),
+    moved: Mapping[str, date] | None = None,
 ) -> RoundPlan:
     """Plan a round from the store's records.
 
@@ -307,5 +412,7 @@ def make_plan(
             "--save-depot LAT,LON"
         )
     candidates, skipped = load_candidates(store, window, settings)
-    plan = plan_round(candidates, window, depot, settings, dropped=dropped, pinned=pinned)
+    plan = plan_round(
+        candidates, window, depot, settings, dropped=dropped, pinned=pinned, moved=moved
+    )
     return replace(plan, skipped=tuple(skipped))

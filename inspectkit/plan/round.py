@@ -2,17 +2,22 @@
 
 A site owes a visit when its visual or complete inspection falls due on or before
 the window's last day (overdue ones included), when a recorded strike or an
-alteration calls for one, or when an open defect's remedial action was due by then
-and has to be re-checked. Each site gets one visit doing every inspection it owes.
+alteration calls for one, when an open defect's remedial action was due by then and
+has to be re-checked, or when its last visit left components not inspected. Each
+site gets one visit doing every inspection it owes.
+
+A re-check is no use before the remedy is due, so it is booked on or after that day;
+when the site's next inspection falls due before then, that visit comes first and
+the re-check waits for a later round (the plan says so).
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterable
 from dataclasses import dataclass
-from datetime import date
+from datetime import date, timedelta
 
-from inspectkit.engine.history import as_of, counts_as_done
+from inspectkit.engine.history import as_of, counts_as_done, open_not_inspected
 from inspectkit.engine.schedule import DueKind, SiteSchedule
 from inspectkit.model import Finding, Grade, InspectionKind, Site, SiteRecords
 from inspectkit.plan.geo import Point
@@ -26,6 +31,11 @@ _KIND_FOR_DUE = {
 }
 #: What a reason is called when it is a defect to re-check rather than an inspection.
 RECHECK = "recheck"
+#: What a reason is called when it is a return to components not inspected last time.
+RETURN = "return"
+#: Days after a visit that left components not inspected by which the return is
+#: due (our default).
+RETURN_WITHIN_DAYS = 90
 
 
 @dataclass(frozen=True)
@@ -56,6 +66,8 @@ class Candidate:
         rechecks: ids of the open defects looked at.
         onsite_minutes: set-up plus the inspections plus the re-checks.
         pinned: the office put it first, whatever its priority.
+        earliest: the first day the visit may be booked on (a remedy's due date).
+        waiting: why re-checks were held back for a later round.
     """
 
     site: Site
@@ -64,6 +76,8 @@ class Candidate:
     rechecks: tuple[str, ...]
     onsite_minutes: float
     pinned: bool = False
+    earliest: date | None = None
+    waiting: tuple[str, ...] = ()
 
     @property
     def due(self) -> date:
@@ -82,10 +96,12 @@ class Candidate:
 
     @property
     def kind_label(self) -> str:
-        """E.g. "complete", "visual + post-strike", "re-check"."""
+        """E.g. "complete", "visual + post-strike", "re-check + return visit"."""
         words = [k.value.replace("_", "-") for k in self.kinds]
         if self.rechecks:
             words.append("re-check")
+        if any(r.what == RETURN for r in self.reasons):
+            words.append("return visit")
         return " + ".join(words)
 
     @property
@@ -125,10 +141,84 @@ def defects_to_recheck(records: SiteRecords, first_day: date, last_day: date) ->
     ]
 
 
+def held_back(
+    schedule: SiteSchedule, defects: Iterable[Finding], last_day: date
+) -> tuple[list[Finding], list[str]]:
+    """The defects to re-check on this visit, and why the others wait.
+
+    A re-check goes on or after its remedy's due date; when the site's next
+    inspection falls due before that day, that inspection comes first and the
+    re-check is left for the visit after it.
+    """
+    due = [i.due for i in schedule.due_items if i.due <= last_day]
+    deadline = min(due) if due else None
+    kept, waiting = [], []
+    for f in defects:
+        assert f.due_by is not None
+        if deadline is not None and f.due_by > deadline:
+            waiting.append(
+                f"re-check of {_action(f)!r} waits: its remedy is due "
+                f"{f.due_by.isoformat()}, after the inspection due {deadline.isoformat()}"
+            )
+        else:
+            kept.append(f)
+    return kept, waiting
+
+
+def _action(f: Finding) -> str:
+    return f.remedial_action.strip() or f.text.strip()
+
+
+def return_visits(records: SiteRecords, first_day: date) -> list[Reason]:
+    """The returns owed to what visits could not inspect.
+
+    One for each component marked not inspected that no visit has graded or measured
+    since, owed now. A latest visit with no such marks but a note of what it could
+    not inspect owes one return for the note, due `RETURN_WITHIN_DAYS` after it (our
+    default); a later visit looked at the site again.
+    """
+    known = as_of(records, first_day)
+    tags = {c.id: c.tag for c in records.components}
+    marked = [
+        Reason(
+            RETURN,
+            first_day,
+            f"return for {tags[mark.component_id]}, not inspected on {day.isoformat()} "
+            f"({mark.why})",
+            0,
+        )
+        for mark, day in open_not_inspected(known, first_day)
+    ]
+    done = [i for i in known.inspections if counts_as_done(i)]
+    if marked or not done:
+        return marked
+    latest = max(done, key=lambda i: (i.date, i.created_at))
+    what = latest.not_inspected.strip()
+    if not what or any(m.inspection_id == latest.id for m in known.not_inspected):
+        return []
+    due = latest.date + timedelta(days=RETURN_WITHIN_DAYS)
+    return [
+        Reason(
+            RETURN,
+            due,
+            f"return: not inspected on {latest.date.isoformat()}: {what}",
+            max(0, (first_day - due).days),
+        )
+    ]
+
+
 def reasons_for(
-    schedule: SiteSchedule, defects: Iterable[Finding], first_day: date, last_day: date
+    schedule: SiteSchedule,
+    defects: Iterable[Finding],
+    first_day: date,
+    last_day: date,
+    returns: Iterable[Reason] = (),
 ) -> tuple[Reason, ...]:
-    """Every item due by `last_day` and every defect to re-check, most urgent first."""
+    """Every item due by `last_day`, every defect to re-check and every return, most urgent first.
+
+    A return is owed as soon as the visit that missed the components is over, so
+    it is in every round until it is made.
+    """
     reasons = [
         Reason(i.kind.value, i.due, i.reason, max(0, (first_day - i.due).days))
         for i in schedule.due_items
@@ -136,15 +226,15 @@ def reasons_for(
     ]
     for f in defects:
         assert f.due_by is not None
-        action = f.remedial_action.strip() or f.text.strip()
         reasons.append(
             Reason(
                 RECHECK,
                 f.due_by,
-                f"re-check remedial action due {f.due_by.isoformat()}: {action}",
+                f"re-check on or after {f.due_by.isoformat()} (remedy due): {_action(f)}",
                 max(0, (first_day - f.due_by).days),
             )
         )
+    reasons += returns
     return tuple(sorted(reasons, key=lambda r: (-r.overdue_days, r.due, r.what)))
 
 

@@ -18,6 +18,7 @@ from inspectkit.model import (
     Inspection,
     InspectionKind,
     InspectionState,
+    NotInspected,
     Photo,
     Reading,
     Record,
@@ -62,10 +63,12 @@ def create_amendment(store: Store, inspection_id: str, today: date) -> Inspectio
         amends_id=original.id,
         report_revision=max(original.report_revision, 1) + 1,
         not_inspected=original.not_inspected,
+        joints_reconnected=original.joints_reconnected,
+        reconnection_note=original.reconnection_note,
         notes=original.notes,
     )
     copies: list[Record] = [amendment]
-    for model in (Reading, Finding, Photo):
+    for model in (Reading, Finding, Photo, NotInspected):
         for record in inspection_records(store, model, original.id):
             copies.append(record.model_copy(update={"id": new_id(), "inspection_id": amendment.id}))
     store.save_all(copies)

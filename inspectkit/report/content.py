@@ -51,6 +51,8 @@ class ReadingRow:
     limit: str
     result: str
     note: str = ""
+    #: Serial of the instrument it was taken with ("" when none is recorded).
+    instrument: str = ""
     soil: str = ""
 
 
@@ -150,7 +152,8 @@ class ReportContent:
         verdict_word: "PASS", "ACTION NEEDED", … shown large on the summary page.
         headline: short lines under the verdict (counts of fails, watches, findings).
         site, structure, inspection, inspector: labelled detail lines.
-        instruments: rows of (description, serial, calibration due, state in words).
+        instruments: rows of (description, serial, calibration due, state in words,
+            which readings it took).
         readings: every reading with its limit and result.
         findings: the visual findings to act on (defects, then items needing attention).
         sound: the components graded sound, as a compact table.
@@ -160,7 +163,8 @@ class ReportContent:
         notices: engine results not tied to one reading's limit.
         trends: electrode trend charts.
         schedule: next inspections in words.
-        not_inspected: what could not be inspected and why.
+        not_inspected: what could not be inspected and why, in the inspector's words.
+        not_inspected_parts: each component marked not inspected, `TAG: why`.
         changes_since_last: changes to the structure since the last visit that need
             more protection; empty when none were seen.
         amendment: lines saying what this amendment changed against the original.
@@ -180,7 +184,7 @@ class ReportContent:
     site: tuple[Field, ...]
     structure: tuple[Field, ...]
     inspection: tuple[Field, ...]
-    instruments: tuple[tuple[str, str, str, str], ...]
+    instruments: tuple[tuple[str, str, str, str, str], ...]
     readings: tuple[ReadingRow, ...]
     findings: tuple[FindingRow, ...]
     notices: tuple[Notice, ...]
@@ -194,6 +198,7 @@ class ReportContent:
     amends: str = ""
     amendment: tuple[str, ...] = ()
     general_photos: tuple[PhotoItem, ...] = ()
+    not_inspected_parts: tuple[str, ...] = ()
     sound: tuple[SoundRow, ...] = ()
     actions: tuple[Action, ...] = ()
     visits: tuple[str, ...] = ()
@@ -215,6 +220,12 @@ class ReportContent:
             ),
             general_photos=tuple(p for p in self.general_photos if p.photo_id in keep),
         )
+
+
+def not_inspected_lines(content: ReportContent) -> tuple[str, ...]:
+    """The inspector's words on what was not inspected, then each component marked so."""
+    lines = tuple(filter(None, (content.not_inspected, *content.not_inspected_parts)))
+    return lines or ("Every part listed was inspected.",)
 
 
 @dataclass(frozen=True)
@@ -263,6 +274,7 @@ def text_sections(content: ReportContent) -> list[Section]:
             "Readings",
             tuple(
                 f"{r.tag:<8} {r.quantity}: {r.value} (limit {r.limit}) → {r.result}"
+                + (f" [{r.instrument}]" if r.instrument else "")
                 for r in content.readings
             )
             or ("No readings.",),
@@ -294,7 +306,7 @@ def text_sections(content: ReportContent) -> list[Section]:
             if content.changes_since_last
             else []
         ),
-        Section("Not inspected", (content.not_inspected or "Every part listed was inspected.",)),
+        Section("Not inspected", not_inspected_lines(content)),
         Section("Safety", (*content.cautions, content.deferral)),
         Section("What the result words mean", tuple(f"{w}: {m}" for w, m in content.legend)),
     ]

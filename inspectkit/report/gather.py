@@ -97,7 +97,9 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
 
     Later visits are left out (as of the visit's day, as the engine judges it);
     inspections replaced by an amendment are dropped with their readings,
-    findings and photos; and this inspection counts as finished.
+    findings and photos; so are other drafts not finished, and other unsigned
+    visits of the same day (a visit started twice), so that the report speaks of
+    this inspection alone; and this inspection counts as finished.
     """
     amenders: dict[str, list[str]] = {}
     for other in records.inspections:
@@ -115,6 +117,12 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
     replaced = later | {
         i.amends_id for i in records.inspections if i.amends_id and i.id not in later
     }
+    replaced |= {
+        i.id
+        for i in records.inspections
+        if i.state is not InspectionState.SIGNED
+        and (not i.finished or i.date == inspection.date)
+    }
     replaced.discard(inspection.id)
     keep = [
         i.model_copy(update={"finished": True}) if i.id == inspection.id else i
@@ -128,6 +136,7 @@ def history_for(records: SiteRecords, inspection: Inspection) -> SiteRecords:
             "readings": [r for r in records.readings if r.inspection_id in kept],
             "findings": [f for f in records.findings if f.inspection_id in kept],
             "photos": [p for p in records.photos if p.inspection_id in kept],
+            "not_inspected": [n for n in records.not_inspected if n.inspection_id in kept],
         }
     )
     return as_of(trimmed, inspection.date)
@@ -240,12 +249,15 @@ def _structure(records: SiteRecords, profile: Profile, on: date) -> tuple[Field,
 
 def _instruments(
     inspection: Inspection, records: SiteRecords
-) -> tuple[tuple[str, str, str, str], ...]:
+) -> tuple[tuple[str, str, str, str, str], ...]:
+    """Each instrument of the visit, its calibration, and which readings it took."""
     used: dict[str, bool] = {}
+    took: dict[str, Counter[str]] = {}
     for reading in records.readings:
         if reading.inspection_id == inspection.id and reading.instrument_id:
             lapsed = calibration_lapsed(records, reading)
             used[reading.instrument_id] = used.get(reading.instrument_id, False) or lapsed
+            took.setdefault(reading.instrument_id, Counter())[reading.quantity.label] += 1
     rows = []
     for instrument_id, lapsed in used.items():
         instrument = records.instruments.get(instrument_id)
@@ -260,9 +272,31 @@ def _instruments(
                 instrument.serial,
                 due,
                 "OUT OF CALIBRATION" if lapsed else "in calibration",
+                ", ".join(f"{n} {label}" for label, n in sorted(took[instrument_id].items())),
             )
         )
     return tuple(sorted(rows))
+
+
+def _reconnection(inspection: Inspection) -> str:
+    """What the inspector confirmed of the test joints opened for isolated readings."""
+    if inspection.joints_reconnected is None:
+        return ""
+    if inspection.joints_reconnected:
+        return "every test joint opened for an isolated reading was reconnected and re-tested"
+    return f"NOT confirmed reconnected and re-tested: {inspection.reconnection_note}"
+
+
+def _not_inspected_parts(
+    inspection: Inspection, records: SiteRecords, components: dict[str, Component]
+) -> tuple[str, ...]:
+    """`DC-02 (down conductor): covered: behind the cladding`, by tag."""
+    lines = []
+    for mark in records.not_inspected:
+        component = components.get(mark.component_id)
+        if mark.inspection_id == inspection.id and component is not None:
+            lines.append(f"{component.tag} ({component.kind.label}): {mark.why}")
+    return tuple(sorted(lines))
 
 
 def revision_of(inspection: Inspection) -> int:
@@ -346,6 +380,7 @@ def build_report(
         trends=tuple(c for t in check.trends if (c := _trend_chart(t, records)) is not None),
         schedule=_schedule(check.schedule),
         not_inspected=inspection.not_inspected,
+        not_inspected_parts=_not_inspected_parts(inspection, records, components),
         changes_since_last=inspection.changes_since_last,
         signer_name=inspector.name if inspector else "",
         signer_qualification=inspector.qualification if inspector else "",
@@ -399,6 +434,7 @@ def _inspection_fields(
         Field("Weather", inspection.weather),
         Field("Soil", soil_words(inspection, visit_readings)),
         *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
+        *([Field("Test joints", joints)] if (joints := _reconnection(inspection)) else []),
         Field("Report", revision_label),
         Field("Inspection id", inspection.id),
     )

@@ -62,6 +62,12 @@ def _reading_result(
     return RESULT_WORDS[Severity.OK]
 
 
+def _serial(records: SiteRecords, reading: Reading) -> str:
+    """The serial of the instrument a reading was taken with, or "" when none is recorded."""
+    instrument = records.instruments.get(reading.instrument_id or "")
+    return instrument.serial if instrument else ""
+
+
 def reading_rows(
     inspection: Inspection,
     records: SiteRecords,
@@ -108,6 +114,7 @@ def reading_rows(
                     if per_reading and reading.quantity in EARTH_QUANTITIES
                     else ""
                 ),
+                instrument=_serial(records, reading),
             )
         )
     return tuple(rows)

@@ -24,7 +24,7 @@ from reportlab.platypus import (
 
 from inspectkit.cautions import TITLE as CAUTIONS_TITLE
 from inspectkit.report.charts import trend_drawing
-from inspectkit.report.content import CHANGES_TITLE, ReportContent
+from inspectkit.report.content import CHANGES_TITLE, ReportContent, not_inspected_lines
 from inspectkit.report.layout import (
     Kit,
     SignatureBox,
@@ -133,7 +133,7 @@ def summary(content: ReportContent, kit: Kit) -> list[Flowable]:
     if content.changes_since_last:
         out += [kit.para(CHANGES_TITLE, "h2"), kit.para(content.changes_since_last)]
     out.append(kit.para("Not inspected", "h2"))
-    out.append(kit.para(content.not_inspected or "Every part listed was inspected."))
+    out += [kit.para(line) for line in not_inspected_lines(content)]
     return out
 
 
@@ -160,9 +160,9 @@ def site_details(content: ReportContent, kit: Kit) -> list[Flowable]:
     if content.instruments:
         out.append(
             grid(
-                ["Instrument", "Serial", "Calibration due", "On the day"],
+                ["Instrument", "Serial", "Calibration due", "On the day", "Readings taken"],
                 [list(row) for row in content.instruments],
-                [kit.width * w for w in (0.4, 0.2, 0.18, 0.22)],
+                [kit.width * w for w in (0.28, 0.14, 0.14, 0.16, 0.28)],
                 kit.styles,
                 kit.branding,
             )
@@ -187,22 +187,23 @@ def readings(content: ReportContent, kit: Kit) -> list[Flowable]:
     out.append(Spacer(1, 2 * mm))
     out.append(
         grid(
-            ["Tag", "Component", "Quantity, method", "Value", "Limit", "Result"],
+            ["Tag", "Component", "Quantity, method", "Instrument", "Value", "Limit", "Result"],
             [
                 [
                     r.tag,
                     r.component,
                     f"{r.quantity}, {r.method}" + (f"; soil {r.soil}" if r.soil else ""),
+                    r.instrument or "—",
                     r.value,
                     r.limit,
                     r.result + (f" ({r.note})" if r.note else ""),
                 ]
                 for r in content.readings
             ],
-            [w * kit.width for w in (0.1, 0.17, 0.3, 0.12, 0.12, 0.19)],
+            [w * kit.width for w in (0.1, 0.14, 0.23, 0.13, 0.1, 0.1, 0.2)],
             kit.styles,
             kit.branding,
-            5,
+            6,
         )
     )
     return out

@@ -18,6 +18,7 @@ from inspectkit.model import (
     Finding,
     Inspection,
     InspectionState,
+    NotInspected,
     Photo,
     Reading,
     Record,
@@ -39,6 +40,8 @@ _STAMP_FIELDS = frozenset({"updated_at", "updated_by"})
 _SIGNED_COMPONENT_FIELDS = frozenset({"tag", "kind"})
 #: Fields a later inspection may still set on a finding from a signed inspection.
 _RESOLUTION_FIELDS = _STAMP_FIELDS | {"resolved_by"}
+#: Records made in an inspection, frozen with it once it is signed.
+_PARTS = (Reading, Finding, Photo, NotInspected)
 
 
 class StoreError(Exception):
@@ -413,7 +416,7 @@ class Store:
         """
         stored_of = {r.id: existing.get(r.table, {}).get(r.id) for r in records}
         signed = self._signed_inspections(
-            {r.inspection_id for r in records if isinstance(r, Reading | Finding | Photo)}
+            {r.inspection_id for r in records if isinstance(r, _PARTS)}
             | {s["inspection_id"] for s in stored_of.values() if s and s.get("inspection_id")}
         )
         for record in records:
@@ -431,7 +434,7 @@ class Store:
                     f"inspection {record.id} of {stored['date']} is signed and cannot be "
                     "changed; create an amendment inspection that references it"
                 )
-            if not isinstance(record, Reading | Finding | Photo):
+            if not isinstance(record, _PARTS):
                 continue
             if record.inspection_id not in signed and (
                 stored is None or stored.get("inspection_id") not in signed

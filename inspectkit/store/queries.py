@@ -18,6 +18,7 @@ from inspectkit.model import (
     Finding,
     Inspection,
     Instrument,
+    NotInspected,
     Photo,
     Reading,
     Record,
@@ -105,6 +106,7 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         findings=store.select(Finding, in_site, [site_id]),
         photos=store.select(Photo, in_site, [site_id]),
         instruments=instruments,
+        not_inspected=store.select(NotInspected, in_site, [site_id]),
     )
 
 
@@ -126,6 +128,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
         "readings": _by_visit(store, Reading, "reading", site_of),
         "findings": _by_visit(store, Finding, "finding", site_of),
         "photos": _by_visit(store, Photo, "photo", site_of),
+        "not_inspected": _by_visit(store, NotInspected, "not_inspected", site_of),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
     for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
@@ -147,6 +150,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             findings=parts.get("findings", []),
             photos=parts.get("photos", []),
             instruments={key: instruments[key] for key in used if key in instruments},
+            not_inspected=parts.get("not_inspected", []),
         )
 
 

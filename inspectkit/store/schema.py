@@ -292,6 +292,43 @@ def _organisations(db: sqlite_utils.Database) -> None:
     # No foreign key: organisations stay on their laptop, inspectors travel in bundles.
     _add_columns(db, {"inspector": ("organisation_id TEXT",)})
 
+#: An instrument's kind, the joints' reconnection on finishing, components not inspected.
+_VISIT_RECORDS_COLUMNS = {
+    "instrument": ("kind TEXT",),
+    "inspection": (
+        "joints_reconnected INTEGER",
+        "reconnection_note TEXT NOT NULL DEFAULT ''",
+    ),
+}
+
+_VISIT_RECORDS_TABLES = (
+    f"""CREATE TABLE not_inspected (
+    id TEXT PRIMARY KEY,
+    inspection_id TEXT NOT NULL REFERENCES inspection(id),
+    component_id TEXT NOT NULL REFERENCES component(id),
+    reason TEXT NOT NULL,
+    text TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+)""",
+    "CREATE INDEX not_inspected_inspection ON not_inspected(inspection_id)",
+)
+
+
+def _visit_records(db: sqlite_utils.Database) -> None:
+    """Which kind each instrument is, whether the test joints were reconnected on
+    finishing, and the components a visit could not inspect, with why.
+
+    Existing instruments get no kind (they are not judged until one is given).
+    """
+    _add_columns(db, _VISIT_RECORDS_COLUMNS)
+    for statement in _VISIT_RECORDS_TABLES:  # not executescript: it would commit halfway
+        db.execute(statement)
+
+
+def _site_access(db: sqlite_utils.Database) -> None:
+    """When each site can be visited (its access rule), for planning rounds."""
+    _add_columns(db, {"site": ("access TEXT NOT NULL DEFAULT ''",)})
+
 
 #: Step N (1-based) brings a database from version N-1 to N.
 MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
@@ -303,5 +340,7 @@ MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _trust,
     _repeat_findings,
     _organisations,
+    _site_access,
+    _visit_records,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

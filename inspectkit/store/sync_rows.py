@@ -26,6 +26,7 @@ _SITE_WHERE = {
     "reading": _IN_SITE,
     "finding": _IN_SITE,
     "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
+    "not_inspected": _IN_SITE,
 }
 
 
@@ -126,19 +127,26 @@ def audit_versions(
         )
 
 
-#: Records an inspector may withdraw; a bundle carries their deletions.
-DELETABLE = ("reading", "finding", "photo")
-#: Whether a deleted record, by its last row in the audit log, was one of the site's.
+#: Records an inspector may withdraw; a bundle carries their deletions. A discarded
+#: draft inspection comes last: what was recorded in it goes before it.
+DELETABLE = ("reading", "finding", "photo", "not_inspected", "inspection")
+#: Whether a deleted record, by its last row in the audit log, was one of the site's:
+#: a discarded inspection of the site, or a part of one of its inspections (kept or
+#: discarded), or of one of its components.
 _DELETED_IN_SITE = (
-    "(json_extract(before, '$.inspection_id') IN "
+    "(json_extract(before, '$.site_id') = :site AND table_name = 'inspection' "
+    "OR json_extract(before, '$.inspection_id') IN "
     "(SELECT id FROM inspection WHERE site_id = :site) "
+    "OR json_extract(before, '$.inspection_id') IN "
+    "(SELECT row_id FROM audit WHERE table_name = 'inspection' AND action = 'delete' "
+    "AND json_extract(before, '$.site_id') = :site) "
     "OR json_extract(before, '$.component_id') IN "
     "(SELECT id FROM component WHERE site_id = :site))"
 )
 
 
 def site_deletions(store: Store, site_id: str, since: date | None = None) -> dict[str, list[str]]:
-    """Ids of the site's readings, findings and photos deleted here, and not made again."""
+    """Ids of the site's withdrawn records and discarded drafts deleted here, not made again."""
     found: dict[str, list[str]] = {}
     for table in DELETABLE:
         sql = (
@@ -169,3 +177,13 @@ def deleted_here(store: Store, table: str, ids: Sequence[str]) -> set[str]:
             )
         )
     return found
+
+
+def inspection_part_ids(store: Store, table: str, inspection_id: str) -> list[str]:
+    """The ids of one inspection's rows in `table` (readings, findings, photos…)."""
+    return [
+        row_id
+        for (row_id,) in store.db.execute(
+            f"SELECT id FROM [{table}] WHERE inspection_id = ?", [inspection_id]
+        )
+    ]

@@ -90,6 +90,7 @@ REFERENCES: dict[str, dict[str, str]] = {
         "resolved_by": "inspection",
     },
     "photo": {"inspection_id": "inspection", "component_id": "component"},
+    "not_inspected": {"inspection_id": "inspection", "component_id": "component"},
 }
 
 

@@ -13,19 +13,20 @@ import csv
 import io
 import re
 from dataclasses import dataclass, field
-from datetime import UTC, datetime, tzinfo
+from datetime import UTC, datetime, timedelta, tzinfo
 from pathlib import Path
 from typing import Any
 
 from dateutil import parser as dateparser
 from pydantic import ValidationError
 
-from inspectkit import units
+from inspectkit import intake, units
 from inspectkit.model import (
     METHODS_FOR,
     Component,
     Inspection,
     InspectionState,
+    Instrument,
     JointState,
     Method,
     Quantity,
@@ -179,6 +180,9 @@ def import_readings_csv(
                 "record them in an amendment inspection"
             ]  # fmt: skip
         )
+    closed = intake.visit_refusal(inspection)
+    if closed is not None:
+        raise CsvImportError([str(closed)])
     if options.quantity is None and "quantity" not in mapping.columns:
         raise CsvImportError(
             ["say what the readings measure: --quantity, or map a quantity column"]
@@ -187,7 +191,8 @@ def import_readings_csv(
     header, records = _read_table(Path(path), options)
     where = _locate(mapping, header)
     width = len(header) if header else None
-    reader = _RowReader(where, options, components, inspection, now or utcnow(), width)
+    admission = _Admission.of(store, inspection, options.instrument_id)
+    reader = _RowReader(where, options, components, inspection, now or utcnow(), width, admission)
     outcomes: list[RowOutcome] = []
     problems: list[str] = []
     for number, (line, cells) in enumerate(records, start=1):
@@ -195,6 +200,9 @@ def import_readings_csv(
             outcomes.append(reader.read(number, line, cells))
         except _RowError as exc:
             problems.append(f"row {number} (line {line}), column {exc.column!r}: {exc}")
+    problems += intake.clashes(
+        intake.Entry(f"row {o.row} (line {o.line}) {o.tag}", o.reading) for o in outcomes
+    )
     if problems:
         raise CsvImportError(_capped(problems))
     if not outcomes:
@@ -301,6 +309,8 @@ class _RowReader:
     now: datetime
     #: Columns in the header; a longer row is refused rather than read askew.
     width: int | None
+    #: The checks every reading passes (`inspectkit.intake`).
+    admission: _Admission
 
     def cell(self, cells: list[str], name: str) -> str | None:
         if name not in self.where:
@@ -360,7 +370,15 @@ class _RowReader:
             name = str(first["loc"][0]) if first["loc"] else "value"
             option = {"method": "--method", "quantity": "--quantity"}.get(name, name)
             raise _RowError(self.label(name, option), explain(exc).replace("\n", "; ")) from None
+        self._admit(reading, component)
         return RowOutcome(number, line, tag, reading, "added")
+
+    def _admit(self, reading: Reading, component: Component) -> None:
+        """The checks every reading passes, whichever way it comes (`inspectkit.intake`)."""
+        refused = self.admission.refusal(reading, component)
+        if refused is not None:
+            option = {"instrument_id": "--instrument", "quantity": "quantity"}.get(refused.field)
+            raise _RowError(self.label(refused.field, option or refused.field), str(refused))
 
     def _quantity(self, cells: list[str]) -> Quantity:
         text = self.cell(cells, "quantity")
@@ -407,6 +425,23 @@ class _RowReader:
                 self.label("taken_at", "taken_at"),
                 f"{text!r} is not a time a reading was taken; give a date of these years",
             ) from None
+
+
+@dataclass(frozen=True)
+class _Admission:
+    """What `intake.refusal` needs for every row of one import, read once."""
+
+    inspection: Inspection
+    instrument: Instrument | None
+    window: timedelta
+
+    @classmethod
+    def of(cls, store: Store, inspection: Inspection, instrument_id: str | None) -> _Admission:
+        instrument = store.get(Instrument, instrument_id) if instrument_id else None
+        return cls(inspection, instrument, intake.reading_window(store))
+
+    def refusal(self, reading: Reading, component: Component) -> intake.ReadingRefused | None:
+        return intake.refusal(reading, self.inspection, component, self.instrument, self.window)
 
 
 def _only_method(quantity: Quantity) -> Method | None:

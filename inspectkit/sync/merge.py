@@ -41,11 +41,19 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Literal
 
-from inspectkit.model import MODEL_FOR_TABLE, Record
+from inspectkit import intake
+from inspectkit.model import (
+    MODEL_FOR_TABLE,
+    Component,
+    Inspection,
+    InspectionState,
+    Instrument,
+    Record,
+)
 from inspectkit.store import FrozenRecordError, Store
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
-from inspectkit.store.sync_rows import DELETABLE, deleted_here
+from inspectkit.store.sync_rows import DELETABLE, deleted_here, inspection_part_ids
 from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits, site_label
 from inspectkit.sync.signers import check_signed_inspections, untrusted_signers
@@ -57,7 +65,7 @@ Side = Literal["ours", "theirs"]
 _Write = tuple[str, dict[str, Any], str]
 _CHUNK = 500
 #: Records made in an inspection, frozen with it once it is signed.
-_PARTS = frozenset({"reading", "finding", "photo"})
+_PARTS = frozenset({"reading", "finding", "photo", "not_inspected"})
 #: Fields that point at a record of the same table; parents are written first.
 _SELF_REFERENCES = {"component": "parent_id", "inspection": "amends_id"}
 
@@ -283,7 +291,63 @@ def _plan(store: Store, bundle: Bundle, prefer: Side | None) -> _Plan:
             if kept == "theirs":
                 plan.writes.append((table, theirs, "updated"))
     _plan_removals(store, bundle, plan)
+    _check_readings(store, plan)
     return plan
+
+
+def _check_readings(store: Store, plan: _Plan) -> None:
+    """Refuse a bundle bringing a reading the walkdown would refuse (`inspectkit.intake`).
+
+    Only the readings this import writes are judged; rows both sides hold already are
+    not judged again. A visit signed on either side is final as signed: the store
+    keeps ours (see `_apply`). A reading made after its visit was last changed
+    (finished) is a reading added to a finished visit.
+    """
+    ours: dict[tuple[str, str], Any] = {}  # each record read once, however many readings
+
+    def held(model: type[Any], record_id: str) -> Any:
+        if (model.table, record_id) not in ours:
+            ours[model.table, record_id] = store.get(model, record_id)
+        return ours[model.table, record_id]
+
+    def record(model: type[Any], record_id: str | None) -> Any:
+        if not record_id:
+            return None
+        return plan.records.get(model.table, {}).get(record_id) or held(model, record_id)
+
+    def signed(inspection_id: str) -> bool:
+        theirs = plan.records.get("inspection", {}).get(inspection_id)
+        copies = (theirs, held(Inspection, inspection_id))
+        return any(c is not None and c.state is InspectionState.SIGNED for c in copies)
+
+    written = [
+        plan.records[t][row["id"]]
+        for t, row, _ in plan.writes
+        if t == "reading" and not signed(row["inspection_id"])
+    ]
+    window = intake.reading_window(store)
+    problems = []
+    for reading in written:
+        inspection = record(Inspection, reading.inspection_id)
+        if inspection.finished and reading.created_at <= inspection.updated_at:
+            # Made before the visit was finished: judged as the open visit it was made in.
+            inspection = inspection.model_copy(update={"finished": False})
+        refused = intake.refusal(
+            reading,
+            inspection,
+            record(Component, reading.component_id),
+            record(Instrument, reading.instrument_id),
+            window,
+        )
+        if refused is not None:
+            problems.append(f"reading {reading.id}: {refused}")
+    problems += intake.clashes(intake.Entry(f"reading {r.id}", r) for r in written)
+    if problems:
+        more = f" (and {len(problems) - 3} more)" if len(problems) > 3 else ""
+        raise BundleError(
+            "; ".join(problems[:3]) + more + "; nothing was imported: fix them where the "
+            "bundle was made (withdraw or correct the readings), then export again"
+        )
 
 
 def _withdrawn_versions(
@@ -301,14 +365,36 @@ def _plan_removals(store: Store, bundle: Bundle, plan: _Plan) -> None:
     """Ours to delete where the bundle's database withdrew the very version we hold.
 
     A record withdrawn there after we edited it is kept: the edit is newer than
-    what was withdrawn, and the next exchange takes it back there.
+    what was withdrawn, and the next exchange takes it back there. A discarded
+    inspection is deleted here only with everything recorded in it, so one that
+    holds a part the other side did not discard with it is kept.
     """
-    for table, by_id in bundle.deleted.items():
+    for table in sorted(bundle.deleted, key=DELETABLE.index):
+        by_id = bundle.deleted[table]
         for row_id, ours in store.rows_by_id(table, sorted(by_id)).items():
-            if version_hash(ours) in by_id[row_id]:
-                plan.removals.append((table, ours))
-            else:
+            if version_hash(ours) not in by_id[row_id]:
                 plan.kept_edited.append(_label(table, ours))
+            elif table == "inspection" and _holds_more(store, row_id, plan.removals):
+                plan.kept_edited.append(_label(table, ours))
+            else:
+                plan.removals.append((table, ours))
+    # Parts the bundle brings for an inspection it discards are not written either.
+    discarded = {row["id"] for table, row in plan.removals if table == "inspection"}
+    kept = [w for w in plan.writes if w[1].get("inspection_id") not in discarded]
+    plan.kept_deleted += len(plan.writes) - len(kept)
+    plan.writes = kept
+
+
+def _holds_more(
+    store: Store, inspection_id: str, removals: list[tuple[str, dict[str, Any]]]
+) -> bool:
+    """Whether we hold a part of this inspection that the removals do not take."""
+    going = {(table, row["id"]) for table, row in removals}
+    return any(
+        (table, row_id) not in going
+        for table in _PARTS
+        for row_id in inspection_part_ids(store, table, inspection_id)
+    )
 
 
 def _winner(table: str, ours: dict[str, Any], theirs: dict[str, Any], prefer: Side | None) -> Side:

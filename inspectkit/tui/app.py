@@ -2,12 +2,13 @@
 
 from __future__ import annotations
 
-from datetime import date
+from datetime import date, datetime
 from pathlib import Path
 
 from textual.app import App
 from textual.binding import Binding
 
+from inspectkit.model import utcnow
 from inspectkit.store import Store
 from inspectkit.store.preferences import Preferences
 from inspectkit.tui.commands import ActionsProvider
@@ -81,6 +82,11 @@ class InspectApp(App[None]):
     def today(self) -> date:
         """The day states and due dates are judged by."""
         return self._today or date.today()
+
+    def now(self) -> datetime:
+        """When a reading typed now was taken: the clock, on `today` when the day is fixed."""
+        clock = utcnow()
+        return clock if self._today is None else datetime.combine(self._today, clock.timetz())
 
     def on_mount(self) -> None:
         if not self.settings.cautions_acknowledged:

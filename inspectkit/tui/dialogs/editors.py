@@ -12,6 +12,7 @@ from inspectkit.model import (
     ElectrodeType,
     Inspector,
     Instrument,
+    InstrumentKind,
     Organisation,
     ProtectionLevel,
     Site,
@@ -50,6 +51,7 @@ def site_dialog(site: Site | None = None) -> RecordDialog[Site]:
         Field("height_m", "Height (m)", "metres, e.g. 18.5", optional=True),
         Field("latitude", "Latitude", "degrees, e.g. 51.48", optional=True),
         Field("longitude", "Longitude", "degrees, e.g. -0.61", optional=True),
+        Field("access", "Access", "when it can be visited, e.g. weekdays 08:00-15:00"),
         Field("altered_on", "Altered on", DATE_HINT, optional=True),
         Field("use", "Use", "what it is used for, e.g. offices, fuel depot"),
         Field("construction", "Construction", "e.g. steel frame, brick cladding"),
@@ -135,9 +137,13 @@ def inspector_dialog(organisations: Sequence[Organisation] = ()) -> RecordDialog
 
 
 def instrument_dialog() -> RecordDialog[Instrument]:
-    """Add a test instrument with its calibration due date."""
+    """Add a test instrument with what kind it is and its calibration due date."""
     fields = [
         Field("description", "Description", "make and model, e.g. earth tester ET-4"),
+        Field(
+            "kind", "Kind", "what it measures", optional=True,
+            choices=[(k.label, k.value) for k in InstrumentKind],
+        ),
         Field("serial", "Serial", "the serial number on the instrument"),
         Field("calibration_due", "Calibration due", DATE_HINT, optional=True),
     ]

@@ -11,11 +11,13 @@ from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
 from inspectkit.model import Inspector, Instrument, Record, Site
+from inspectkit.plan.settings import PlanSettingsError, load_plan_settings
 from inspectkit.retiring import in_service, retire
 from inspectkit.store.record_queries import organisations_by_name, sites_by_name
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
+from inspectkit.tui.dialogs.holiday_calendar import choose_holiday_calendar, holiday_text
 from inspectkit.tui.widgets.held_keys import PickList
 
 
@@ -48,6 +50,10 @@ class SettingsScreen(Screen[None]):
             tooltip="Choose the rule set the highlighted site is held to",
         ),
         Binding(
+            "h", "holidays", "Holidays", id="settings.holidays", show=False,
+            tooltip="Choose the country and region whose public holidays rounds leave out",
+        ),
+        Binding(
             "r", "retire", "Retire", id="settings.retire", show=False,
             tooltip="Retire the chosen inspector or instrument (the one whose picker has focus)",
         ),
@@ -73,6 +79,10 @@ class SettingsScreen(Screen[None]):
             with Horizontal(classes="setting"):
                 yield Label("Data folder", classes="setting-label")
                 yield Static("", id="data-folder")
+            with Horizontal(classes="setting"):
+                yield Label("Holidays", classes="setting-label")
+                yield Static("", id="holidays")
+                yield Button("Change…", id="change-holidays", compact=True)
         yield Static("Profile per site (p to change)", classes="section-title")
         yield DataTable(id="profiles", cursor_type="row", zebra_stripes=True)
         yield Footer()
@@ -103,6 +113,7 @@ class SettingsScreen(Screen[None]):
              for i in in_service(store, Instrument, "description")],
             prefs.instrument_id,
         )
+        self.query_one("#holidays", Static).update(holiday_text())
         table = self.profiles_table
         table.clear()
         for site in sites_by_name(store):
@@ -133,6 +144,15 @@ class SettingsScreen(Screen[None]):
             self.action_add_instrument()
         elif event.button.id in ("retire-inspector", "retire-instrument"):
             self._retire(Inspector if event.button.id == "retire-inspector" else Instrument)
+        elif event.button.id == "change-holidays":
+            self.action_holidays()
+
+    def action_holidays(self) -> None:
+        try:
+            current = load_plan_settings()
+        except PlanSettingsError:
+            current = None
+        choose_holiday_calendar(self.app, current, lambda _: self.reload())
 
     def action_retire(self) -> None:
         """Retire what the focused row is about: its picker, or its Retire button."""

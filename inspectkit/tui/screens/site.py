@@ -18,7 +18,6 @@ from inspectkit.model import (
     WALKING_ORDER,
     Component,
     Inspection,
-    InspectionKind,
     InspectionState,
     Inspector,
     Quantity,
@@ -33,7 +32,6 @@ from inspectkit.site_states import (
     reading_verdicts,
 )
 from inspectkit.store.queries import load_site_records
-from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
 from inspectkit.tui.widgets.sparkline import sparkline
@@ -52,13 +50,6 @@ _DUE_WORDS = {
 #: groups with readings (and short ones) do, so the readings show on a small screen.
 TALL = 40
 
-#: Kinds of visit a walkdown can start, most usual first.
-WALKDOWN_KINDS = (
-    InspectionKind.VISUAL,
-    InspectionKind.COMPLETE,
-    InspectionKind.POST_STRIKE,
-    InspectionKind.INITIAL,
-)
 
 
 class SiteScreen(Screen[None]):
@@ -88,6 +79,14 @@ class SiteScreen(Screen[None]):
         Binding(
             "x", "retire_component", "Retire", id="site.retire",
             tooltip="Retire the highlighted component; its history is kept",
+        ),
+        Binding(
+            "i", "draft_inspector", "Inspector", id="site.draft_inspector", show=False,
+            tooltip="Set or change who inspected the site's latest draft",
+        ),
+        Binding(
+            "D", "discard_draft", "Discard draft", id="site.discard_draft", show=False,
+            tooltip="Discard the site's latest draft with what it recorded, after asking",
         ),
         Binding(
             "r", "report", "Report", id="site.report", show=False,
@@ -297,7 +296,8 @@ class SiteScreen(Screen[None]):
             return None
         return next((c for c in self.records.components if c.id == node.data), None)
 
-    def _open_draft(self) -> Inspection | None:
+    def open_draft(self) -> Inspection | None:
+        """The site's latest draft not yet marked finished: a walkdown continues it."""
         drafts = [
             i for i in (self.records.inspections if self.records else [])
             if i.state is InspectionState.DRAFT and not i.finished
@@ -307,41 +307,19 @@ class SiteScreen(Screen[None]):
     # ------------------------------------------------------------------ actions
 
     def action_walkdown(self) -> None:
-        try:
-            from inspectkit.tui.screens.walkdown import WalkdownScreen
-            from inspectkit.walkdown import WalkdownError, start_inspection
-        except ImportError:
-            self.notify("The walkdown is not installed in this build", severity="warning")
-            return
-        inspector_id = self.app.settings.inspector_id
-        if inspector_id is None:
-            self.notify("No inspector chosen: pick one in Settings (F4)", severity="warning")
+        from inspectkit.tui.screens.site_visits import start_walkdown
 
-        def begin(kind: str | None) -> None:
-            if kind is None:
-                return
-            try:
-                inspection = start_inspection(
-                    self.app.store, self.site_id, kind, inspector_id, self.app.today
-                )
-            except WalkdownError as error:
-                self.notify(str(error), severity="error")
-                return
-            self.app.push_screen(WalkdownScreen(inspection.id))
+        start_walkdown(self)
 
-        draft = self._open_draft()
-        if draft is not None:
-            begin(draft.kind.value)
-            return
-        suggested = self.state.next_kind if self.state else ""
-        kinds = sorted(WALKDOWN_KINDS, key=lambda k: k.value != suggested)
-        self.app.push_screen(
-            ChoiceDialog(
-                "Which inspection is this?",
-                [(k.value, k.value.replace("_", "-")) for k in kinds],
-            ),
-            begin,
-        )
+    def action_draft_inspector(self) -> None:
+        from inspectkit.tui.screens.site_visits import choose_draft_inspector
+
+        choose_draft_inspector(self)
+
+    def action_discard_draft(self) -> None:
+        from inspectkit.tui.screens.site_visits import discard_draft
+
+        discard_draft(self)
 
     def action_report(self) -> None:
         """Open the report of the visit highlighted in the Visits tab (the latest by default)."""

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import asyncio
+from typing import Any
 
 from rich.text import Text
 from textual import on
@@ -18,11 +19,14 @@ from inspectkit.model import (
     Grade,
     Inspection,
     Method,
+    NotInspectedReason,
     Quantity,
 )
 from inspectkit.printable import printable
 from inspectkit.store import Store
+from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.steady_footer import SteadyFooter
@@ -39,13 +43,19 @@ from inspectkit.walkdown import (
     Stop,
     WalkdownError,
     attach_photos,
+    chosen_instruments,
+    clear_not_inspected,
     drafts_for,
     drafts_told,
     finish_inspection,
     forget_drafts,
     grade_component,
+    instrument_for,
+    joints_not_retested,
     keep_drafts,
+    mark_not_inspected,
     missing_for_completion,
+    opened_joints,
     record_reading,
     saved_entries,
     set_details,
@@ -133,6 +143,15 @@ class WalkdownScreen(Screen[None]):
             priority=True,
             show=False,
             tooltip="Take back the saved reading the cursor is on (typed on the wrong joint)",
+        ),
+        Binding(
+            "ctrl+n",
+            "not_inspected",
+            "Not inspected",
+            id="walkdown.not_inspected",
+            priority=True,
+            show=False,
+            tooltip="Mark this component not inspected, and say why (no access, unsafe, …)",
         ),
         Binding(
             "escape",
@@ -372,6 +391,8 @@ class WalkdownScreen(Screen[None]):
         self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool
     ) -> ReadingOutcome:
         soil = self.bar.soil
+        # The instrument chosen for the kind that measures this quantity by this method.
+        instrument = instrument_for(chosen_instruments(self.store), quantity, method)
         outcome = record_reading(
             self.store,
             self.inspection_id,
@@ -379,9 +400,11 @@ class WalkdownScreen(Screen[None]):
             quantity,
             text,
             method=method,
-            instrument_id=self.bar.instrument_id,
+            instrument_id=instrument.id if instrument else None,
             soil=soil if quantity in JOINT_FOR else None,
             unreliable=doubtful,
+            # The app's clock (on its fixed day in tests); a bare harness: the walkdown's.
+            taken_at=self.app.now() if hasattr(self.app, "now") else None,
             context=self.context,
         )
         self.saved.readings[(component_id, quantity)] = outcome
@@ -396,6 +419,7 @@ class WalkdownScreen(Screen[None]):
             due.strip() or None,
         )  # fmt: skip
         self.saved.findings[component_id] = finding
+        self.saved.not_inspected.pop(component_id, None)  # graded after all
         self._refresh_mark()
         return finding
 
@@ -447,12 +471,12 @@ class WalkdownScreen(Screen[None]):
         if self.stops:
             self.keep_unsaved()
         missing = missing_for_completion(self.store, self.inspection_id)
+        opened = [c.tag for c in opened_joints(self.store, self.inspection_id)]
+        untested = joints_not_retested(self.store, self.inspection_id)
 
-        def done(confirmed: bool | None) -> None:
-            if not confirmed:
-                return
+        def finish(**answer: Any) -> None:
             try:
-                finish_inspection(self.store, self.inspection_id)
+                finish_inspection(self.store, self.inspection_id, **answer)
             except WalkdownError as exc:
                 self.notify(str(exc), severity="error")
                 return
@@ -461,8 +485,90 @@ class WalkdownScreen(Screen[None]):
             self.notify("Inspection marked complete")
             self.dismiss()
 
+        def why_not(words: str | None) -> None:
+            if words:
+                finish(not_reconnected=words)
+
+        def joints(answer: str | None) -> None:
+            if answer == "yes":
+                finish(reconnected=True)
+            elif answer == "no":
+                self.app.push_screen(
+                    TextPrompt("Why were they not all reconnected and re-tested?",
+                               "e.g. TJ-03 bolt seized, left for the fitter", required=True),
+                    why_not,
+                )  # fmt: skip
+
+        def done(confirmed: bool | None) -> None:
+            if not confirmed:
+                return
+            if not opened:
+                finish()
+                return
+            self.app.push_screen(
+                ChoiceDialog(
+                    f"Test joints opened for isolated readings: {', '.join(opened)}.\n"
+                    + (
+                        f"No reading across {', '.join(untested)} since it was opened.\n"
+                        if untested
+                        else ""
+                    )
+                    + "Was every one reconnected and re-tested?",
+                    [("yes", "Yes: all reconnected and re-tested"), ("no", "No: say why")],
+                ),
+                joints,
+            )
+
         self.app.push_screen(
             ConfirmDialog(_finish_question(missing), yes_label="Mark complete"), done
+        )
+
+    def action_not_inspected(self) -> None:
+        """Mark the component in view not inspected, with a reason and words; or take it back."""
+        if not self.stops:
+            return
+        component = self.stop.component
+        marked = component.id in self.saved.not_inspected
+        reasons = [(r.value, r.label) for r in NotInspectedReason]
+        if marked:
+            reasons.append(("clear", "It was inspected after all: take the mark back"))
+
+        def words(reason: str, text: str | None) -> None:
+            if text is None:
+                return
+            try:
+                mark = mark_not_inspected(
+                    self.store, self.inspection_id, component.id, reason, text
+                )
+            except WalkdownError as exc:
+                self.notify(str(exc), severity="error")
+                return
+            self.saved.not_inspected[component.id] = mark
+            self.saved.findings.pop(component.id, None)  # it stands instead of a grade
+            self.move_now(self.index)
+            self._refresh_mark()
+            self.notify(f"{component.tag}: not inspected ({mark.why})")
+
+        def picked(reason: str | None) -> None:
+            if reason is None:
+                return
+            if reason == "clear":
+                clear_not_inspected(self.store, self.inspection_id, component.id)
+                self.saved.not_inspected.pop(component.id, None)
+                self._refresh_mark()
+                self.notify(f"{component.tag}: mark taken back; grade it")
+                return
+            self.app.push_screen(
+                TextPrompt(
+                    f"{component.tag}: what stopped the inspection?",
+                    "e.g. locked plant room, scaffold down",
+                    required=reason == NotInspectedReason.OTHER.value,
+                ),
+                lambda text: words(reason, text),
+            )
+
+        self.app.push_screen(
+            ChoiceDialog(f"Why was {component.tag} not inspected?", reasons), picked
         )
 
     def action_details(self) -> None:

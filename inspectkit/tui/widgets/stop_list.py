@@ -21,20 +21,27 @@ MARK_STYLES = {
     "ATTN": "bold yellow",
     "FAIL": "bold white on red",
     "DEFECT": "bold white on red",
+    "SKIP": "bold magenta",
 }
 
 
 def complete(stop: Stop, saved: SavedEntries) -> bool:
-    """Graded, and every reading but the optional soil resistivity taken."""
+    """Graded, and every reading but the optional soil resistivity taken; or marked not
+    inspected, with why."""
     cid = stop.component.id
+    if cid in saved.not_inspected:
+        return True
     required = {q for q in stop.quantities if q is not Quantity.SOIL_RESISTIVITY}
     taken = {q for q in stop.quantities if (cid, q) in saved.readings}
     return cid in saved.findings and required <= taken
 
 
 def mark(stop: Stop, saved: SavedEntries) -> str:
-    """One word for how far a component is: todo, part, done, or the worst found."""
+    """One word for how far a component is: todo, part, done, SKIP (not inspected), or the
+    worst found."""
     cid = stop.component.id
+    if cid in saved.not_inspected:
+        return "SKIP"
     outcomes = [o for q in stop.quantities if (o := saved.readings.get((cid, q))) is not None]
     finding = saved.findings.get(cid)
     if finding is not None and finding.grade is Grade.DEFECT:

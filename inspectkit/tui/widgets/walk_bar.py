@@ -19,7 +19,7 @@ from inspectkit.retiring import in_service
 from inspectkit.store import Store
 from inspectkit.store.preferences import INSTRUMENT_SETTING
 from inspectkit.tui.widgets.held_keys import PickList
-from inspectkit.walkdown import WalkdownError, set_soil
+from inspectkit.walkdown import WalkdownError, choose_instrument, set_soil
 
 
 class WalkBar(Horizontal):
@@ -67,7 +67,8 @@ class WalkBar(Horizontal):
     def _instrument_options(self) -> list[tuple[str, str]]:
         options = []
         for instrument in in_service(self.store, Instrument, "description, serial"):
-            label = f"{instrument.description} {instrument.serial}"
+            kind = f"{instrument.kind.label}: " if instrument.kind else ""
+            label = f"{kind}{instrument.description} {instrument.serial}"
             due = instrument.calibration_due
             if due is not None and self.today is not None and due < self.today:
                 label += " (calibration lapsed)"
@@ -92,8 +93,11 @@ class WalkBar(Horizontal):
     def _instrument_changed(self, event: Select.Changed) -> None:
         event.stop()
         if event.value is not Select.NULL and event.value != self._instrument_in_use():
-            self.store.set_setting(INSTRUMENT_SETTING, str(event.value))
-            self.notify("Instrument remembered for the next readings")
+            # The one of its kind from now on; each reading takes the one whose kind fits.
+            instrument = choose_instrument(self.store, str(event.value))
+            self.store.set_setting(INSTRUMENT_SETTING, instrument.id)
+            kind = instrument.kind.label if instrument.kind else "instrument"
+            self.notify(f"{instrument.serial} is the {kind} for the next readings it can take")
 
     @on(Select.Changed, "#soil")
     def _soil_changed(self, event: Select.Changed) -> None:
