@@ -16,7 +16,7 @@ import re
 import uuid
 from datetime import UTC, date, datetime, timedelta
 from enum import StrEnum
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 from pydantic import (
     BaseModel,
@@ -29,6 +29,9 @@ from pydantic import (
 )
 
 from inspectkit.wording import with_article
+
+if TYPE_CHECKING:
+    from inspectkit.geometry_model import GeometryItem
 
 #: A reading may carry a time this far past the laptop's clock before it is refused:
 #: instrument clocks and laptop clocks drift apart, and time zones get mixed up.
@@ -968,3 +971,10 @@ class SiteRecords(BaseModel):
     photos: list[Photo] = Field(default_factory=list)
     instruments: dict[str, Instrument] = Field(default_factory=dict)
     not_inspected: list[NotInspected] = Field(default_factory=list)
+    #: The site's geometry (roofs, LPS conductors, rooftop items); empty: none recorded.
+    geometry: list[GeometryItem] = Field(default_factory=list)
+
+
+# Last, not at the top: the geometry vocabulary builds on `Record` above, and on loading
+# completes `SiteRecords.geometry` (whichever of the two modules is imported first).
+import inspectkit.geometry_model  # noqa: E402, F401

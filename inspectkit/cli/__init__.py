@@ -21,7 +21,7 @@ from inspectkit.printable import PrintableStream
 #: Modules under inspectkit.cli that add commands.
 COMMAND_MODULES = ("sites", "demo", "plan", "sync", "check", "readings", "report", "keys", "verify",
                    "upkeep", "inspection", "entries", "findings", "safety",
-                   "organisations", "retire")
+                   "organisations", "retire", "geometry")
 
 app = typer.Typer(
     name="inspectkit",

@@ -176,6 +176,8 @@ class SiteSpec(_Data):
     #: Changes to the structure found at the latest complete inspection.
     changes_since_last: str = ""
     draft_today: Literal["visual", "complete"] | None = None
+    #: The site's roof plan: a geometry file (the import format) under demo_db/.
+    geometry: str | None = None
     finding: list[FindingSpec] = Field(default_factory=list)
 
     @model_validator(mode="after")

@@ -19,6 +19,7 @@ from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
+from inspectkit.demo.geometry import demo_geometry
 from inspectkit.demo.ground import SOIL_FACTOR, soil_on, weather_in
 from inspectkit.demo.scenario import DriftingEarth, ScenarioError, SiteSpec
 from inspectkit.demo.system import System, lay_out
@@ -506,6 +507,9 @@ class SiteHistory:
                 *self.readings,
                 *self.findings,
                 *self.skipped,
+                *demo_geometry(
+                    spec.geometry, self.site, self.system.components, stamps(self.site.created_at)
+                ),
             ]
         )
 

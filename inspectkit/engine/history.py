@@ -65,6 +65,7 @@ def as_of(records: SiteRecords, today: date) -> SiteRecords:
         photos=[p for p in records.photos if p.inspection_id in known],
         instruments=records.instruments,
         not_inspected=[n for n in records.not_inspected if n.inspection_id in known],
+        geometry=records.geometry,
     )
 
 

@@ -14,6 +14,7 @@ from datetime import date
 from functools import cache
 from operator import attrgetter
 
+from inspectkit.engine.conformity import conformity
 from inspectkit.engine.history import (
     COMPLETE_KINDS,
     History,
@@ -612,6 +613,7 @@ RULES: tuple[Callable[[SiteFacts], Iterable[Result]], ...] = (
     open_defects,
     schedule_items,
     drifting_electrodes,
+    conformity,
 )
 
 #: The rules that speak about one reading or its series, not the site as a whole:

@@ -12,6 +12,8 @@ from datetime import date
 from pathlib import Path
 
 from inspectkit.cautions import CAUTIONS
+from inspectkit.engine.conformity import Conformity
+from inspectkit.geometry_model import GeometryItem
 from inspectkit.wording import counted
 
 #: Said on every report beside the cautions (whose last one says who decides).
@@ -142,6 +144,14 @@ class TrendChart:
 
 
 @dataclass(frozen=True)
+class RoofPlan:
+    """What the report's plan page needs: the site's geometry and its verdicts."""
+
+    geometry: tuple[GeometryItem, ...]
+    judged: Conformity
+
+
+@dataclass(frozen=True)
 class ReportContent:
     """Everything one inspection report says, section by section.
 
@@ -171,6 +181,7 @@ class ReportContent:
         amends: words naming the original inspection, for an amendment.
         signer_name, signer_qualification: for the visible signature block.
         general_photos: photos not attached to any finding.
+        roof_plan: the recorded geometry and its protection verdicts, if any.
     """
 
     title: str
@@ -205,6 +216,8 @@ class ReportContent:
     legend: tuple[tuple[str, str], ...] = ()
     cautions: tuple[str, ...] = CAUTIONS
     deferral: str = DEFERRAL
+    #: The site's roof plan and its verdicts; None when no geometry is recorded.
+    roof_plan: RoofPlan | None = None
 
     def photos(self) -> list[PhotoItem]:
         """Every photo the report embeds, findings' first."""

@@ -12,6 +12,7 @@ from collections import Counter
 from datetime import date, datetime, timedelta
 
 from inspectkit.engine.check import check_site
+from inspectkit.engine.conformity import assess
 from inspectkit.engine.history import as_of, calibration_lapsed, usable
 from inspectkit.engine.schedule import SiteSchedule
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
@@ -37,6 +38,7 @@ from inspectkit.report.content import (
     Field,
     Notice,
     ReportContent,
+    RoofPlan,
     TrendChart,
 )
 from inspectkit.report.findings import visit_findings
@@ -392,6 +394,7 @@ def build_report(
         actions=to_do,
         visits=visits(check),
         legend=legend(),
+        roof_plan=_roof_plan(records),
     )
 
 
@@ -450,6 +453,13 @@ def _schedule(schedule: SiteSchedule) -> tuple[Field, ...]:
         Field("Next visual inspection", schedule.next_visual.isoformat()),
         Field("Next complete inspection", schedule.next_complete.isoformat()),
     )
+
+
+def _roof_plan(records: SiteRecords) -> RoofPlan | None:
+    """The site's geometry with its verdicts, for the plan page; None without geometry."""
+    if not records.geometry:
+        return None
+    return RoofPlan(tuple(records.geometry), assess(records.site, records.geometry))
 
 
 def _parts(

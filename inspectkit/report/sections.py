@@ -35,6 +35,7 @@ from inspectkit.report.layout import (
     text_of,
     two_up,
 )
+from inspectkit.report.roof_plan import roof_plan
 
 #: Actions listed on the first page; the rest are in the summary's full list.
 FIRST_PAGE_ACTIONS = 6
@@ -338,5 +339,6 @@ SECTIONS: tuple[Section, ...] = (
     sound_components,
     trends,
     other_photos,
+    roof_plan,
     sign_off,
 )

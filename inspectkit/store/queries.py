@@ -13,6 +13,7 @@ from typing import Any, get_args
 
 from pydantic import BaseModel
 
+from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import (
     Component,
     Finding,
@@ -26,6 +27,7 @@ from inspectkit.model import (
     SiteRecords,
 )
 from inspectkit.store.database import Store, StoreError
+from inspectkit.store.geometry import site_geometry
 from inspectkit.store.rows import from_row
 
 
@@ -107,6 +109,7 @@ def load_site_records(store: Store, site_id: str) -> SiteRecords:
         photos=store.select(Photo, in_site, [site_id]),
         instruments=instruments,
         not_inspected=store.select(NotInspected, in_site, [site_id]),
+        geometry=site_geometry(store, site_id),
     )
 
 
@@ -129,6 +132,13 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
         "findings": _by_visit(store, Finding, "finding", site_of),
         "photos": _by_visit(store, Photo, "photo", site_of),
         "not_inspected": _by_visit(store, NotInspected, "not_inspected", site_of),
+        # Validated, not trusted-built: points are stored as JSON text; geometry is small.
+        "geometry": (
+            (site_id, list(items))
+            for site_id, items in groupby(
+                store.select(GeometryItem, order_by="site_id"), key=attrgetter("site_id")
+            )
+        ),
     }
     pending = {name: next(stream, None) for name, stream in streams.items()}
     for site_id, (site,) in _by_site(store, Site, "SELECT * FROM site ORDER BY id", "id"):
@@ -151,6 +161,7 @@ def iter_site_records(store: Store) -> Iterator[SiteRecords]:
             photos=parts.get("photos", []),
             instruments={key: instruments[key] for key in used if key in instruments},
             not_inspected=parts.get("not_inspected", []),
+            geometry=parts.get("geometry", []),
         )
 
 

@@ -216,6 +216,32 @@ def _add_columns(db: sqlite_utils.Database, new: dict[str, tuple[str, ...]]) -> 
         audit.insert_entries(db, entries)
 
 
+_GEOMETRY = f"""
+CREATE TABLE geometry_item (
+    id TEXT PRIMARY KEY,
+    site_id TEXT NOT NULL REFERENCES site(id),
+    kind TEXT NOT NULL,
+    tag TEXT NOT NULL,
+    component_id TEXT REFERENCES component(id),
+    points TEXT NOT NULL,
+    z_m REAL NOT NULL,
+    what TEXT NOT NULL DEFAULT '',
+    conductive INTEGER NOT NULL DEFAULT 0,
+    bonded INTEGER NOT NULL DEFAULT 0,
+    separated_by TEXT NOT NULL DEFAULT 'air',
+    clearance_m REAL,
+    note TEXT NOT NULL DEFAULT '',
+    {_STAMPS}
+);
+CREATE INDEX geometry_item_site ON geometry_item(site_id, kind, tag);
+"""
+
+
+def _geometry(db: sqlite_utils.Database) -> None:
+    """Site geometry in local metres (roofs, LPS conductors, rooftop items), one row each."""
+    db.executescript(_GEOMETRY)
+
+
 def _rows(db: sqlite_utils.Database, table: str) -> dict[str, dict[str, object]]:
     """A table's rows by id, as SQLite returns them (the form the audit log hashes)."""
     cursor = db.execute(f"SELECT * FROM [{table}]")
@@ -342,5 +368,6 @@ MIGRATIONS: tuple[Callable[[sqlite_utils.Database], None], ...] = (
     _organisations,
     _site_access,
     _visit_records,
+    _geometry,
 )
 SCHEMA_VERSION = len(MIGRATIONS)

@@ -27,6 +27,7 @@ _SITE_WHERE = {
     "finding": _IN_SITE,
     "photo": f"{_IN_SITE} OR component_id IN (SELECT id FROM component WHERE site_id = :site)",
     "not_inspected": _IN_SITE,
+    "geometry_item": "site_id = :site",
 }
 
 

@@ -91,6 +91,7 @@ REFERENCES: dict[str, dict[str, str]] = {
     },
     "photo": {"inspection_id": "inspection", "component_id": "component"},
     "not_inspected": {"inspection_id": "inspection", "component_id": "component"},
+    "geometry_item": {"site_id": "site", "component_id": "component"},
 }
 
 

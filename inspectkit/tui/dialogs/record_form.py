@@ -155,6 +155,9 @@ class RecordDialog(ModalScreen[R | None], Generic[R]):
         for line in text.splitlines():
             name, _, message = line.partition(": ")
             name = name.split(".")[0]
+            inner, _, rest = message.partition(": ")
+            if name == "record" and inner in fields:  # a whole-record check naming its field
+                name, message = inner, rest
             field = fields.get(name)
             if field is None:
                 name, message = "", line.removeprefix("record: ")

@@ -34,6 +34,7 @@ from inspectkit.site_states import (
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import component_dialog, retired, site_dialog
+from inspectkit.tui.widgets.roof_plan import RoofPlanPane
 from inspectkit.tui.widgets.sparkline import sparkline
 from inspectkit.tui.widgets.state_badge import StateBadge, state_text
 from inspectkit.units import format_value
@@ -123,6 +124,8 @@ class SiteScreen(Screen[None]):
                     yield DataTable(id="visits", cursor_type="row")
                 with TabPane("Schedule", id="tab-schedule"):
                     yield DataTable(id="schedule", cursor_type="row")
+                with TabPane("Roof plan", id="tab-plan"):
+                    yield RoofPlanPane(id="roof-plan")
         yield Footer()
 
     def on_mount(self) -> None:
@@ -177,6 +180,7 @@ class SiteScreen(Screen[None]):
         self._fill_findings(records)
         self._fill_visits(records)
         self._fill_schedule()
+        self.query_one(RoofPlanPane).show(records)
 
     def _fill_tree(self, records: SiteRecords, verdicts: dict[str, str], today: date) -> None:
         tree = self.tree

@@ -26,6 +26,7 @@ from inspectkit.printable import printable
 from inspectkit.store import Store
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
+from inspectkit.tui.dialogs.geometry import edit_geometry, geometry_for
 from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
@@ -152,6 +153,15 @@ class WalkdownScreen(Screen[None]):
             priority=True,
             show=False,
             tooltip="Mark this component not inspected, and say why (no access, unsafe, …)",
+        ),
+        Binding(
+            "ctrl+b",
+            "rooftop_item",
+            "Rooftop item",
+            id="walkdown.rooftop_item",
+            priority=True,
+            show=False,
+            tooltip="Add a rooftop item to the roof plan, or edit this part's; judged at once",
         ),
         Binding(
             "escape",
@@ -582,6 +592,12 @@ class WalkdownScreen(Screen[None]):
                 self.notify("Visit details saved")
 
         self.app.push_screen(VisitDetailsDialog(self.inspection, save), done)
+
+    def action_rooftop_item(self) -> None:
+        """The geometry form for what is drawn for this part (a new rooftop item if none);
+        once saved, its protection verdict is said at once."""
+        site_id = self.inspection.site_id
+        edit_geometry(self, site_id, geometry_for(self.store, site_id, self.stop.component))
 
     def action_withdraw(self) -> None:
         """Take back the reading of the entry in focus, after asking."""
