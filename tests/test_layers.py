@@ -16,7 +16,7 @@ ROOT = Path(__file__).resolve().parents[1]
 
 def test_imports_point_down_the_layers(monkeypatch: pytest.MonkeyPatch) -> None:
     monkeypatch.chdir(ROOT)
-    assert lint_imports(no_cache=True, no_logo=True) == 0
+    assert lint_imports(no_cache=True) == 0
 
 
 def test_the_contract_catches_an_import_that_points_up(
@@ -37,4 +37,4 @@ def test_the_contract_catches_an_import_that_points_up(
     )
     monkeypatch.chdir(tmp_path)
     monkeypatch.syspath_prepend(str(tmp_path))
-    assert lint_imports(config_filename=str(config), no_cache=True, no_logo=True) == 1
+    assert lint_imports(config_filename=str(config), no_cache=True) == 1
