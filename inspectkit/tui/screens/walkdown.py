@@ -370,8 +370,9 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
         self._framing.hold(self.app.batch_update())
 
         def behind_the_keys() -> None:
+            # Only a field of this screen: a dialog's may close before it runs the callback.
             focused = self.app.focused
-            if focused is None or not focused.call_later(self._frame):
+            if focused is None or focused.screen is not self or not focused.call_later(self._frame):
                 self._frame()
 
         if not self.app.call_later(behind_the_keys):

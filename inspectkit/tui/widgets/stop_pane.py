@@ -206,10 +206,12 @@ class StopPane(VerticalScroll):
             self.scroll_home(animate=False, immediate=True)
 
     def show_around(self, view: StopView) -> None:
-        """What frames the fields of `view`: the heading, the checklist, the traverse drawn
-        and the photo count. Nothing here takes a key, so the walkdown shows it just after
-        the fields (`WalkdownScreen.move_now`), before the screen is painted."""
+        """What frames the fields of `view`: the heading, the checklist, the entries' labels,
+        the traverse drawn and the photo count. Nothing here takes a key, so the walkdown
+        shows it just after the fields (`WalkdownScreen.move_now`), before any repaint."""
         stop = view.stop
+        for entry in self.entries:
+            entry.show_label()
         self._update("#heading", heading_text(stop, view.parent_tag))
         self._update("#checklist", checklist_text(stop.component.kind))
         self._traverse.show_outcomes(view.outcomes)
