@@ -40,7 +40,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 from test_report_factory import build_site  # noqa: E402
 
 from inspectkit.report.branding import load_branding  # noqa: E402
-from inspectkit.report.model import build_report  # noqa: E402
+from inspectkit.report.gather import build_report  # noqa: E402
 from inspectkit.report.photos import downscale  # noqa: E402
 from inspectkit.report.render import render_report  # noqa: E402
 from inspectkit.store import Store  # noqa: E402

@@ -89,11 +89,6 @@ def record_survey(
     return store.save(_validated(SoilSurvey, data, now))
 
 
-def site_surveys(store: Store, site_id: str) -> list[SoilSurvey]:
-    """A site's surveys, oldest first."""
-    return store.select(SoilSurvey, "site_id = ?", [site_id], order_by="date, created_at")
-
-
 def withdraw_survey(store: Store, survey_id: str) -> SoilSurvey:
     """Take back a survey recorded by mistake; the audit log keeps it.
 

@@ -8,6 +8,7 @@ picker and default leaves it out from then on.
 from __future__ import annotations
 
 from datetime import date
+from operator import attrgetter
 from typing import TypeVar
 
 from inspectkit.model import Inspector, Instrument
@@ -35,8 +36,14 @@ def retire(store: Store, model: type[R], record_id: str, on: date) -> R:
 
 
 def in_service(store: Store, model: type[R], order_by: str, on: date | None = None) -> list[R]:
-    """The records still offered: not retired, or retired after `on` (default: any retired)."""
-    return [
-        r for r in store.select(model, order_by=order_by)
+    """The records still offered: not retired, or retired after `on` (default: any retired).
+
+    `order_by` names the model's fields to sort by, first the one that counts most
+    (`"description, serial"`); sorted here, so that no SQL is written outside the store.
+    """
+    fields = [name.strip() for name in order_by.split(",")]
+    kept = [
+        r for r in store.select(model)
         if r.retired_on is None or (on is not None and r.retired_on > on)
     ]  # fmt: skip
+    return sorted(kept, key=attrgetter(*fields))

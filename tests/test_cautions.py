@@ -79,7 +79,7 @@ def test_every_report_carries_the_same_items(tmp_path: Path, monkeypatch) -> Non
     from test_report_factory import build_site
 
     from inspectkit.report.branding import load_branding
-    from inspectkit.report.model import build_report
+    from inspectkit.report.gather import build_report
     from inspectkit.report.render import render_report
 
     monkeypatch.setattr(rl_config, "invariant", 1)

@@ -20,7 +20,7 @@ from inspectkit.model import (
     Reading,
 )
 from inspectkit.report.content import CHANGES_TITLE, text_sections
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site, last_write
 from tests.walkdown_factories import write_photo

@@ -28,7 +28,7 @@ from inspectkit.store import Store
 from inspectkit.store.database import apply_migrations
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.store.rows import to_row
-from inspectkit.store.schema import SCHEMA_VERSION
+from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION, _earthing
 from inspectkit.sync import exports
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
@@ -44,7 +44,7 @@ def test_a_database_before_the_earthing_step_migrates_and_keeps_its_records(
     db_path: Path,
 ) -> None:
     db = sqlite_utils.Database(db_path)
-    apply_migrations(db, upto=SCHEMA_VERSION - 1)
+    apply_migrations(db, upto=MIGRATIONS.index(_earthing))  # the step before it
     site = Site(name="Old Chapel", protection_level="III")
     rod = Component(site_id=site.id, kind=ComponentKind.EARTH_ELECTRODE, tag="E-01",
                     electrode_type="rod")  # fmt: skip

@@ -10,12 +10,12 @@ from test_report_factory import build_site
 
 from inspectkit.model import Inspector, Organisation
 from inspectkit.report.branding import load_branding
+from inspectkit.report.gather import build_report
 from inspectkit.report.letterhead import (
     branding_of,
     ensure_default_organisation,
     report_branding,
 )
-from inspectkit.report.model import build_report
 from inspectkit.report.publish import prepare
 from inspectkit.store import Store
 

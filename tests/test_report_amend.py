@@ -14,7 +14,7 @@ from test_report_sign import NOW, give_key
 
 from inspectkit.model import Finding, Inspection, InspectionKind, InspectionState, Reading
 from inspectkit.report.amend import AmendError, create_amendment
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.report.publish import export_report
 from inspectkit.report.verify import verify_pdf
 from inspectkit.store import Store

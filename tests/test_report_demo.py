@@ -15,7 +15,7 @@ from inspectkit.demo.generate import build_demo
 from inspectkit.model import Site
 from inspectkit.paths import demo_dir
 from inspectkit.report.branding import load_branding
-from inspectkit.report.model import RESULT_WORDS, build_report, latest_inspection
+from inspectkit.report.gather import RESULT_WORDS, build_report, latest_inspection
 from inspectkit.report.render import render_report
 from inspectkit.store import Store
 

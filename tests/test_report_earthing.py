@@ -14,7 +14,7 @@ from inspectkit.demo.generate import build_demo
 from inspectkit.model import Inspection, InspectionKind, Site
 from inspectkit.report.branding import load_branding
 from inspectkit.report.content import text_sections
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.report.render import render_report
 from inspectkit.store import Store
 

@@ -16,7 +16,7 @@ from inspectkit.cautions import CAUTIONS
 from inspectkit.model import Inspection, Site
 from inspectkit.report.branding import BrandingError, load_branding
 from inspectkit.report.content import CHANGES_TITLE, Field, ReadingRow, text_sections
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.report.photos import downscale
 from inspectkit.report.render import render_report
 from inspectkit.store import Store

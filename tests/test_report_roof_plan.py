@@ -13,7 +13,7 @@ from reportlab.graphics.shapes import String
 from inspectkit.demo.generate import build_demo
 from inspectkit.model import Site
 from inspectkit.report.branding import load_branding
-from inspectkit.report.model import build_report, latest_inspection
+from inspectkit.report.gather import build_report, latest_inspection
 from inspectkit.report.render import render_report
 from inspectkit.report.roof_plan import plan_drawing
 from inspectkit.store import Store

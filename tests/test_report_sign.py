@@ -17,6 +17,7 @@ from typer.testing import CliRunner
 
 from inspectkit.cli import app
 from inspectkit.model import Inspection, InspectionState, Inspector, Reading
+from inspectkit.report.gather import ReportError
 from inspectkit.report.keys import (
     KeyProblem,
     key_path,
@@ -25,7 +26,6 @@ from inspectkit.report.keys import (
     read_key,
     stored_key_path,
 )
-from inspectkit.report.model import ReportError
 from inspectkit.report.publish import export_report
 from inspectkit.report.sign import SignError
 from inspectkit.report.verify import verify_pdf

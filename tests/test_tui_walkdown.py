@@ -53,6 +53,9 @@ from inspectkit.walkdown import (
 from tests.walkdown_factories import build_walk_site, write_photo
 
 ANCHOR = date(2026, 6, 1)
+#: The day the harness and the whole walk run on, whatever the real date: a visit's
+#: readings must lie on its day, and calibration dates are judged against it.
+TODAY = date(2026, 6, 2)
 DEMO_SITE = "Pellow Ridge Quarry Offices"
 
 
@@ -62,7 +65,7 @@ class WalkHarness(App[None]):
     def __init__(self, path: Path, inspection_id: str, today: date | None = None) -> None:
         super().__init__()
         self.store = Store.open(path)
-        self.today = today or date.today()
+        self.today = today or TODAY
         self.inspection_id = inspection_id
 
     def now(self) -> datetime:
@@ -73,13 +76,18 @@ class WalkHarness(App[None]):
         self.push_screen(WalkdownScreen(self.inspection_id))
 
 
+def _on_the_day() -> datetime:
+    """Now's clock time on TODAY, as the harness stamps readings (photos match by time)."""
+    return datetime.combine(TODAY, datetime.now(UTC).timetz())
+
+
 @pytest.fixture
 def walk_db(tmp_path: Path) -> tuple[Path, str]:
     """A database with the small invented site and an open complete inspection."""
     path = tmp_path / "walk.sqlite"
     with Store.open(path) as store:
         site = build_walk_site(store)
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
     return path, visit.id
 
 
@@ -127,7 +135,7 @@ def status_of(field: SavingField) -> str:
 
 async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
     db_path = build_demo(tmp_path / "demo.sqlite", anchor=ANCHOR)
-    today = date.today()
+    today = TODAY
     with Store.open(db_path) as store:
         store.set_setting(ACKNOWLEDGED_SETTING, "yes")
         hired = store.save(
@@ -141,7 +149,7 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         assert site is not None
         inspector_id = store.select(Inspector)[0].id
         store.set_setting("inspector_id", inspector_id)
-    photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", datetime.now(UTC))
+    photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", _on_the_day())
 
     app = make_app(db_path, today=today)
     async with app.run_test(size=(80, 24)) as pilot:
@@ -326,7 +334,7 @@ async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str])
     path, visit_id = walk_db
     with Store.open(path) as store:
         rc = walk_for(store, visit_id)[2].component
-        record_reading(store, visit_id, rc.id, "continuity", "0.15")
+        record_reading(store, visit_id, rc.id, "continuity", "0.15", taken_at=_on_the_day())
         grade_component(store, visit_id, rc.id, "sound")
     async with walking(walk_db) as (app, pilot, screen):
         assert "done" in str(screen.stop_list.get_option_at_index(2).prompt)
@@ -357,7 +365,7 @@ async def test_a_folder_of_photos_is_matched_by_time(
     async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)
         await type_into(pilot, screen.pane.entries[0], "0.1")
-        write_photo(tmp_path / "card" / "IMG_1.jpg", datetime.now(UTC))
+        write_photo(tmp_path / "card" / "IMG_1.jpg", _on_the_day())
         await type_into(pilot, screen.query_one("#photo", SavingField), str(tmp_path / "card"))
         await pilot.pause()
         photos = app.store.select(Photo, "inspection_id = ?", [visit_id])
@@ -534,8 +542,9 @@ async def test_a_continued_draft_shows_the_method_and_doubt_saved(
     with Store.open(path) as store:
         er = next(s.component for s in walk_for(store, visit_id) if s.component.tag == "ER-01")
         record_reading(
-            store, visit_id, er.id, "earth_isolated", "4.4", Method.FOUR_POLE, unreliable=True
-        )
+            store, visit_id, er.id, "earth_isolated", "4.4", Method.FOUR_POLE,
+            unreliable=True, taken_at=_on_the_day(),
+        )  # fmt: skip
     async with walking(walk_db) as (app, pilot, screen):
         entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
         assert entry.method_select is not None

@@ -26,7 +26,7 @@ from inspectkit.plan.planner import Window, make_candidates
 from inspectkit.plan.settings import load_plan_settings
 from inspectkit.profiles import load_profile
 from inspectkit.report.content import text_sections
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.store import Store, schema
 from inspectkit.store.database import apply_migrations
 from inspectkit.store.queries import load_site_records

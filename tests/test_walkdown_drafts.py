@@ -13,7 +13,7 @@ from pathlib import Path
 import pytest
 
 from inspectkit.model import Finding, Inspection, Quantity, Reading
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.store import Store
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.walkdown import (

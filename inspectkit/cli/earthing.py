@@ -12,15 +12,14 @@ from inspectkit.cli.common import DbOption, JsonOption, emit_json, fail, open_st
 from inspectkit.earthing_jobs import (
     EarthingInputError,
     record_survey,
-    site_surveys,
     size_electrode,
     withdraw_survey,
 )
 from inspectkit.earthing_values import read_survey
 from inspectkit.engine.soil import analyse_survey, design_resistivity
-from inspectkit.model import Component, Reading, SoilSurvey
+from inspectkit.model import SoilSurvey
 from inspectkit.profiles import EarthingFigures, ProfileError, load_profile
-from inspectkit.store import Store
+from inspectkit.store.record_queries import components_tagged, site_soil_readings, site_surveys
 
 soil_app = typer.Typer(help="Wenner soil resistivity surveys of a site.", no_args_is_help=True)
 electrode_app = typer.Typer(help="Earth electrodes' form and size.", no_args_is_help=True)
@@ -99,7 +98,7 @@ def list_surveys(
     with open_store(ctx, db) as store:
         found = lookups.site(store, site)
         surveys = site_surveys(store, found.id)
-        design = design_resistivity(surveys, _soil_readings(store, found.id))
+        design = design_resistivity(surveys, site_soil_readings(store, found.id))
         figures = _figures(found.profile)
     if json_out:
         emit_json(
@@ -131,15 +130,6 @@ def withdraw(
         found = lookups.by_id(store, SoilSurvey, survey, "SURVEY")
         withdraw_survey(store, found.id)
     typer.echo(f"survey of {found.date.isoformat()} withdrawn.")
-
-
-def _soil_readings(store: Store, site_id: str) -> list[Reading]:
-    return store.select(
-        Reading,
-        "quantity = 'soil_resistivity' AND inspection_id IN "
-        "(SELECT id FROM inspection WHERE site_id = ?)",
-        [site_id],
-    )
 
 
 def _survey_lines(survey: SoilSurvey, figures: EarthingFigures) -> list[str]:
@@ -190,7 +180,7 @@ def size(
     """Record an electrode's lie and size, for the l1 and expected-resistance checks."""
     with open_store(ctx, db) as store:
         found = lookups.site(store, site)
-        matches = store.select(Component, "site_id = ? AND tag = ?", [found.id, tag.upper()])
+        matches = components_tagged(store, found.id, tag)
         if not matches:
             fail(f"--tag: no component tagged {tag!r} at {found.name}")
         try:

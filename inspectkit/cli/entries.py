@@ -18,7 +18,6 @@ from inspectkit.earthing_values import Traverse
 from inspectkit.intake import ReadingRefused, reading_window, set_reading_window
 from inspectkit.model import (
     METHODS_FOR,
-    Component,
     Grade,
     Method,
     NotInspectedReason,
@@ -27,6 +26,7 @@ from inspectkit.model import (
     SoilCondition,
 )
 from inspectkit.repeats import RepeatError, mark_repeat
+from inspectkit.store.record_queries import site_components
 from inspectkit.units import UnitError, format_value
 from inspectkit.walkdown import (
     DEFAULT_METHOD,
@@ -352,7 +352,7 @@ def add_photo(
             )
         except WalkdownError as exc:
             lookups.refused(exc)
-        tags = {c.id: c.tag for c in store.select(Component, "site_id = ?", [visit.site_id])}
+        tags = {c.id: c.tag for c in site_components(store, visit.site_id)}
     for match in matches:
         where = tags.get(match.component_id or "", "the inspection only")
         typer.echo(f"{match.photo.original_name} → {where}")

@@ -14,6 +14,7 @@ from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_st
 from inspectkit.cli.entries import outcome_json, outcome_line
 from inspectkit.model import Inspection, Inspector, Site
 from inspectkit.store.preferences import Preferences
+from inspectkit.store.record_queries import site_inspections
 from inspectkit.walkdown import (
     DETAIL_LABELS,
     Missing,
@@ -88,7 +89,7 @@ def start(
             if inspector is not None
             else Preferences(store).inspector_id
         )
-        known = {v.id: v for v in store.select(Inspection, "site_id = ?", [found.id])}
+        known = {v.id: v for v in site_inspections(store, found.id)}
         try:
             visit = start_inspection(
                 store,

@@ -20,6 +20,11 @@ from inspectkit.cli.common import (
 )
 from inspectkit.model import Inspector
 from inspectkit.store import Store
+from inspectkit.store.record_queries import (
+    inspectors_named,
+    inspectors_named_from,
+    inspectors_with_certificate,
+)
 
 #: Read instead of prompting, so scripts can sign unattended.
 PASSPHRASE_ENV = "INSPECTKIT_PASSPHRASE"
@@ -48,8 +53,8 @@ def find_inspector(store: Store, name_or_id: str) -> Inspector:
     found = store.get(Inspector, name_or_id)
     if found is not None:
         return found
-    for where in ("lower(name) = lower(?)", "lower(name) LIKE lower(?) || '%'"):
-        matches = store.select(Inspector, where, [name_or_id])
+    for matching in (inspectors_named, inspectors_named_from):
+        matches = matching(store, name_or_id)
         if len(matches) == 1:
             return matches[0]
         if len(matches) > 1:
@@ -199,7 +204,7 @@ def list_keys(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = Fa
     except TrustError as exc:
         fail(str(exc))
     with open_store(ctx, db) as store:
-        people = store.select(Inspector, "certificate_pem != ''", order_by="name")
+        people = inspectors_with_certificate(store)
     rows = []
     for person in people:
         try:

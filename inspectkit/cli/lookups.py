@@ -17,6 +17,13 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
+from inspectkit.store.record_queries import (
+    inspectors_named,
+    instruments_by_serial,
+    open_findings_of_component,
+    records_with_id_prefix,
+    site_inspections,
+)
 from inspectkit.walkdown import WalkdownError, walk_for
 
 R = TypeVar("R", bound=Record)
@@ -77,7 +84,7 @@ def by_id(store: Store, model: type[R], text: str, option: str) -> R:
     if record is not None:
         return record
     if len(text) >= MIN_PREFIX:
-        found = store.select(model, "id LIKE ? || '%'", [text])
+        found = records_with_id_prefix(store, model, text)
         if len(found) == 1:
             return found[0]
         if found:
@@ -121,7 +128,7 @@ def component_by_tag(store: Store, inspection_id: str, tag: str) -> Component:
 
 def instrument(store: Store, text: str) -> Instrument:
     """An instrument by serial number (any case) or id."""
-    found = store.select(Instrument, "lower(serial) = lower(?)", [text.strip()])
+    found = instruments_by_serial(store, text.strip())
     if len(found) == 1:
         return found[0]
     return _named_or_id(store, Instrument, found, text, "--instrument", "serial")
@@ -129,7 +136,7 @@ def instrument(store: Store, text: str) -> Instrument:
 
 def inspector(store: Store, text: str) -> Inspector:
     """An inspector by name (any case) or id."""
-    found = store.select(Inspector, "lower(name) = lower(?)", [text.strip()])
+    found = inspectors_named(store, text.strip())
     if len(found) == 1:
         return found[0]
     return _named_or_id(store, Inspector, found, text, "--inspector", "name")
@@ -153,12 +160,12 @@ def earlier_open(store: Store, visit: Inspection, component: Component, text: st
         return by_id(store, Finding, text, "--same-as").id
     earlier = {
         i.id
-        for i in store.select(Inspection, "site_id = ?", [visit.site_id])
+        for i in site_inspections(store, visit.site_id)
         if (i.date, i.created_at) < (visit.date, visit.created_at)
     }
     found = [
         f
-        for f in store.select(Finding, "component_id = ? AND resolved_by IS NULL", [component.id])
+        for f in open_findings_of_component(store, component.id)
         if f.inspection_id in earlier and f.grade is not Grade.SOUND
     ]
     if len(found) != 1:

@@ -9,7 +9,12 @@ from pydantic import ValidationError
 
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, JsonOption, emit_json, fail, open_store
-from inspectkit.model import Inspector, Organisation, explain
+from inspectkit.model import Organisation, explain
+from inspectkit.store.record_queries import (
+    inspectors_by_name,
+    organisations_by_name,
+    organisations_named,
+)
 
 organisations_app = typer.Typer(
     help="Inspecting organisations: list, add, and say which one an inspector works for.",
@@ -28,9 +33,9 @@ def listing(ctx: typer.Context, db: DbOption = None, json_out: JsonOption = Fals
 
     with open_store(ctx, db) as store:
         ensure_default_organisation(store)
-        found = store.select(Organisation, order_by="is_default DESC, name")
+        found = organisations_by_name(store, default_first=True)
         members = {o.id: [] for o in found}
-        for inspector in store.select(Inspector, order_by="name"):
+        for inspector in inspectors_by_name(store):
             members.setdefault(inspector.organisation_id or "", []).append(inspector.name)
     if json_out:
         emit_json(
@@ -76,7 +81,7 @@ def join(
     """Say which organisation an inspector works for: its letterhead goes on their reports."""
     with open_store(ctx, db) as store:
         person = lookups.inspector(store, inspector)
-        found = store.select(Organisation, "lower(name) = lower(?)", [organisation.strip()])
+        found = organisations_named(store, organisation.strip())
         chosen = found[0] if len(found) == 1 else store.get(Organisation, organisation.strip())
         if chosen is None:
             fail(f"no organisation {organisation!r}; `inspectkit organisations` lists them")

@@ -23,7 +23,7 @@ from inspectkit.store import Store
 
 
 def _inspection(store: Store, inspection_id: str | None, site: str | None) -> Inspection:
-    from inspectkit.report.model import latest_inspection
+    from inspectkit.report.gather import latest_inspection
     from inspectkit.store.queries import find_site
 
     if inspection_id and site:
@@ -76,7 +76,7 @@ def report(
     """Write an inspection's PDF report; with --sign, sign it and freeze the inspection."""
     from inspectkit.profiles import ProfileError
     from inspectkit.report.branding import BrandingError
-    from inspectkit.report.model import ReportError
+    from inspectkit.report.gather import ReportError
     from inspectkit.report.publish import export_report
     from inspectkit.report.render import RenderError
     from inspectkit.report.sign import SignError

@@ -1,1 +1,1 @@
-"""Signed PDF inspection reports: the report model, rendering, signing and verification."""
+"""Signed PDF inspection reports: the content gathered, rendering, signing and verification."""

@@ -25,6 +25,7 @@ from inspectkit.model import (
     new_id,
 )
 from inspectkit.store import Store, StoreError
+from inspectkit.store.record_queries import inspection_records
 from inspectkit.units import format_value
 from inspectkit.wording import counted
 
@@ -66,10 +67,9 @@ def create_amendment(store: Store, inspection_id: str, today: date) -> Inspectio
         reconnection_note=original.reconnection_note,
         notes=original.notes,
     )
-    where = ("inspection_id = ?", [original.id])
     copies: list[Record] = [amendment]
     for model in (Reading, Finding, Photo, NotInspected):
-        for record in store.select(model, *where):
+        for record in inspection_records(store, model, original.id):
             copies.append(record.model_copy(update={"id": new_id(), "inspection_id": amendment.id}))
     store.save_all(copies)
     return amendment

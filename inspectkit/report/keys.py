@@ -80,6 +80,30 @@ def new_key(
         raise KeyProblem(f"{path} exists already; choose another file with -o")
     start = (now or dt.datetime.now(dt.UTC)).replace(microsecond=0)
     key = rsa.generate_private_key(public_exponent=65537, key_size=KEY_BITS)
+    certificate = _self_signed(key, start, name, organisation, qualification)
+    blob = pkcs12.serialize_key_and_certificates(
+        name.encode("utf-8"),
+        key,
+        certificate,
+        None,
+        serialization.BestAvailableEncryption(passphrase),
+    )
+    if not path.parent.exists():
+        private_folder(path.parent)
+    try:
+        write_private(path, blob, exclusive=True)
+    except FileExistsError:
+        raise KeyProblem(f"{path} exists already; choose another file with -o") from None
+    made = _describe(path, certificate)
+    trust(made.certificate_pem, "made on this machine")
+    return made
+
+
+def _self_signed(
+    key: rsa.RSAPrivateKey, start: dt.datetime, name: str, organisation: str, qualification: str
+) -> x509.Certificate:
+    """A certificate for signing documents only (not a CA, no encipherment), valid for
+    `VALID_DAYS` from five minutes before `start`."""
     attributes = [x509.NameAttribute(NameOID.COMMON_NAME, name)]
     if organisation:
         attributes.append(x509.NameAttribute(NameOID.ORGANIZATION_NAME, organisation))
@@ -112,22 +136,7 @@ def new_key(
         .add_extension(x509.SubjectKeyIdentifier.from_public_key(key.public_key()), critical=False)
         .sign(key, hashes.SHA256())
     )
-    blob = pkcs12.serialize_key_and_certificates(
-        name.encode("utf-8"),
-        key,
-        certificate,
-        None,
-        serialization.BestAvailableEncryption(passphrase),
-    )
-    if not path.parent.exists():
-        private_folder(path.parent)
-    try:
-        write_private(path, blob, exclusive=True)
-    except FileExistsError:
-        raise KeyProblem(f"{path} exists already; choose another file with -o") from None
-    made = _describe(path, certificate)
-    trust(made.certificate_pem, "made on this machine")
-    return made
+    return certificate
 
 
 def read_key(path: Path, passphrase: bytes) -> SigningKey:

@@ -13,6 +13,7 @@ from pathlib import Path
 from inspectkit.model import Inspection, Inspector, Organisation
 from inspectkit.report.branding import Branding, BrandingError, load_branding
 from inspectkit.store import Store
+from inspectkit.store.record_queries import default_organisation
 
 
 def ensure_default_organisation(store: Store) -> Organisation:
@@ -21,9 +22,9 @@ def ensure_default_organisation(store: Store) -> Organisation:
     Raises:
         BrandingError: the branding file cannot be read (only when it is needed).
     """
-    found = store.select(Organisation, "is_default = 1", [])
-    if found:
-        return found[0]
+    found = default_organisation(store)
+    if found is not None:
+        return found
     branding = load_branding()
     return store.save(
         Organisation(
@@ -45,8 +46,7 @@ def organisation_of(store: Store, inspector: Inspector | None) -> Organisation |
         own = store.get(Organisation, inspector.organisation_id)
         if own is not None:
             return own
-    found = store.select(Organisation, "is_default = 1", [])
-    return found[0] if found else None
+    return default_organisation(store)
 
 
 def branding_of(organisation: Organisation) -> Branding:

@@ -18,9 +18,9 @@ from typing import Any
 from inspectkit.model import Inspection, InspectionState, Inspector, utcnow
 from inspectkit.report.branding import Branding
 from inspectkit.report.content import ReportContent
+from inspectkit.report.gather import ReportError, build_report, revision_of
 from inspectkit.report.keys import KeyProblem, key_path, sign_payload
 from inspectkit.report.letterhead import report_branding
-from inspectkit.report.model import ReportError, build_report, revision_of
 from inspectkit.report.render import RenderedReport, render_report
 from inspectkit.report.sign import SignedReport, SignError, async_sign_pdf, sign_pdf
 from inspectkit.store import Store

@@ -26,6 +26,7 @@ from inspectkit.model import Inspection
 from inspectkit.report.sign import COVERED_KEY, quiet_pyhanko
 from inspectkit.store import Store
 from inspectkit.store.audit_key import stored_id
+from inspectkit.store.record_queries import audit_holds, inspections_with_report
 from inspectkit.store.seal import (
     covered_digests,
     differences,
@@ -238,12 +239,12 @@ def check_database(store: Store, data: bytes, sha256: str) -> DatabaseCheck:
     held = None
     # Only the database that signed holds that head; a copy received by bundle has its own log.
     if isinstance(head, str) and covered.get("database_id") == stored_id(store.db):
-        held = store.db.execute("SELECT 1 FROM audit WHERE hash = ?", [head]).fetchone() is not None
+        held = audit_holds(store, head)
     wrong = differences(covered["records"], now, part_labels(store, parts))
     return DatabaseCheck(record, wrong, held, True)
 
 
 def inspection_for_file(store: Store, sha256: str) -> Inspection | None:
     """The inspection whose signed report has exactly this hash."""
-    found = store.select(Inspection, "report_sha256 = ?", [sha256])
+    found = inspections_with_report(store, sha256)
     return found[0] if found else None

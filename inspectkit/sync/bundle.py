@@ -50,9 +50,9 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.store.audit_key import database_id
-from inspectkit.store.exchange import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.store.photos import photo_path
 from inspectkit.store.rows import to_row
+from inspectkit.store.sync_rows import DELETABLE, site_deletions, site_photo_hashes, site_rows
 from inspectkit.sync.guard import (
     DEFAULT_LIMITS,
     MANIFEST,

@@ -12,7 +12,7 @@ from typing import Any, TextIO
 
 from inspectkit.model import Quantity
 from inspectkit.store import Store
-from inspectkit.store.exchange import export_rows, site_positions
+from inspectkit.store.sync_rows import export_rows, site_positions
 
 READING_FIELDS = (
     "site", "inspection_date", "inspection_kind", "component_tag", "component_kind",

@@ -22,6 +22,7 @@ from inspectkit.geometry_model import GeometryItem, GeometryKind, box_footprint
 from inspectkit.model import Component, ComponentKind, Site, explain
 from inspectkit.store import Store
 from inspectkit.store.geometry import replace_site_geometry
+from inspectkit.store.record_queries import site_components
 
 #: The key holding each kind's points, and whether one point or a list.
 _POINTS_KEY = {
@@ -204,7 +205,7 @@ def import_geometry(store: Store, site: Site, path: Path) -> list[GeometryItem]:
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise GeometryFileError(f"{path}: cannot be read ({exc})") from None
-    components = store.select(Component, "site_id = ?", [site.id])
+    components = site_components(store, site.id)
     items = read_geometry(text, site, components)
     replace_site_geometry(store, site.id, items)
     return items

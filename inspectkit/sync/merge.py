@@ -51,9 +51,9 @@ from inspectkit.model import (
     Record,
 )
 from inspectkit.store import FrozenRecordError, Store
-from inspectkit.store.exchange import DELETABLE, deleted_here
 from inspectkit.store.photos import adopt_staged, photo_path, remove_unreferenced
 from inspectkit.store.rows import canonical
+from inspectkit.store.sync_rows import DELETABLE, deleted_here, inspection_part_ids
 from inspectkit.sync.bundle import REFERENCES, Bundle, reading_bundle
 from inspectkit.sync.guard import DEFAULT_LIMITS, BundleError, Limits, site_label
 from inspectkit.sync.signers import check_signed_inspections, untrusted_signers
@@ -393,9 +393,7 @@ def _holds_more(
     return any(
         (table, row_id) not in going
         for table in _PARTS
-        for (row_id,) in store.db.execute(
-            f"SELECT id FROM [{table}] WHERE inspection_id = ?", [inspection_id]
-        )
+        for row_id in inspection_part_ids(store, table, inspection_id)
     )
 
 

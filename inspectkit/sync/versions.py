@@ -14,8 +14,8 @@ from collections.abc import Sequence
 from typing import Any
 
 from inspectkit.store import Store
-from inspectkit.store.exchange import audit_versions
 from inspectkit.store.rows import canonical
+from inspectkit.store.sync_rows import audit_versions
 
 
 def version_hash(row: dict[str, Any]) -> str:

@@ -13,7 +13,7 @@ from textual.widgets import Footer, Header, Input, Label, SelectionList, Static
 
 from inspectkit.model import Inspection, InspectionState
 from inspectkit.report.content import ReportContent, text_sections
-from inspectkit.report.model import build_report
+from inspectkit.report.gather import build_report
 from inspectkit.report.publish import default_file_name
 
 #: Read when the passphrase field is left empty, as the command line does.
@@ -113,7 +113,7 @@ class ReportScreen(Screen[None]):
 
     async def _export(self, *, sign: bool) -> None:
         from inspectkit.report.branding import BrandingError
-        from inspectkit.report.model import ReportError
+        from inspectkit.report.gather import ReportError
         from inspectkit.report.publish import export_report_async
         from inspectkit.report.render import RenderError
         from inspectkit.report.sign import SignError

@@ -10,9 +10,10 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Label, Select, Static
 
-from inspectkit.model import Inspector, Instrument, Organisation, Record, Site
+from inspectkit.model import Inspector, Instrument, Record, Site
 from inspectkit.plan.settings import PlanSettingsError, load_plan_settings
 from inspectkit.retiring import in_service, retire
+from inspectkit.store.record_queries import organisations_by_name, sites_by_name
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.editors import inspector_dialog, instrument_dialog, profile_choices
@@ -115,7 +116,7 @@ class SettingsScreen(Screen[None]):
         self.query_one("#holidays", Static).update(holiday_text())
         table = self.profiles_table
         table.clear()
-        for site in store.select(Site, order_by="name COLLATE NOCASE"):
+        for site in sites_by_name(store):
             table.add_row(site.name, site.profile, key=site.id)
 
     def _fill(self, selector: str, options: list[tuple[str, str]], value: str | None) -> None:
@@ -198,7 +199,7 @@ class SettingsScreen(Screen[None]):
         self.app.push_screen(dialog, saved)  # type: ignore[arg-type]
 
     def action_add_inspector(self) -> None:
-        organisations = self.app.store.select(Organisation, order_by="name")
+        organisations = organisations_by_name(self.app.store)
         self._add(inspector_dialog(organisations), "inspector_id")
 
     def action_add_instrument(self) -> None:

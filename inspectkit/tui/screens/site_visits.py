@@ -10,6 +10,7 @@ from collections.abc import Callable
 from typing import TYPE_CHECKING
 
 from inspectkit.model import Inspection, InspectionKind, InspectionState, Inspector
+from inspectkit.retiring import in_service
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.walkdown import (
@@ -155,7 +156,7 @@ def latest_draft(screen: SiteScreen) -> Inspection | None:
 
 def _ask_inspector(screen: SiteScreen, question: str, then: Callable[[str], None]) -> bool:
     """Ask which inspector; False when there is none to choose from."""
-    people = screen.app.store.select(Inspector, "retired_on IS NULL", order_by="name")
+    people = in_service(screen.app.store, Inspector, "name")
     if not people:
         return False
 

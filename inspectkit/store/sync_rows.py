@@ -180,3 +180,13 @@ def deleted_here(store: Store, table: str, ids: Sequence[str]) -> set[str]:
             )
         )
     return found
+
+
+def inspection_part_ids(store: Store, table: str, inspection_id: str) -> list[str]:
+    """The ids of one inspection's rows in `table` (readings, findings, photos…)."""
+    return [
+        row_id
+        for (row_id,) in store.db.execute(
+            f"SELECT id FROM [{table}] WHERE inspection_id = ?", [inspection_id]
+        )
+    ]

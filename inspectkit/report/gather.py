@@ -14,6 +14,7 @@ from datetime import date, datetime, timedelta
 from inspectkit.engine.check import check_site
 from inspectkit.engine.conformity import assess
 from inspectkit.engine.history import as_of, calibration_lapsed, usable
+from inspectkit.engine.schedule import SiteSchedule
 from inspectkit.engine.trend import YEAR_DAYS, ElectrodeTrend
 from inspectkit.model import (
     WALKING_ORDER,
@@ -46,6 +47,7 @@ from inspectkit.report.letterhead import organisation_of
 from inspectkit.report.readings import RESULT_WORDS, reading_rows, soil_words
 from inspectkit.store import Store, StoreError
 from inspectkit.store.queries import load_site_records
+from inspectkit.store.record_queries import site_inspections
 
 
 class ReportError(StoreError):
@@ -352,42 +354,11 @@ def build_report(
     readings = reading_rows(inspection, records, check, profile, components)
     seen = visit_findings(store, inspection, records, components)
     findings = seen.to_act_on
-    trends = tuple(
-        chart for chart in (_trend_chart(t, records) for t in check.trends) if chart is not None
-    )
     revision_label = _revision_label(inspection, signing)
     verdict_word, verdict = _VERDICTS[check.worst]
     to_do = actions(check)
-    amends_text = ""
-    changes: tuple[str, ...] = ()
-    earlier = chain_of(store, inspection)
-    if earlier:
-        original = earlier[0]
-        amends_text = (
-            f"This report amends the signed report of inspection {original.id} of "
-            f"{original.date.isoformat()} (revision {revision_of(original)}"
-            + (f", sha256 {original.report_sha256}" if original.report_sha256 else "")
-            + "), which it replaces."
-        )
-        changes = tuple(
-            describe_changes(
-                _parts(all_records, original.id), _parts(all_records, inspection.id), components
-            )
-        ) or ("No reading, finding or photo was changed.",)
+    amends_text, changes = _amendment(store, inspection, all_records, components)
     visit_readings = [r for r in records.readings if r.inspection_id == inspection.id]
-    inspection_fields = [
-        Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
-        Field("Inspector", inspector.name if inspector else "not recorded"),
-        Field("Qualification", inspector.qualification if inspector else ""),
-        Field("Organisation", org_name),
-        Field("Accompanied by", inspection.accompanied_by),
-        Field("Weather", inspection.weather),
-        Field("Soil", soil_words(inspection, visit_readings)),
-        *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
-        *([Field("Test joints", joints)] if (joints := _reconnection(inspection)) else []),
-        Field("Report", revision_label),
-        Field("Inspection id", inspection.id),
-    ]
     return ReportContent(
         title=_KIND_TITLES[inspection.kind],
         site_name=site.name,
@@ -399,7 +370,9 @@ def build_report(
         headline=headline(to_do, readings, findings, seen.sound),
         site=_general(site),
         structure=_structure(records, profile, inspection.date),
-        inspection=tuple(inspection_fields),
+        inspection=_inspection_fields(
+            inspection, inspector, org_name, revision_label, visit_readings
+        ),
         instruments=_instruments(inspection, records),
         readings=readings,
         findings=findings,
@@ -407,16 +380,8 @@ def build_report(
             Notice(RESULT_WORDS[r.severity], r.component_tag or "site", r.message)
             for r in check.results
         ),
-        trends=trends,
-        schedule=(
-            Field(
-                "Intervals",
-                f"visual every {check.schedule.visual_months} months, complete "
-                f"every {check.schedule.complete_months} months ({check.schedule.interval_basis})",
-            ),
-            Field("Next visual inspection", check.schedule.next_visual.isoformat()),
-            Field("Next complete inspection", check.schedule.next_complete.isoformat()),
-        ),
+        trends=tuple(c for t in check.trends if (c := _trend_chart(t, records)) is not None),
+        schedule=_schedule(check.schedule),
         not_inspected=inspection.not_inspected,
         not_inspected_parts=_not_inspected_parts(inspection, records, components),
         changes_since_last=inspection.changes_since_last,
@@ -432,6 +397,63 @@ def build_report(
         legend=legend(),
         roof_plan=_roof_plan(records),
         earthing=earthing_report(records, profile, inspection.date, inspection.id),
+    )
+
+
+def _amendment(
+    store: Store, inspection: Inspection, all_records: SiteRecords, components: dict[str, Component]
+) -> tuple[str, tuple[str, ...]]:
+    """What an amendment says of the signed report it replaces, and what it changed;
+    empty for an original inspection."""
+    earlier = chain_of(store, inspection)
+    if not earlier:
+        return "", ()
+    original = earlier[0]
+    amends_text = (
+        f"This report amends the signed report of inspection {original.id} of "
+        f"{original.date.isoformat()} (revision {revision_of(original)}"
+        + (f", sha256 {original.report_sha256}" if original.report_sha256 else "")
+        + "), which it replaces."
+    )
+    changes = tuple(
+        describe_changes(
+            _parts(all_records, original.id), _parts(all_records, inspection.id), components
+        )
+    ) or ("No reading, finding or photo was changed.",)
+    return amends_text, changes
+
+
+def _inspection_fields(
+    inspection: Inspection,
+    inspector: Inspector | None,
+    org_name: str,
+    revision_label: str,
+    visit_readings: list[Reading],
+) -> tuple[Field, ...]:
+    return (
+        Field("Inspection", f"{_words(inspection.kind.value)}, {inspection.date.isoformat()}"),
+        Field("Inspector", inspector.name if inspector else "not recorded"),
+        Field("Qualification", inspector.qualification if inspector else ""),
+        Field("Organisation", org_name),
+        Field("Accompanied by", inspection.accompanied_by),
+        Field("Weather", inspection.weather),
+        Field("Soil", soil_words(inspection, visit_readings)),
+        *([Field("Notes", inspection.notes)] if inspection.notes.strip() else []),
+        *([Field("Test joints", joints)] if (joints := _reconnection(inspection)) else []),
+        Field("Report", revision_label),
+        Field("Inspection id", inspection.id),
+    )
+
+
+def _schedule(schedule: SiteSchedule) -> tuple[Field, ...]:
+    return (
+        Field(
+            "Intervals",
+            f"visual every {schedule.visual_months} months, complete "
+            f"every {schedule.complete_months} months ({schedule.interval_basis})",
+        ),
+        Field("Next visual inspection", schedule.next_visual.isoformat()),
+        Field("Next complete inspection", schedule.next_complete.isoformat()),
     )
 
 
@@ -454,7 +476,5 @@ def _parts(
 
 def latest_inspection(store: Store, site_id: str) -> Inspection | None:
     """A site's most recent inspection (by date, then by when it was recorded)."""
-    found = store.select(
-        Inspection, "site_id = ?", [site_id], order_by="date DESC, created_at DESC"
-    )
+    found = site_inspections(store, site_id)
     return found[0] if found else None
