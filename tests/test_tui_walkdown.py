@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import asyncio
 from collections.abc import AsyncIterator
 from contextlib import asynccontextmanager
 from datetime import UTC, date, datetime, timedelta
@@ -39,7 +40,7 @@ from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
-from inspectkit.tui.widgets.reading_entry import ReadingEntry
+from inspectkit.tui.widgets.reading_entry import ReadingEntry, entry_label
 from inspectkit.tui.widgets.saving_field import SavingField
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
 from inspectkit.walkdown import (
@@ -612,3 +613,62 @@ async def test_the_command_palette_opens_the_visit_details(walk_db: tuple[Path, 
         hit.command()
         await pilot.pause()
         assert isinstance(app.screen, VisitDetailsDialog)
+
+
+# ------------------------------------------------------- what frames a move
+
+
+def frame_shown(screen: WalkdownScreen) -> list[str]:
+    """What in the frame of the fields disagrees with the component they show."""
+    stop, pane = screen.stop, screen.pane
+    wrong = []
+    if not str(pane.query_one("#heading", Static).render()).startswith(stop.component.tag):
+        wrong.append("heading")
+    if screen.stop_list.highlighted != screen.index:
+        wrong.append("list highlight")
+    if not str(screen.query_one("#where", Static).render()).startswith(f" {screen.index + 1} of"):
+        wrong.append("position")
+    for entry in pane.entries:
+        if entry.label != entry_label(entry.quantity):
+            wrong.append(f"label of {entry.quantity.label}")
+    return wrong
+
+
+async def test_no_repaint_shows_fields_under_another_components_frame(
+    walk_db: tuple[Path, str],
+) -> None:
+    """The heading, labels, list and position follow a move just after the keys sent with
+    it, with repaints held until then: every painted screen agrees with itself."""
+    async with walking(walk_db) as (app, pilot, screen):
+        painted: list[list[str]] = []
+        refresh = screen._compositor_refresh
+
+        def checked_refresh() -> None:
+            painted.append(frame_shown(screen))
+            refresh()
+
+        screen._compositor_refresh = checked_refresh  # type: ignore[method-assign]
+        frame = screen._frame
+
+        async def late_frame() -> None:
+            await asyncio.sleep(0.05)  # the repaint timer (1/60 s) fires first, as under load
+            frame()
+
+        screen._frame = late_frame  # type: ignore[method-assign]
+        for _ in range(len(screen.stops) - 1):
+            await pilot.press("pagedown", "7", "backspace")
+        await pilot.pause()
+        assert painted, "the walk was never painted"
+        assert all(not wrong for wrong in painted), [w for w in painted if w]
+        assert frame_shown(screen) == []
+        assert screen.index == len(screen.stops) - 1
+
+
+async def test_leaving_at_once_after_a_move_does_not_hold_repaints(
+    walk_db: tuple[Path, str],
+) -> None:
+    async with walking(walk_db) as (app, pilot, screen):
+        await pilot.press("pagedown", "escape")
+        await pilot.pause()
+        assert app.screen is not screen
+        assert app._batch_count == 0  # repaints are not left held by the move

@@ -30,6 +30,7 @@ from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.geometry import edit_geometry, geometry_for
 from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
+from inspectkit.tui.widgets.held_paint import HeldPaint
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.tui.widgets.steady_footer import SteadyFooter
 from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
@@ -191,6 +192,8 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
         self._finished = False
         #: What `keep_typing` last kept: the unsaved texts and the component in view.
         self._kept: tuple[dict[tuple[str, str], str], str] = ({}, "")
+        #: Repaints held from a move until what frames its fields is shown (`_frame_later`).
+        self._framing = HeldPaint()
 
     # ------------------------------------------------------------ accessors
 
@@ -348,11 +351,44 @@ class WalkdownScreen(WalkdownEarthing, Screen[None]):
         if self.pane.component_id:
             self.keep_unsaved()
         self.index = max(0, min(index, len(self.stops) - 1))
-        self.stop_list.highlighted = self.index
         self.pane.show(self._view(self.stop))
-        self._show_where()
         if focus_entry:
             self.set_focus(self.pane.first_field(), scroll_visible=False)
+        self._frame_later()
+
+    def _frame_later(self) -> None:
+        """Show what frames the fields (heading, list highlight, position) once the keys
+        already sent have reached the field in focus, and paint nothing until then.
+
+        Those keys wait in the app's queue: a callback queued there behind them, which
+        queues another behind them at the field they went to, runs after the field took
+        them. Repaints are held (`App.batch_update`) so the screen never shows one
+        component's fields under another's heading; `on_unmount` lets go if it must.
+        """
+        if self._framing.is_pending:
+            return
+        self._framing.hold(self.app.batch_update())
+
+        def behind_the_keys() -> None:
+            # Only a field of this screen: a dialog's may close before it runs the callback.
+            focused = self.app.focused
+            if focused is None or focused.screen is not self or not focused.call_later(self._frame):
+                self._frame()
+
+        if not self.app.call_later(behind_the_keys):
+            self._frame()
+
+    def _frame(self) -> None:
+        try:
+            if self.is_attached and self.stops:
+                self.stop_list.highlighted = self.index
+                self.pane.show_around(self._view(self.stop))
+                self._show_where()
+        finally:
+            self._framing.release()
+
+    def on_unmount(self) -> None:
+        self._framing.release()
 
     def _view(self, stop: Stop) -> StopView:
         cid = stop.component.id

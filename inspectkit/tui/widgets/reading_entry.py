@@ -208,10 +208,10 @@ class ReadingEntry(SavingField):
         super().load(saved, status, typed=typed)
 
     def _measure(self, quantity: Quantity) -> None:
-        """Make the entry one for another quantity: label, example and methods."""
+        """Make the entry one for another quantity: example and methods (`show_label` then
+        says which, once the keys sent have come in: the label takes none)."""
         before = self._lists.get(method_options(self.quantity))
         self.quantity = quantity
-        self.set_label(entry_label(quantity))
         self.input.placeholder = PLACEHOLDERS[quantity]
         after = self._lists.get(method_options(quantity))
         if after is not before:
@@ -219,6 +219,9 @@ class ReadingEntry(SavingField):
                 before.display = False
             if after is not None:
                 after.display = True
+
+    def show_label(self) -> None:
+        self.set_label(entry_label(self.quantity))
 
     def _show_choices(self) -> None:
         select = self.method_select

@@ -179,13 +179,12 @@ class StopPane(VerticalScroll):
             self.query_one(selector, Static).update(content)
 
     def show(self, view: StopView) -> None:
-        """Show another component in the same widgets, in one step (nothing is awaited)."""
+        """Show another component's fields in the same widgets, in one step (nothing is
+        awaited); `show_around` then shows what frames them."""
         stop = view.stop
         component = stop.component
         self.component_id = component.id
         self._quantities = stop.quantities
-        self._update("#heading", heading_text(stop, view.parent_tag))
-        self._update("#checklist", checklist_text(component.kind))
         for slot, entry in enumerate(self._slots()):
             used = slot < len(stop.quantities)
             if entry.display != used:
@@ -199,12 +198,21 @@ class StopPane(VerticalScroll):
                     view.choices.get(quantity),
                     view.typed.get(f"q-{quantity.value}"),
                 )
-        self._traverse.show_outcomes(view.outcomes)
         typed = {key.removeprefix("finding-"): view.typed[key] for key in FINDING_FIELDS
                  if key in view.typed}  # fmt: skip
         self.finding.load(component.id, view.finding, typed)
-        photo = self.photo
-        photo.set_label(photo_label(view.photos))
-        photo.load("", typed=view.typed.get("photo"))
+        self.photo.load("", typed=view.typed.get("photo"))
         if self.scroll_y:
             self.scroll_home(animate=False, immediate=True)
+
+    def show_around(self, view: StopView) -> None:
+        """What frames the fields of `view`: the heading, the checklist, the entries' labels,
+        the traverse drawn and the photo count. Nothing here takes a key, so the walkdown
+        shows it just after the fields (`WalkdownScreen.move_now`), before any repaint."""
+        stop = view.stop
+        for entry in self.entries:
+            entry.show_label()
+        self._update("#heading", heading_text(stop, view.parent_tag))
+        self._update("#checklist", checklist_text(stop.component.kind))
+        self._traverse.show_outcomes(view.outcomes)
+        self.photo.set_label(photo_label(view.photos))
