@@ -277,6 +277,16 @@ METHODS_FOR: dict[Quantity, frozenset[Method]] = {
     Quantity.STRIKE_COUNT: frozenset({Method.COUNTER_READ}),
 }
 
+#: The method assumed when none is chosen: the one most instruments in the trade use.
+DEFAULT_METHOD: dict[Quantity, Method] = {
+    Quantity.EARTH_ISOLATED: Method.FALL_OF_POTENTIAL_3P,
+    Quantity.EARTH_COMBINED: Method.FALL_OF_POTENTIAL_3P,
+    Quantity.CONTINUITY: Method.LOW_OHM_4W,
+    Quantity.BONDING: Method.LOW_OHM_4W,
+    Quantity.SOIL_RESISTIVITY: Method.WENNER,
+    Quantity.STRIKE_COUNT: Method.COUNTER_READ,
+}
+
 
 class InstrumentKind(StrEnum):
     """What sort of test instrument it is; each kind measures its own quantities."""
@@ -349,6 +359,13 @@ class JointState(StrEnum):
 
     OPEN = "open"
     CLOSED = "closed"
+
+
+#: The joint state an earth reading implies: isolated means the joint was opened.
+JOINT_FOR: dict[Quantity, JointState] = {
+    Quantity.EARTH_ISOLATED: JointState.OPEN,
+    Quantity.EARTH_COMBINED: JointState.CLOSED,
+}
 
 
 #: What can be measured on each kind of component, in entry order. Soil resistivity is

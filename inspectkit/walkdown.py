@@ -26,8 +26,10 @@ from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
 from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
+    DEFAULT_METHOD,
     INSTRUMENT_METHODS,
     INSTRUMENT_QUANTITIES,
+    JOINT_FOR,
     QUANTITIES_FOR,
     WALKING_ORDER,
     Component,
@@ -59,22 +61,6 @@ from inspectkit.store import FrozenRecordError, Store, StoreError, drafts
 from inspectkit.store.photos import attach_photo, file_sha256, read_exif, remove_unreferenced
 from inspectkit.store.preferences import INSTRUMENT_SETTING
 from inspectkit.units import Measured, UnitError, format_value, parse
-
-#: The method assumed when none is chosen: the one most instruments in the trade use.
-DEFAULT_METHOD: dict[Quantity, Method] = {
-    Quantity.EARTH_ISOLATED: Method.FALL_OF_POTENTIAL_3P,
-    Quantity.EARTH_COMBINED: Method.FALL_OF_POTENTIAL_3P,
-    Quantity.CONTINUITY: Method.LOW_OHM_4W,
-    Quantity.BONDING: Method.LOW_OHM_4W,
-    Quantity.SOIL_RESISTIVITY: Method.WENNER,
-    Quantity.STRIKE_COUNT: Method.COUNTER_READ,
-}
-
-#: The joint state an earth reading implies: isolated means the joint was opened.
-JOINT_FOR: dict[Quantity, JointState] = {
-    Quantity.EARTH_ISOLATED: JointState.OPEN,
-    Quantity.EARTH_COMBINED: JointState.CLOSED,
-}
 
 #: Kinds walked under their parent (a down conductor's test joint, a joint's electrode).
 _NESTED_KINDS = frozenset({ComponentKind.TEST_JOINT, ComponentKind.EARTH_ELECTRODE})

@@ -17,6 +17,8 @@ from inspectkit.earthing_input import parse_traverse
 from inspectkit.earthing_values import Traverse
 from inspectkit.intake import ReadingRefused, reading_window, set_reading_window
 from inspectkit.model import (
+    DEFAULT_METHOD,
+    JOINT_FOR,
     METHODS_FOR,
     Grade,
     Method,
@@ -29,8 +31,6 @@ from inspectkit.repeats import RepeatError, mark_repeat
 from inspectkit.store.record_queries import site_components
 from inspectkit.units import UnitError, format_value
 from inspectkit.walkdown import (
-    DEFAULT_METHOD,
-    JOINT_FOR,
     ReadingOutcome,
     WalkdownError,
     attach_photos,

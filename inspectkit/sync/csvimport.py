@@ -26,12 +26,12 @@ from inspectkit.earthing_values import Traverse
 from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import traverse_reading
 from inspectkit.model import (
+    JOINT_FOR,
     METHODS_FOR,
     Component,
     Inspection,
     InspectionState,
     Instrument,
-    JointState,
     Method,
     Quantity,
     Reading,
@@ -45,10 +45,6 @@ FIELDS = ("tag", "value", "taken_at", "unit", "quantity", "method", "joint_state
           "traverse", "current_probe")  # fmt: skip
 REQUIRED = ("tag", "value", "taken_at")
 _BARE_NUMBER = re.compile(r">?\s*\+?[\d.,]+(?:[eE][+-]?\d+)?")
-
-#: With the joint state not in the file, an isolated-electrode reading was taken with
-#: the test joint open and a combined one with it closed (by definition of the two).
-_JOINT_FOR = {Quantity.EARTH_ISOLATED: JointState.OPEN, Quantity.EARTH_COMBINED: JointState.CLOSED}
 
 
 class CsvImportError(Exception):
@@ -362,7 +358,7 @@ class _RowReader:
             "value": measured.value,
             "over_range": measured.over_range,
             "method": self.cell(cells, "method") or self.options.method or _only_method(quantity),
-            "joint_state": self.cell(cells, "joint_state") or _JOINT_FOR.get(quantity),
+            "joint_state": self.cell(cells, "joint_state") or JOINT_FOR.get(quantity),
             "taken_at": self._taken_at(cells),
             "instrument_id": self.options.instrument_id,
             "soil": self.inspection.soil,

@@ -16,6 +16,7 @@ from textual.widgets.option_list import Option
 
 from inspectkit.earthing_values import Traverse
 from inspectkit.model import (
+    JOINT_FOR,
     Finding,
     Grade,
     Inspection,
@@ -40,7 +41,6 @@ from inspectkit.tui.widgets.walk_bar import WalkBar
 from inspectkit.tui.widgets.walkdown_earthing import EARTHING_BINDINGS, WalkdownEarthing
 from inspectkit.units import format_value
 from inspectkit.walkdown import (
-    JOINT_FOR,
     Missing,
     ReadingOutcome,
     SavedEntries,

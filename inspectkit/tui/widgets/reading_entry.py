@@ -11,11 +11,19 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.widgets import Checkbox, Label, Select, Static
 
-from inspectkit.model import METHODS_FOR, JointState, Method, Quantity, Severity
+from inspectkit.model import (
+    DEFAULT_METHOD,
+    JOINT_FOR,
+    METHODS_FOR,
+    JointState,
+    Method,
+    Quantity,
+    Severity,
+)
 from inspectkit.tui.widgets.held_keys import PickList, ShownCheckbox
 from inspectkit.tui.widgets.saving_field import SAVED, SavingField
 from inspectkit.units import format_value
-from inspectkit.walkdown import DEFAULT_METHOD, JOINT_FOR, ReadingOutcome, WalkdownError
+from inspectkit.walkdown import ReadingOutcome, WalkdownError
 
 #: Saves, for a component and quantity, the text typed with the method chosen and whether
 #: it is doubtful, and judges it.
