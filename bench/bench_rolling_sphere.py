@@ -39,8 +39,8 @@ from inspectkit.engine.rolling_sphere import (
     envelope_height,
     segment_distances,
 )
-from inspectkit.geometry_model import GeometryItem, box_footprint
 from inspectkit.model import ProtectionLevel, Site
+from inspectkit.model.geometry import GeometryItem, box_footprint
 
 LEVEL = ProtectionLevel.III
 ROOF_Z = 12.0

@@ -16,8 +16,8 @@ from inspectkit.engine.earthing import (
     striking_distance_m,
 )
 from inspectkit.engine.lps_layout import Layout, mesh_cells
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import ProtectionLevel, Severity, Site, SiteRecords
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.profiles import load_all_profiles
 
 I, II, III, IV = tuple(ProtectionLevel)  # noqa: E741 - the standard's own names

@@ -10,8 +10,8 @@ import sqlite_utils
 from typer.testing import CliRunner
 
 from inspectkit.cli import app
-from inspectkit.geometry_model import GeometryItem, GeometryKind, box_footprint
-from inspectkit.model import Component, Site
+from inspectkit.model import Component, GeometryKind, Site
+from inspectkit.model.geometry import GeometryItem, box_footprint
 from inspectkit.store import Store, StoreError
 from inspectkit.store.database import apply_migrations
 from inspectkit.store.geometry import save_geometry_item, site_geometry

@@ -9,8 +9,8 @@ from pathlib import Path
 from textual.widgets import Checkbox, DataTable, Input, Select, Static, TabbedContent
 from tui_factories import ANCHOR, settled, tui_db  # noqa: F401
 
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import Component, Site
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.store import Store
 from inspectkit.store.geometry import site_geometry
 from inspectkit.tui.app import make_app

@@ -8,7 +8,7 @@ from pathlib import Path
 from textual.notifications import Notify
 from textual.widgets import Checkbox, Input
 
-from inspectkit.geometry_model import GeometryItem
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.store import Store
 from inspectkit.store.geometry import save_geometry_item, site_geometry
 from inspectkit.tui.dialogs.geometry import GeometryDialog

@@ -6,8 +6,8 @@ import uuid
 from collections.abc import Sequence
 from typing import Any
 
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import Component, Site
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.paths import demo_dir
 from inspectkit.sync.geometry_file import GeometryFileError, read_geometry
 

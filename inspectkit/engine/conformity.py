@@ -46,8 +46,8 @@ from inspectkit.engine.rolling_sphere import (
     polygon_distance,
     rod_height_to_cover,
 )
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import ProtectionLevel, Severity, Site
+from inspectkit.model.geometry import GeometryItem
 
 if TYPE_CHECKING:
     from inspectkit.engine.rules import SiteFacts

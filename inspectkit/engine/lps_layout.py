@@ -22,7 +22,8 @@ from inspectkit.engine.rolling_sphere import (
     polygon_distance,
     segment_distances,
 )
-from inspectkit.geometry_model import GeometryItem, GeometryKind
+from inspectkit.model import GeometryKind
+from inspectkit.model.geometry import GeometryItem
 
 #: Conductors this close count as joined at a clamp (our default).
 JOIN_M = 0.3

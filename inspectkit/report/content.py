@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING
 
 from inspectkit.cautions import CAUTIONS
 from inspectkit.engine.conformity import Conformity
-from inspectkit.geometry_model import GeometryItem
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.wording import counted
 
 if TYPE_CHECKING:

@@ -22,8 +22,8 @@ from reportlab.platypus import CondPageBreak, Flowable, Paragraph, Spacer, Table
 from inspectkit.engine.conformity import Verdict
 from inspectkit.engine.lps_layout import Layout
 from inspectkit.engine.rolling_sphere import protected_radius
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import Severity
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.report.content import ReportContent, RoofPlan
 from inspectkit.report.layout import Kit
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from inspectkit.geometry_model import GeometryItem
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.store.database import Store, StoreError
 
 #: The order geometry is listed in: roofs first, then the LPS, then what it protects.

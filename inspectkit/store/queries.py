@@ -13,7 +13,6 @@ from typing import Any, get_args
 
 from pydantic import BaseModel
 
-from inspectkit.geometry_model import GeometryItem
 from inspectkit.model import (
     Component,
     Finding,
@@ -27,6 +26,7 @@ from inspectkit.model import (
     SiteRecords,
     SoilSurvey,
 )
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.store.database import Store, StoreError
 from inspectkit.store.geometry import site_geometry
 from inspectkit.store.rows import from_row

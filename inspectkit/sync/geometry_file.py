@@ -18,8 +18,8 @@ from typing import Any
 from pydantic import ValidationError
 
 from inspectkit.engine.lps_layout import Layout, on_outline
-from inspectkit.geometry_model import GeometryItem, GeometryKind, box_footprint
-from inspectkit.model import Component, ComponentKind, Site, explain
+from inspectkit.model import Component, ComponentKind, GeometryKind, Site, explain
+from inspectkit.model.geometry import GeometryItem, box_footprint
 from inspectkit.store import Store
 from inspectkit.store.geometry import replace_site_geometry
 from inspectkit.store.record_queries import site_components

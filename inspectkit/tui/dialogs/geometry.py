@@ -8,8 +8,8 @@ from typing import Any
 from textual.screen import Screen
 
 from inspectkit.engine.conformity import assess
-from inspectkit.geometry_model import HEIGHT_OF, POINTS_OF, Between, GeometryItem, GeometryKind
-from inspectkit.model import Component, ComponentKind
+from inspectkit.model import Between, Component, ComponentKind, GeometryKind
+from inspectkit.model.geometry import HEIGHT_OF, POINTS_OF, GeometryItem
 from inspectkit.store import Store, StoreError
 from inspectkit.store.geometry import save_geometry_item, site_geometry
 from inspectkit.store.queries import load_site_records

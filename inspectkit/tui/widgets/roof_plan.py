@@ -19,8 +19,8 @@ from textual.widget import Widget
 from textual.widgets import DataTable, Static
 
 from inspectkit.engine.conformity import Conformity, assess
-from inspectkit.geometry_model import GeometryItem, GeometryKind
-from inspectkit.model import SiteRecords
+from inspectkit.model import GeometryKind, SiteRecords
+from inspectkit.model.geometry import GeometryItem
 from inspectkit.store.geometry import delete_geometry_item
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.geometry import edit_geometry

@@ -12,13 +12,13 @@ from __future__ import annotations
 
 import json
 import math
-from enum import StrEnum
 from typing import Any, ClassVar
 
 from pydantic import Field, field_serializer, field_validator, model_validator
 
-from inspectkit import model as _model
-from inspectkit.model import Record, SiteRecords, _enum_or_hint
+from inspectkit.model.record import Record, enum_field, tag_field
+from inspectkit.model.terms import Between, GeometryKind
+from inspectkit.wording import with_article
 
 #: Coordinates beyond this many metres from the site's origin are typing slips (our default).
 MAX_COORDINATE_M = 10_000.0
@@ -26,20 +26,6 @@ MAX_COORDINATE_M = 10_000.0
 MAX_HEIGHT_M = 1_000.0
 
 Point = tuple[float, float]
-
-
-class GeometryKind(StrEnum):
-    """What a geometry record draws, in the trade's terms."""
-
-    ROOF = "roof"
-    AIR_TERMINAL = "air_terminal"
-    AIR_CONDUCTOR = "air_conductor"
-    DOWN_CONDUCTOR = "down_conductor"
-    ROOFTOP_ITEM = "rooftop_item"
-
-    @property
-    def label(self) -> str:
-        return self.value.replace("_", " ")
 
 
 #: How many points each kind takes: (least, most), and what they are.
@@ -59,13 +45,6 @@ HEIGHT_OF: dict[GeometryKind, str] = {
     GeometryKind.DOWN_CONDUCTOR: "the top of the down conductor above ground",
     GeometryKind.ROOFTOP_ITEM: "the top of the item above ground",
 }
-
-
-class Between(StrEnum):
-    """What lies between a rooftop item and the nearest LPS conductor (km of IEC 62305-3)."""
-
-    AIR = "air"
-    SOLID = "solid"
 
 
 class GeometryItem(Record):
@@ -96,23 +75,9 @@ class GeometryItem(Record):
     #: Anything worth knowing, e.g. "added since the last visit".
     note: str = Field(default="", max_length=500)
 
-    @field_validator("kind", mode="before")
-    @classmethod
-    def _kind(cls, value: Any) -> Any:
-        return _enum_or_hint(value, GeometryKind, "geometry kind")
-
-    @field_validator("separated_by", mode="before")
-    @classmethod
-    def _between(cls, value: Any) -> Any:
-        return _enum_or_hint(value, Between, "material between item and conductor")
-
-    @field_validator("tag")
-    @classmethod
-    def _tag(cls, value: str) -> str:
-        value = value.strip().upper()
-        if not value:
-            raise ValueError("must not be blank; type the tag painted on site, e.g. AT-03")
-        return value
+    _kind = enum_field("kind", GeometryKind, "geometry kind")
+    _between = enum_field("separated_by", Between, "material between item and conductor")
+    _tag = tag_field("AT-03")
 
     @field_validator("points", mode="before")
     @classmethod
@@ -160,8 +125,7 @@ class GeometryItem(Record):
         if n < least or (most is not None and n > most):
             count = f"exactly {least}" if least == most else f"at least {least}"
             raise ValueError(
-                f"points: {_article(self.kind.label)} {self.kind.label} takes {count} "
-                f"point(s) ({what}); got {n}"
+                f"points: {with_article(self.kind.label)} takes {count} point(s) ({what}); got {n}"
             )
         if self.kind is not GeometryKind.ROOFTOP_ITEM and (
             self.conductive or self.bonded or self.clearance_m is not None
@@ -213,10 +177,6 @@ def box_footprint(centre: Point, size: tuple[float, float], angle_deg: float = 0
     return [(cx + c * x - s * y, cy + s * x + c * y) for x, y in corners]
 
 
-def _article(word: str) -> str:
-    return "an" if word[:1] in "aeiou" else "a"
-
-
 def _area(points: tuple[Point, ...]) -> float:
     """Area of a polygon by the shoelace formula (absolute value)."""
     n = len(points)
@@ -225,12 +185,3 @@ def _area(points: tuple[Point, ...]) -> float:
         for i in range(n)
     )
     return abs(twice) / 2
-
-
-SiteRecords.model_rebuild(_types_namespace={"GeometryItem": GeometryItem})
-
-# A record type like the others, registered where `model` lists them, so that bundles
-# carry a site's geometry and the audit check walks its table. Done here, once this
-# class exists, whichever of the two modules was imported first.
-_model.RECORD_TYPES = (*_model.RECORD_TYPES, GeometryItem)
-_model.MODEL_FOR_TABLE[GeometryItem.table] = GeometryItem
