@@ -27,7 +27,7 @@ from inspectkit.model import (
 
 if TYPE_CHECKING:
     from inspectkit.demo.scenario import EarthingSpec, SurveySpec
-    from inspectkit.demo.visits import SiteHistory
+    from inspectkit.demo.site_history import SiteHistory
 
 #: Where the potential probe goes along a demo traverse, as fractions of E–C.
 TRAVERSE_FRACTIONS = (0.1, 0.2, 0.3, 0.4, 0.52, 0.618, 0.72, 0.8, 0.9)
@@ -78,7 +78,7 @@ def _traverses(
 ) -> None:
     by_tag = {c.id: c for c in history.system.components}
     wanted = {history.system.tagged(tag).id for tag in spec.traverse}
-    for n, reading in enumerate(history.readings):
+    for n, reading in enumerate(history.measurements.readings):
         if (
             reading.inspection_id != inspection_id
             or reading.component_id not in wanted
@@ -92,7 +92,7 @@ def _traverses(
             spec.current_probe_m,
         )  # fmt: skip
         value = plateau_check(traverse.points, traverse.current_probe_m).resistance_ohm
-        history.readings[n] = reading.model_copy(
+        history.measurements.readings[n] = reading.model_copy(
             update={"traverse": traverse.to_text(), "value": float(f"{value:.4g}")}
         )
 

@@ -17,9 +17,10 @@ from typing import Any
 
 from dateutil.relativedelta import relativedelta
 
+from inspectkit.demo.context import DEMO_USER, DemoContext, DemoRecords, Shot, stamps
 from inspectkit.demo.photos import draw_photo
 from inspectkit.demo.scenario import Scenario, load_scenario
-from inspectkit.demo.visits import DEMO_USER, DemoContext, DemoRecords, Shot, SiteHistory, stamps
+from inspectkit.demo.site_history import SiteHistory
 from inspectkit.model import Inspector, Instrument, InstrumentKind, Organisation, Photo
 from inspectkit.plan.geo import parse_point
 from inspectkit.plan.planner import save_depot
