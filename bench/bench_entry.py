@@ -39,12 +39,9 @@ from inspectkit.model import (  # noqa: E402
 from inspectkit.store import Store  # noqa: E402
 from inspectkit.store.database import BUSY_TIMEOUT_MS  # noqa: E402
 from inspectkit.store.rows import to_row  # noqa: E402
-from inspectkit.walkdown import (  # noqa: E402
-    record_reading,
-    site_context,
-    start_inspection,
-    walk_for,
-)
+from inspectkit.walkdown.judging import site_context  # noqa: E402
+from inspectkit.walkdown.readings import record_reading  # noqa: E402
+from inspectkit.walkdown.visit import start_inspection, walk_for  # noqa: E402
 from tests.walkdown_factories import build_walk_site  # noqa: E402
 
 

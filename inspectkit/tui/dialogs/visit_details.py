@@ -6,7 +6,8 @@ from collections.abc import Callable
 
 from inspectkit.model import Inspection
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
-from inspectkit.walkdown import DETAIL_LABELS, WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.visit import DETAIL_LABELS
 
 #: What to type in each detail, shown as the placeholder and after a refusal.
 _HINTS = {
