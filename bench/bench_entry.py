@@ -1,8 +1,8 @@
 """Benchmark: time per saved reading during a walkdown, against a bare sqlite3 insert.
 
-The real path is `walkdown.record_reading`, which the walkdown screen calls when a
-field is left: parse the text, validate the record, save it with its audit row in
-one transaction, then judge it with the engine's rules against the site's profile
+The real path is `walkdown.readings.record_reading`, which the walkdown screen calls
+when a field is left: parse the text, validate the record, save it with its audit row
+in one transaction, then judge it with the engine's rules against the site's profile
 and its last visit. The floor, in the same process, on the same disk and turn about
 with the real path: one bare sqlite3 INSERT of the same row and one COMMIT per
 reading, with the store's pragmas (WAL, foreign keys, busy timeout). Prints both,

@@ -33,7 +33,7 @@ class VisitDetailsDialog(RecordDialog[Inspection]):
     def __init__(self, inspection: Inspection, save: SaveDetails) -> None:
         """Args:
         inspection: The visit, for the fields' current values.
-        save: Called with the five fields by name (`walkdown.set_details` bound to
+        save: Called with the five fields by name (`walkdown.visit.set_details` bound to
             the store and the inspection).
         """
         fields = [Field(name, label, _HINTS[name]) for name, label in DETAIL_LABELS.items()]
