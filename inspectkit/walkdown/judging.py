@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
 from inspectkit.engine.history import electrode_count
+from inspectkit.engine.reading_rules import LIMIT_ACTIONS
 from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
     Component,
@@ -164,7 +165,7 @@ def judge_reading(
     severity = found[0].severity if found else Severity.OK
     limit = (
         profile.limit_for(reading.quantity, electrode_count(records, today))
-        if reading.quantity in rules.LIMIT_ACTIONS
+        if reading.quantity in LIMIT_ACTIONS
         else None
     )
     previous = _previous(records, inspection, reading)

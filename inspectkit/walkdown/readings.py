@@ -11,8 +11,8 @@ from typing import Any
 
 from inspectkit import intake
 from inspectkit.earthing_values import Traverse
-from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import traverse_reading
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.model import (
     DEFAULT_METHOD,
     JOINT_FOR,
