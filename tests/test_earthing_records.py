@@ -25,7 +25,7 @@ from inspectkit.model import (
     SoilSurvey,
 )
 from inspectkit.store import Store
-from inspectkit.store.database import apply_migrations
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.store.rows import to_row
 from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION, _earthing
