@@ -21,9 +21,10 @@ from inspectkit import intake
 from inspectkit.earthing_values import Traverse
 from inspectkit.engine import rules
 from inspectkit.engine.check import check_site
-from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import traverse_reading
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.engine.history import COMPLETE_KINDS, electrode_count
+from inspectkit.engine.reading_rules import LIMIT_ACTIONS
 from inspectkit.engine.results import SEVERITY_WORDS, Result
 from inspectkit.model import (
     DEFAULT_METHOD,
@@ -680,7 +681,7 @@ def judge_reading(
     severity = found[0].severity if found else Severity.OK
     limit = (
         profile.limit_for(reading.quantity, electrode_count(records, today))
-        if reading.quantity in rules.LIMIT_ACTIONS
+        if reading.quantity in LIMIT_ACTIONS
         else None
     )
     previous = _previous(records, inspection, reading)
