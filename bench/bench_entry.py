@@ -37,7 +37,7 @@ from inspectkit.model import (  # noqa: E402
     Reading,
 )
 from inspectkit.store import Store  # noqa: E402
-from inspectkit.store.database import BUSY_TIMEOUT_MS  # noqa: E402
+from inspectkit.store.opening import BUSY_TIMEOUT_MS  # noqa: E402
 from inspectkit.store.rows import to_row  # noqa: E402
 from inspectkit.walkdown.judging import site_context  # noqa: E402
 from inspectkit.walkdown.readings import record_reading  # noqa: E402

@@ -22,7 +22,8 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.sync.bundle import export_bundle
-from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
+from inspectkit.sync.csv_options import ColumnMap, CsvImportError, CsvOptions
+from inspectkit.sync.csvimport import import_readings_csv
 from inspectkit.sync.guard import BundleError
 from inspectkit.sync.merge import import_bundle
 from inspectkit.walkdown.completion import finish_inspection

@@ -28,7 +28,7 @@ from inspectkit.profiles import load_profile
 from inspectkit.report.content import text_sections
 from inspectkit.report.gather import build_report
 from inspectkit.store import Store, schema
-from inspectkit.store.database import apply_migrations
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.queries import load_site_records
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
