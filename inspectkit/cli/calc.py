@@ -23,10 +23,12 @@ calc_app = typer.Typer(
     no_args_is_help=True,
 )
 
+# Options spelt alike wherever they are taken (`electrode size` takes --orientation too).
 LevelOption = Annotated[str, typer.Option("--level", help="Protection level I, II, III or IV.")]
 OrientationOption = Annotated[
     str, typer.Option("--orientation", help="vertical, horizontal or inclined.")
 ]
+#: A command's declaration: its options as parameters, no body.
 Options = Callable[..., None]
 
 
