@@ -57,7 +57,7 @@ from inspectkit.model import (
 from inspectkit.report.keys import new_key
 from inspectkit.report.publish import seal_signed
 from inspectkit.store import Store
-from inspectkit.store.database import apply_migrations
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.photos import file_sha256, photo_path, put_file
 from inspectkit.store.schema import SCHEMA_VERSION
 from inspectkit.store.seal import covered_now

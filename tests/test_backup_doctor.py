@@ -19,8 +19,8 @@ from typer.testing import CliRunner
 from inspectkit.cli import app
 from inspectkit.model import Site
 from inspectkit.store import Store
-from inspectkit.store.database import apply_migrations
 from inspectkit.store.health import check_health
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.photos import attach_photo, photo_path
 from inspectkit.store.schema import SCHEMA_VERSION
 from inspectkit.wording import counted

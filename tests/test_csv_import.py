@@ -14,7 +14,8 @@ from typer.testing import CliRunner
 from inspectkit.cli import app
 from inspectkit.model import Method, Quantity, Reading
 from inspectkit.store import Store
-from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
+from inspectkit.sync.csv_options import ColumnMap, CsvImportError, CsvOptions
+from inspectkit.sync.csvimport import import_readings_csv
 
 
 @pytest.fixture

@@ -25,13 +25,14 @@ from inspectkit.model import (
     SoilSurvey,
 )
 from inspectkit.store import Store
-from inspectkit.store.database import apply_migrations
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.queries import find_site, load_site_records
 from inspectkit.store.rows import to_row
 from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION, _earthing
 from inspectkit.sync import exports
 from inspectkit.sync.bundle import export_bundle
-from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
+from inspectkit.sync.csv_options import ColumnMap, CsvImportError, CsvOptions
+from inspectkit.sync.csvimport import import_readings_csv
 from inspectkit.sync.merge import import_bundle
 from tests.test_store import save_in_old_schema
 

@@ -13,8 +13,8 @@ from inspectkit.cli import app
 from inspectkit.model import Component, GeometryKind, Site
 from inspectkit.model.geometry import GeometryItem, box_footprint
 from inspectkit.store import Store, StoreError
-from inspectkit.store.database import apply_migrations
 from inspectkit.store.geometry import save_geometry_item, site_geometry
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.queries import iter_site_records, load_site_records
 from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION, _geometry
 from inspectkit.sync.geometry_file import GeometryFileError, read_geometry

@@ -355,7 +355,7 @@ def test_a_database_before_access_rules_migrates_with_empty_access(tmp_path: Pat
 
     from inspectkit.model import Site
     from inspectkit.store import Store
-    from inspectkit.store.database import apply_migrations
+    from inspectkit.store.opening import apply_migrations
     from inspectkit.store.schema import MIGRATIONS, SCHEMA_VERSION
 
     path = tmp_path / "old.sqlite"

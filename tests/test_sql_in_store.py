@@ -14,15 +14,6 @@ import pytest
 
 PACKAGE = Path(__file__).resolve().parent.parent / "inspectkit"
 
-# Files still holding SQL, each for a reason; remove an entry once its SQL has moved.
-ALLOWED = (
-    # The walkdown job is being split in another step of the redesign, which moves its
-    # queries into the store (the prefix covers walkdown.py and a walkdown/ package).
-    "walkdown",
-    # The CSV import is reworked in another step; its two selects move then.
-    "sync/csvimport.py",
-)
-
 # sqlite-utils' and the Store's methods that take SQL text.
 SQL_METHODS = {"execute", "executemany", "executescript", "rows_where", "count_where"}
 SQL_METHODS |= {"delete_where", "select"}
@@ -55,7 +46,6 @@ def modules_outside_store() -> list[Path]:
         path
         for path in sorted(PACKAGE.rglob("*.py"))
         if path.relative_to(PACKAGE).parts[0] != "store"
-        and not path.relative_to(PACKAGE).as_posix().startswith(ALLOWED)
     ]
 
 
@@ -98,12 +88,3 @@ def test_the_scan_sees_sql(code: str) -> None:
 def test_the_scan_lets_plain_code_be(code: str) -> None:
     assert not sql_text_in(ast.parse(code))
 
-
-def test_every_allowed_entry_still_holds_sql() -> None:
-    """An entry left behind after its SQL moved would let new SQL in there unseen."""
-    for entry in ALLOWED:
-        paths = [
-            p for p in PACKAGE.rglob("*.py") if p.relative_to(PACKAGE).as_posix().startswith(entry)
-        ]
-        held = [p for p in paths if sql_text_in(ast.parse(p.read_text(encoding="utf-8")))]
-        assert held, f"{entry!r} holds no SQL any more: remove it from ALLOWED"

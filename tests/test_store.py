@@ -22,7 +22,7 @@ from inspectkit.model import (
     Site,
 )
 from inspectkit.store import FrozenRecordError, NewerSchemaError, Store, StoreError, audit
-from inspectkit.store.database import apply_migrations
+from inspectkit.store.opening import apply_migrations
 from inspectkit.store.photos import attach_photo, photo_path
 from inspectkit.store.rows import to_row
 from inspectkit.store.schema import SCHEMA_VERSION

@@ -7,6 +7,7 @@ Nothing is read from or written to a database.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable
 from typing import Annotated
 
@@ -22,20 +23,43 @@ calc_app = typer.Typer(
     no_args_is_help=True,
 )
 
-def _answer(call: Callable[[], Answer], json_out: bool) -> None:
-    try:
-        answer = call()
-    except CalcInputError as exc:
-        fail(f"--{exc.field.replace('_', '-')}: {exc}")
-    if json_out:
-        emit_json(answer.to_json())
-        return
-    for line in answer.lines:
-        typer.echo(line)
-    typer.echo(f"source: {answer.source}")
+# Options spelt alike wherever they are taken (`electrode size` takes --orientation too).
+LevelOption = Annotated[str, typer.Option("--level", help="Protection level I, II, III or IV.")]
+OrientationOption = Annotated[
+    str, typer.Option("--orientation", help="vertical, horizontal or inclined.")
+]
+#: A command's declaration: its options as parameters, no body.
+Options = Callable[..., None]
 
 
-@calc_app.command("rod")
+def _calculator(calculate: Callable[..., Answer]) -> Callable[[Options], Options]:
+    """`calc NAME` for calculator `calculate`, from a function that only declares its options.
+
+    The options carry the calculator's parameter names, so every command runs the
+    same way: the inputs go over by name, a refusal exits 2 naming its option, and
+    the answer prints as lines with its source, or as JSON with `--json`.
+    """
+
+    def command(options: Options) -> Options:
+        @functools.wraps(options)
+        def run(json_out: bool = False, **inputs: str) -> None:
+            try:
+                answer = calculate(**inputs)
+            except CalcInputError as exc:
+                fail(f"--{exc.field.replace('_', '-')}: {exc}")
+            if json_out:
+                emit_json(answer.to_json())
+                return
+            for line in answer.lines:
+                typer.echo(line)
+            typer.echo(f"source: {answer.source}")
+
+        return calc_app.command(calculate.__name__)(run)
+
+    return command
+
+
+@_calculator(calculators.rod)
 def rod(
     resistivity: Annotated[str, typer.Option("--resistivity", help="Soil ρ, e.g. 100 Ω·m.")],
     length: Annotated[str, typer.Option("--length", help="Driven length, e.g. 3 m or 10 ft.")],
@@ -45,10 +69,9 @@ def rod(
     json_out: JsonOption = False,
 ) -> None:
     """Earth resistance of one driven rod in uniform soil (Dwight)."""
-    _answer(lambda: calculators.rod(resistivity, length, diameter), json_out)
 
 
-@calc_app.command("wenner")
+@_calculator(calculators.wenner)
 def wenner(
     spacing: Annotated[str, typer.Option("--spacing", help="Probe spacing a, e.g. 3 m.")],
     resistance: Annotated[str, typer.Option("--resistance", help="Reading R, e.g. 10 Ω.")],
@@ -58,10 +81,9 @@ def wenner(
     json_out: JsonOption = False,
 ) -> None:
     """Soil resistivity from a Wenner four-probe reading, full and simple forms."""
-    _answer(lambda: calculators.wenner(spacing, resistance, depth), json_out)
 
 
-@calc_app.command("traverse")
+@_calculator(calculators.traverse)
 def traverse(
     current_probe: Annotated[
         str, typer.Option("--current-probe", help="E–C distance, e.g. 50 m.")
@@ -84,12 +106,9 @@ def traverse(
     json_out: JsonOption = False,
 ) -> None:
     """Fall-of-potential: where the probes go; with --points, the 61.8 % value and plateau."""
-    _answer(
-        lambda: calculators.traverse(current_probe, points, electrode_size, tolerance), json_out
-    )
 
 
-@calc_app.command("parallel")
+@_calculator(calculators.parallel)
 def parallel(
     resistances: Annotated[
         str, typer.Option("--resistances", help="Each electrode's Ω, e.g. '12; 15; 20'.")
@@ -104,25 +123,21 @@ def parallel(
     json_out: JsonOption = False,
 ) -> None:
     """Electrodes bonded together; with --spacing and --length, equal rods in a line."""
-    _answer(lambda: calculators.parallel(resistances, spacing, length, diameter), json_out)
 
 
-@calc_app.command("l1")
+@_calculator(calculators.l1)
 def l1(
-    level: Annotated[str, typer.Option("--level", help="Protection level I, II, III or IV.")],
+    level: LevelOption,
     resistivity: Annotated[str, typer.Option("--resistivity", help="Soil ρ, e.g. 1000 Ω·m.")],
-    orientation: Annotated[
-        str, typer.Option("--orientation", help="vertical, horizontal or inclined.")
-    ] = "",
+    orientation: OrientationOption = "",
     json_out: JsonOption = False,
 ) -> None:
     """Minimum length of each earth electrode (IEC 62305-3 Figure 2 and clause 5.4.2)."""
-    _answer(lambda: calculators.l1(level, resistivity, orientation), json_out)
 
 
-@calc_app.command("separation")
+@_calculator(calculators.separation)
 def separation(
-    level: Annotated[str, typer.Option("--level", help="Protection level I, II, III or IV.")],
+    level: LevelOption,
     down_conductors: Annotated[
         str, typer.Option("--down-conductors", help="Number of down conductors, e.g. 4.")
     ],
@@ -138,10 +153,6 @@ def separation(
     json_out: JsonOption = False,
 ) -> None:
     """Separation distance between LPS conductors and other metal (IEC 62305-3 clause 6.3)."""
-    _answer(
-        lambda: calculators.separation(level, down_conductors, length, material, edition),
-        json_out,
-    )
 
 
 def register(app: typer.Typer) -> None:

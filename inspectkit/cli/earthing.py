@@ -8,6 +8,7 @@ from typing import Annotated
 import typer
 
 from inspectkit.cli import lookups
+from inspectkit.cli.calc import OrientationOption
 from inspectkit.cli.common import DbOption, JsonOption, emit_json, fail, open_store
 from inspectkit.earthing_jobs import (
     EarthingInputError,
@@ -167,9 +168,7 @@ def size(
     ctx: typer.Context,
     site: SiteOption,
     tag: Annotated[str, typer.Option("--tag", help="The electrode's tag, e.g. E-03.")],
-    orientation: Annotated[
-        str, typer.Option("--orientation", help="vertical, horizontal or inclined.")
-    ] = "",
+    orientation: OrientationOption = "",
     length: Annotated[str, typer.Option("--length", help="Length, e.g. 2.4 m or 8 ft.")] = "",
     diameter: Annotated[str, typer.Option("--diameter", help="Diameter, e.g. 16 mm.")] = "",
     ring_radius: Annotated[

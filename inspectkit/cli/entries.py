@@ -6,7 +6,7 @@ from __future__ import annotations
 import json
 from datetime import UTC, datetime
 from pathlib import Path
-from typing import Annotated, Any
+from typing import TYPE_CHECKING, Annotated, Any
 
 import typer
 
@@ -30,19 +30,16 @@ from inspectkit.model import (
 from inspectkit.repeats import RepeatError, mark_repeat
 from inspectkit.store.record_queries import site_components
 from inspectkit.units import UnitError, format_value
-from inspectkit.walkdown import (
-    ReadingOutcome,
-    WalkdownError,
-    attach_photos,
-    chosen_instruments,
-    clear_not_inspected,
-    grade_component,
-    instrument_for,
-    mark_not_inspected,
-    record_reading,
-    withdraw_reading,
-)
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import clear_not_inspected, grade_component, mark_not_inspected
+from inspectkit.walkdown.instruments import chosen_instruments, instrument_for
+from inspectkit.walkdown.judging import ReadingOutcome
+from inspectkit.walkdown.photos import attach_photos
+from inspectkit.walkdown.readings import record_reading, withdraw_reading
 from inspectkit.wording import counted
+
+if TYPE_CHECKING:
+    from inspectkit.store import Store
 
 photo_app = typer.Typer(
     help="Photos: attach one, or a folder matched by time.", no_args_is_help=True
@@ -52,6 +49,54 @@ InspectionOption = Annotated[
     str, typer.Option("--inspection", help="Id of the draft inspection (or its start).")
 ]
 TagOption = Annotated[str, typer.Option("--tag", help="Tag painted on the component, e.g. TJ-03.")]
+
+# `readings add`'s options, one alias each, so that the command's signature stays readable.
+QuantityOption = Annotated[Quantity, typer.Option("--quantity", help="What was measured.")]
+ValueArgument = Annotated[
+    str,
+    typer.Argument(
+        help="What the instrument showed: 3.9, 180 mΩ, OL (leave out with --traverse)."
+    ),
+]
+TraverseOption = Annotated[
+    str | None,
+    typer.Option(
+        "--traverse",
+        help="Fall-of-potential traverse, P position=reading: '52%=10.1; 61.8%=10.3; "
+        "72%=10.6' (or positions in m); its value at 61.8 % is the reading.",
+    ),
+]
+CurrentProbeOption = Annotated[
+    str | None,
+    typer.Option("--current-probe", help="E–C distance for --traverse, e.g. 50 m."),
+]
+MethodOption = Annotated[
+    Method | None,
+    typer.Option("--method", help="How it was measured (default: the usual one for it)."),
+]
+InstrumentOption = Annotated[
+    str | None,
+    typer.Option(
+        "--instrument",
+        help="Serial or id (default: the one chosen for the kind that measures it).",
+    ),
+]
+SoilOption = Annotated[
+    SoilCondition | None,
+    typer.Option("--soil", help="Ground state for an earth reading (default: the visit's)."),
+]
+DoubtfulOption = Annotated[
+    bool, typer.Option("--doubtful", help="Mark the reading doubtful: kept, not a pass.")
+]
+TakenAtOption = Annotated[
+    datetime | None,
+    typer.Option(
+        "--taken-at",
+        formats=["%Y-%m-%dT%H:%M", "%Y-%m-%dT%H:%M:%S", "%Y-%m-%d %H:%M"],
+        help="When it was read, UTC, e.g. 2026-06-01T10:30 (default: now), for a paper sheet.",
+        show_default=False,
+    ),
+]
 
 
 def failed(outcome: ReadingOutcome) -> bool:
@@ -99,53 +144,16 @@ def add_reading(
     ctx: typer.Context,
     inspection: InspectionOption,
     tag: TagOption,
-    quantity: Annotated[Quantity, typer.Option("--quantity", help="What was measured.")],
-    value: Annotated[
-        str,
-        typer.Argument(
-            help="What the instrument showed: 3.9, 180 mΩ, OL (leave out with --traverse)."
-        ),
-    ] = "",
-    traverse: Annotated[
-        str | None,
-        typer.Option(
-            "--traverse",
-            help="Fall-of-potential traverse, P position=reading: '52%=10.1; 61.8%=10.3; "
-            "72%=10.6' (or positions in m); its value at 61.8 % is the reading.",
-        ),
-    ] = None,
-    current_probe: Annotated[
-        str | None,
-        typer.Option("--current-probe", help="E–C distance for --traverse, e.g. 50 m."),
-    ] = None,
-    method: Annotated[
-        Method | None,
-        typer.Option("--method", help="How it was measured (default: the usual one for it)."),
-    ] = None,
-    instrument: Annotated[
-        str | None,
-        typer.Option(
-            "--instrument",
-            help="Serial or id (default: the one chosen for the kind that measures it).",
-        ),
-    ] = None,
-    soil: Annotated[
-        SoilCondition | None,
-        typer.Option("--soil", help="Ground state for an earth reading (default: the visit's)."),
-    ] = None,
-    doubtful: Annotated[
-        bool, typer.Option("--doubtful", help="Mark the reading doubtful: kept, not a pass.")
-    ] = False,
+    quantity: QuantityOption,
+    value: ValueArgument = "",
+    traverse: TraverseOption = None,
+    current_probe: CurrentProbeOption = None,
+    method: MethodOption = None,
+    instrument: InstrumentOption = None,
+    soil: SoilOption = None,
+    doubtful: DoubtfulOption = False,
     note: Annotated[str, typer.Option("--note", help="A note kept with the reading.")] = "",
-    taken_at: Annotated[
-        datetime | None,
-        typer.Option(
-            "--taken-at",
-            formats=["%Y-%m-%dT%H:%M", "%Y-%m-%dT%H:%M:%S", "%Y-%m-%d %H:%M"],
-            help="When it was read, UTC, e.g. 2026-06-01T10:30 (default: now), for a paper sheet.",
-            show_default=False,
-        ),
-    ] = None,
+    taken_at: TakenAtOption = None,
     db: DbOption = None,
     json_out: JsonOption = False,
 ) -> None:
@@ -153,12 +161,7 @@ def add_reading(
     series = typed_traverse(traverse, current_probe)
     with open_store(ctx, db) as store:
         visit, component = lookups.visit_part(store, inspection, tag)
-        if instrument is not None:
-            instrument_id: str | None = lookups.instrument(store, instrument).id
-        else:
-            usual = method or DEFAULT_METHOD[quantity]
-            found = instrument_for(chosen_instruments(store), quantity, usual)
-            instrument_id = found.id if found else None
+        instrument_id = _instrument_id(store, instrument, quantity, method)
         if soil is None and quantity in JOINT_FOR:
             soil = visit.soil
         try:
@@ -188,6 +191,16 @@ def add_reading(
     raise typer.Exit(int(Exit.ACT if failed(outcome) else Exit.OK))
 
 
+def _instrument_id(
+    store: Store, instrument: str | None, quantity: Quantity, method: Method | None
+) -> str | None:
+    """The instrument named by --instrument, else the one chosen for the kind that measures it."""
+    if instrument is not None:
+        return lookups.instrument(store, instrument).id
+    found = instrument_for(chosen_instruments(store), quantity, method or DEFAULT_METHOD[quantity])
+    return found.id if found else None
+
+
 def typed_traverse(points: str | None, current_probe: str | None) -> Traverse | None:
     """The traverse given by `--traverse` and `--current-probe`, or a refusal naming the option."""
     if points is None and current_probe is None:
@@ -204,7 +217,7 @@ def withdraw_command(
     ctx: typer.Context,
     inspection: InspectionOption,
     tag: TagOption,
-    quantity: Annotated[Quantity, typer.Option("--quantity", help="What was measured.")],
+    quantity: QuantityOption,
     db: DbOption = None,
 ) -> None:
     """Take back a reading saved by mistake; the audit log keeps it, bundles carry it."""

@@ -88,7 +88,8 @@ def import_csv(
     json_out: JsonOption = False,
 ) -> None:
     """Import readings, matching rows to components by tag; one bad row imports nothing."""
-    from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
+    from inspectkit.sync.csv_options import ColumnMap, CsvImportError, CsvOptions
+    from inspectkit.sync.csvimport import import_readings_csv
 
     try:
         zone = ZoneInfo(tz)

@@ -19,7 +19,7 @@ from inspectkit.cli.common import (
     output_option,
 )
 from inspectkit.store import StoreError
-from inspectkit.store.database import photos_dir_of
+from inspectkit.store.opening import photos_dir_of
 from inspectkit.store.photos import copy_photos_for_backup, restore_photos
 from inspectkit.wording import counted
 

@@ -6,11 +6,7 @@ a hash-chained audit row.
 
 from __future__ import annotations
 
-from inspectkit.store.database import (
-    FrozenRecordError,
-    NewerSchemaError,
-    Store,
-    StoreError,
-)
+from inspectkit.store.database import Store
+from inspectkit.store.errors import FrozenRecordError, NewerSchemaError, StoreError
 
 __all__ = ["FrozenRecordError", "NewerSchemaError", "Store", "StoreError"]

@@ -26,6 +26,8 @@ GENESIS = "0" * 64
 _HASHED = ("id", "at", "who", "table_name", "row_id", "action", "before", "after", "prev_hash")
 #: Made once: `json.dumps` with options builds a new encoder on every call.
 _ENCODER = json.JSONEncoder(ensure_ascii=False, separators=(",", ":"))
+#: One change an audit row records: (table, row id, action, row before, row after).
+Change = tuple[str, str, str, dict[str, Any] | None, dict[str, Any] | None]
 
 
 @dataclass(frozen=True)
@@ -50,7 +52,7 @@ def last_hash(db: sqlite_utils.Database) -> str:
 
 def make_entries(
     prev_hash: str,
-    changes: list[tuple[str, str, str, dict[str, Any] | None, dict[str, Any] | None]],
+    changes: list[Change],
     *,
     at: str,
     who: str,

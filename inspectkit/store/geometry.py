@@ -5,7 +5,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from inspectkit.model.geometry import GeometryItem
-from inspectkit.store.database import Store, StoreError
+from inspectkit.store.database import Store
+from inspectkit.store.errors import StoreError
 
 #: The order geometry is listed in: roofs first, then the LPS, then what it protects.
 _ORDER = (

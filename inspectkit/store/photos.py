@@ -17,7 +17,9 @@ from pathlib import Path
 from PIL import Image, UnidentifiedImageError
 
 from inspectkit.model import Photo
-from inspectkit.store.database import Store, StoreError, photos_dir_of
+from inspectkit.store.database import Store
+from inspectkit.store.errors import StoreError
+from inspectkit.store.opening import photos_dir_of
 
 _EXIF_ORIENTATION = 0x0112
 _EXIF_IFD = 0x8769

@@ -27,7 +27,8 @@ from inspectkit.model import (
     SoilSurvey,
 )
 from inspectkit.model.geometry import GeometryItem
-from inspectkit.store.database import Store, StoreError
+from inspectkit.store.database import Store
+from inspectkit.store.errors import StoreError
 from inspectkit.store.geometry import site_geometry
 from inspectkit.store.rows import from_row
 

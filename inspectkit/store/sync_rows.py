@@ -12,8 +12,7 @@ from typing import Any
 
 from inspectkit.model import RECORD_TYPES
 from inspectkit.store.database import Store
-
-_CHUNK = 500
+from inspectkit.store.selects import in_chunks
 
 _IN_SITE = "inspection_id IN (SELECT id FROM inspection WHERE site_id = :site)"
 #: How each table's rows of one site are chosen.
@@ -119,10 +118,7 @@ def audit_versions(
     store: Store, table: str, ids: Sequence[str]
 ) -> Iterator[tuple[str, str | None, str | None]]:
     """(row id, before, after) of every audit row that changed one of these records."""
-    ids = list(ids)
-    for start in range(0, len(ids), _CHUNK):
-        chunk = ids[start : start + _CHUNK]
-        marks = ",".join("?" * len(chunk))
+    for chunk, marks in in_chunks(ids):
         yield from store.db.execute(
             "SELECT row_id, before, after FROM audit WHERE table_name = ? "
             f"AND before IS NOT NULL AND row_id IN ({marks})",
@@ -166,11 +162,8 @@ def site_deletions(store: Store, site_id: str, since: date | None = None) -> dic
 
 def deleted_here(store: Store, table: str, ids: Sequence[str]) -> set[str]:
     """Those of these ids whose records this database deleted (and has not now)."""
-    ids = list(ids)
     found: set[str] = set()
-    for start in range(0, len(ids), _CHUNK):
-        chunk = ids[start : start + _CHUNK]
-        marks = ",".join("?" * len(chunk))
+    for chunk, marks in in_chunks(ids):
         found.update(
             row_id
             for (row_id,) in store.db.execute(

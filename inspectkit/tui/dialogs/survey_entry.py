@@ -7,13 +7,11 @@ from datetime import date
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.binding import Binding
-from textual.containers import Horizontal, Vertical
-from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, Static
+from textual.widgets import Input, Label, Static
 
 from inspectkit.earthing_jobs import EarthingInputError
 from inspectkit.model import SoilSurvey
+from inspectkit.tui.dialogs.entry_dialog import EntryDialog, entry_bindings
 
 #: The inputs, as `earthing_jobs.record_survey` names them, with a label and an example.
 FIELDS = (
@@ -29,62 +27,35 @@ SaveSurvey = Callable[..., SoilSurvey]
 _FIELD_OF = {"chosen_spacing_m": "chosen_spacing", "probe_depth_m": "depth", "date": "day"}
 
 
-class SurveyDialog(ModalScreen[SoilSurvey | None]):
+class SurveyDialog(EntryDialog[SoilSurvey]):
     """The survey typed in one go; Save hands it to `save` and closes only once it is accepted.
 
     A refusal names the input and keeps everything as typed; Esc saves nothing.
     """
 
     DEFAULT_CSS = """
-    SurveyDialog { align: center middle; }
-    SurveyDialog > Vertical {
-        width: 76; max-width: 100%; height: auto; border: thick $primary; background: $surface;
-        padding: 0 1;
-    }
-    SurveyDialog Input { height: 1; border: none; padding: 0 1; background: $boost; }
-    SurveyDialog Input:focus { border: none; background: $primary 30%; }
     SurveyDialog Input.-refused { background: $error 40%; }
-    SurveyDialog Label { margin-top: 1; }
-    SurveyDialog #survey-error { height: auto; margin-top: 1; }
-    SurveyDialog Horizontal { height: auto; align-horizontal: right; margin-top: 1; }
-    SurveyDialog Button { margin-left: 1; }
     """
 
-    BINDINGS = [
-        Binding("escape", "cancel", "Cancel", id="survey.cancel", tooltip="Save nothing"),
-        Binding("ctrl+s", "save", "Save", id="survey.save", tooltip="Save the survey"),
-    ]
+    BINDINGS = entry_bindings("survey", "the survey")
+    NOTE_ID = "survey-error"
 
     def __init__(self, site_name: str, today: date, save: SaveSurvey) -> None:
-        super().__init__()
-        self.site_name = site_name
+        super().__init__(f"[b]Wenner soil survey at {site_name}[/b]")
         self.today = today
         self.save = save
 
-    def compose(self) -> ComposeResult:
-        with Vertical():
-            yield Static(f"[b]Wenner soil survey at {self.site_name}[/b]")
-            for name, label, example in FIELDS:
-                yield Label(label)
-                start = self.today.isoformat() if name == "day" else ""
-                yield Input(start, placeholder=f"e.g. {example}", id=f"survey-{name}")
-            yield Static("", id="survey-error")
-            with Horizontal():
-                yield Button("Cancel", id="cancel")
-                yield Button("Save (ctrl+s)", id="save", variant="primary")
+    def inputs(self) -> ComposeResult:
+        for name, label, example in FIELDS:
+            yield Label(label)
+            start = self.today.isoformat() if name == "day" else ""
+            yield Input(start, placeholder=f"e.g. {example}", id=f"survey-{name}")
 
     def on_mount(self) -> None:
         self.query_one("#survey-points", Input).focus()
 
     def values(self) -> dict[str, str]:
         return {name: self.query_one(f"#survey-{name}", Input).value for name, _, _ in FIELDS}
-
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "save":
-            self.action_save()
-        else:
-            self.dismiss(None)
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
@@ -113,6 +84,3 @@ class SurveyDialog(ModalScreen[SoilSurvey | None]):
             box.add_class("-refused")
             box.focus()
         self.query_one("#survey-error", Static).update(Text(f"REFUSED {label}: {message}"))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)

@@ -4,42 +4,24 @@ from __future__ import annotations
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.binding import Binding
-from textual.containers import Horizontal, Vertical
-from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, Static
+from textual.widgets import Input, Label, Static
 
 from inspectkit.earthing_input import parse_traverse
 from inspectkit.earthing_values import Traverse
+from inspectkit.tui.dialogs.entry_dialog import EntryDialog, entry_bindings
 from inspectkit.tui.widgets.traverse_view import traverse_line
 from inspectkit.units import UnitError
 
 
-class TraverseDialog(ModalScreen[Traverse | None]):
+class TraverseDialog(EntryDialog[Traverse]):
     """The traverse as typed, judged on every key; Save returns it, Esc returns None.
 
     What is returned is the traverse only: the walkdown saves it as the reading
     (its value at 61.8 %) through the same function `readings add --traverse` uses.
     """
 
-    DEFAULT_CSS = """
-    TraverseDialog { align: center middle; }
-    TraverseDialog > Vertical {
-        width: 76; max-width: 100%; height: auto; border: thick $primary; background: $surface;
-        padding: 0 1;
-    }
-    TraverseDialog Input { height: 1; border: none; padding: 0 1; background: $boost; }
-    TraverseDialog Input:focus { border: none; background: $primary 30%; }
-    TraverseDialog Label { margin-top: 1; }
-    TraverseDialog #traverse-preview { height: auto; margin-top: 1; }
-    TraverseDialog Horizontal { height: auto; align-horizontal: right; margin-top: 1; }
-    TraverseDialog Button { margin-left: 1; }
-    """
-
-    BINDINGS = [
-        Binding("escape", "cancel", "Cancel", id="traverse.cancel", tooltip="Save nothing"),
-        Binding("ctrl+s", "save", "Save", id="traverse.save", tooltip="Save the traverse"),
-    ]
+    BINDINGS = entry_bindings("traverse", "the traverse")
+    NOTE_ID = "traverse-preview"
 
     def __init__(
         self, tag: str, tolerance: float, current_probe: str = "", points: str = ""
@@ -49,25 +31,18 @@ class TraverseDialog(ModalScreen[Traverse | None]):
         tolerance: The profile's plateau tolerance, for the verdict shown as typed.
         current_probe, points: Text to start with (a traverse typed before).
         """
-        super().__init__()
-        self.tag = tag
+        super().__init__(f"[b]{tag}: fall-of-potential traverse[/b]")
         self.tolerance = tolerance
         self.start = (current_probe, points)
 
-    def compose(self) -> ComposeResult:
-        with Vertical():
-            yield Static(f"[b]{self.tag}: fall-of-potential traverse[/b]")
-            yield Label("Current probe C from the electrode (e.g. 50 m)")
-            yield Input(self.start[0], placeholder="e.g. 50 m", id="traverse-c")
-            yield Label("Readings, P position=reading; position in % of E–C or in m")
-            yield Input(
-                self.start[1], placeholder="e.g. 52%=10.1; 61.8%=10.3; 72%=10.6",
-                id="traverse-points",
-            )
-            yield Static("", id="traverse-preview")
-            with Horizontal():
-                yield Button("Cancel", id="cancel")
-                yield Button("Save (ctrl+s)", id="save", variant="primary")
+    def inputs(self) -> ComposeResult:
+        yield Label("Current probe C from the electrode (e.g. 50 m)")
+        yield Input(self.start[0], placeholder="e.g. 50 m", id="traverse-c")
+        yield Label("Readings, P position=reading; position in % of E–C or in m")
+        yield Input(
+            self.start[1], placeholder="e.g. 52%=10.1; 61.8%=10.3; 72%=10.6",
+            id="traverse-points",
+        )
 
     def on_mount(self) -> None:
         self.query_one("#traverse-c" if not self.start[0] else "#traverse-points", Input).focus()
@@ -103,16 +78,6 @@ class TraverseDialog(ModalScreen[Traverse | None]):
         else:
             self.action_save()
 
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "save":
-            self.action_save()
-        else:
-            self.dismiss(None)
-
     def action_save(self) -> None:
         if self.preview():
             self.dismiss(self.typed())
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)

@@ -15,6 +15,7 @@ from textual.widgets import Header, OptionList, Static
 from textual.widgets.option_list import Option
 
 from inspectkit.earthing_values import Traverse
+from inspectkit.engine.walking import Stop
 from inspectkit.model import (
     JOINT_FOR,
     Finding,
@@ -40,33 +41,28 @@ from inspectkit.tui.widgets.tag_prompt import TagPrompt
 from inspectkit.tui.widgets.walk_bar import WalkBar
 from inspectkit.tui.widgets.walkdown_earthing import EARTHING_BINDINGS, WalkdownEarthing
 from inspectkit.units import format_value
-from inspectkit.walkdown import (
+from inspectkit.walkdown.completion import (
     Missing,
-    ReadingOutcome,
-    SavedEntries,
-    Stop,
-    WalkdownError,
-    attach_photos,
-    chosen_instruments,
-    clear_not_inspected,
-    drafts_for,
-    drafts_told,
     finish_inspection,
-    forget_drafts,
-    grade_component,
-    instrument_for,
     joints_not_retested,
-    keep_drafts,
-    mark_not_inspected,
     missing_for_completion,
     opened_joints,
-    record_reading,
-    saved_entries,
-    set_details,
-    site_context,
-    walk_for,
-    withdraw_reading,
 )
+from inspectkit.walkdown.continuing import (
+    SavedEntries,
+    drafts_for,
+    drafts_told,
+    forget_drafts,
+    keep_drafts,
+    saved_entries,
+)
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import clear_not_inspected, grade_component, mark_not_inspected
+from inspectkit.walkdown.instruments import chosen_instruments, instrument_for
+from inspectkit.walkdown.judging import ReadingOutcome, site_context
+from inspectkit.walkdown.photos import attach_photos
+from inspectkit.walkdown.readings import record_reading, withdraw_reading
+from inspectkit.walkdown.visit import set_details, walk_for
 from inspectkit.wording import counted
 
 #: How many ungraded tags the finish question names before "and N more".

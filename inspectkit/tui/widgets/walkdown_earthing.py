@@ -15,13 +15,16 @@ from textual.binding import Binding
 
 from inspectkit.earthing_input import traverse_as_typed
 from inspectkit.earthing_values import SeriesError, Traverse, read_traverse
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Method, Quantity
 from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import calculator_for
 from inspectkit.tui.widgets.traverse_view import EARTH
-from inspectkit.walkdown import ReadingOutcome, SavedEntries, SiteContext, Stop, WalkdownError
+from inspectkit.walkdown.continuing import SavedEntries
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.judging import ReadingOutcome, SiteContext
 
 EARTHING_BINDINGS = [
     Binding(
