@@ -1,7 +1,7 @@
 """The installed LPS against its protection level: rooftop items in the protected volume,
 separation distances, mesh size and down-conductor spacing.
 
-`assess` judges a site's geometry (see `geometry_model`) and returns a verdict per
+`assess` judges a site's geometry (see `inspectkit.model.geometry`) and returns a verdict per
 rooftop item and per system check, for the site screen and the report; the rule
 `conformity` turns the ones that need acting on into results for `check`. A site
 with no geometry recorded is not judged at all.
