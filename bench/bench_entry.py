@@ -1,8 +1,8 @@
 """Benchmark: time per saved reading during a walkdown, against a bare sqlite3 insert.
 
-The real path is `walkdown.record_reading`, which the walkdown screen calls when a
-field is left: parse the text, validate the record, save it with its audit row in
-one transaction, then judge it with the engine's rules against the site's profile
+The real path is `walkdown.readings.record_reading`, which the walkdown screen calls
+when a field is left: parse the text, validate the record, save it with its audit row
+in one transaction, then judge it with the engine's rules against the site's profile
 and its last visit. The floor, in the same process, on the same disk and turn about
 with the real path: one bare sqlite3 INSERT of the same row and one COMMIT per
 reading, with the store's pragmas (WAL, foreign keys, busy timeout). Prints both,
@@ -39,12 +39,9 @@ from inspectkit.model import (  # noqa: E402
 from inspectkit.store import Store  # noqa: E402
 from inspectkit.store.database import BUSY_TIMEOUT_MS  # noqa: E402
 from inspectkit.store.rows import to_row  # noqa: E402
-from inspectkit.walkdown import (  # noqa: E402
-    record_reading,
-    site_context,
-    start_inspection,
-    walk_for,
-)
+from inspectkit.walkdown.judging import site_context  # noqa: E402
+from inspectkit.walkdown.readings import record_reading  # noqa: E402
+from inspectkit.walkdown.visit import start_inspection, walk_for  # noqa: E402
 from tests.walkdown_factories import build_walk_site  # noqa: E402
 
 

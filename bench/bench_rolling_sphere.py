@@ -4,9 +4,9 @@ Builds a 200 × 100 m roof (level III, r = 45 m) with 200 air-termination elemen
 (150 mesh conductor pieces and 50 air terminals) and 50 rooftop items of random
 size and height scattered over it, then in one process times
 
-- the real path: `conformity.protection_of` for every item (the coarse pass over
-  each item's top, the fine brackets of its worst points, the fix for exposed
-  items), as `check`, the site screen and the report run it; and
+- the real path: `rooftop_protection.protection_of` for every item (the coarse
+  pass over each item's top, the fine brackets of its worst points, the fix for
+  exposed items), as `check`, the site screen and the report run it; and
 - the floor: one numpy computation of the horizontal distances from the *same*
   candidate sphere centres the search evaluated to the same 200 elements, with
   nothing else (no bounds, no pruning, no Python loop per point),
@@ -28,8 +28,8 @@ import tracemalloc
 
 import numpy as np
 
-import inspectkit.engine.conformity as conformity
-from inspectkit.engine.earthing import ROLLING_SPHERE_RADIUS_M
+import inspectkit.engine.rooftop_protection as rooftop_protection
+from inspectkit.engine.iec62305 import ROLLING_SPHERE_RADIUS_M
 from inspectkit.engine.lps_layout import Layout
 from inspectkit.engine.rolling_sphere import (
     COARSE_MAX_CELLS,
@@ -83,7 +83,8 @@ def build(items: int, seed: int) -> tuple[Site, list[GeometryItem]]:
 
 
 def real(layout: Layout, obstacles, tags, r: float) -> list:  # noqa: ANN001
-    return [conformity.protection_of(layout, item, obstacles, tags, r) for item in layout.items]
+    judge = rooftop_protection.protection_of
+    return [judge(layout, item, obstacles, tags, r) for item in layout.items]
 
 
 def centres_used(layout: Layout, obstacles, tags, r: float) -> np.ndarray:  # noqa: ANN001
@@ -95,11 +96,11 @@ def centres_used(layout: Layout, obstacles, tags, r: float) -> np.ndarray:  # no
         kept.append(found.evaluated)
         return found
 
-    conformity.envelope_height = keeping
+    rooftop_protection.envelope_height = keeping
     try:
         real(layout, obstacles, tags, r)
     finally:
-        conformity.envelope_height = envelope_height
+        rooftop_protection.envelope_height = envelope_height
     return np.vstack(kept)
 
 
@@ -145,7 +146,7 @@ def main() -> None:
         f"{LEVEL.value} (r = {r:g} m); {exposed} items exposed; {points} points of their tops"
     )
     print(
-        f"resolution: tops sampled up to {conformity.TOP_SPACING_M:g} m apart; envelope "
+        f"resolution: tops sampled up to {rooftop_protection.TOP_SPACING_M:g} m apart; envelope "
         f"bracketed within {COARSE_TOLERANCE_M * 100:g} cm (coarse pass, ≤ {COARSE_MAX_CELLS} "
         f"cells) then {ENVELOPE_TOLERANCE_M * 100:g} cm at the worst points (≤ {MAX_CELLS} "
         "cells); every bracket is proven, verdicts use its low side"

@@ -43,7 +43,7 @@ from inspectkit.model import Component, Site  # noqa: E402
 from inspectkit.store import Store  # noqa: E402
 from inspectkit.tui.screens.walkdown import WalkdownScreen  # noqa: E402
 from inspectkit.tui.widgets.stop_pane import FINDING_FIELDS, SLOTS  # noqa: E402
-from inspectkit.walkdown import start_inspection  # noqa: E402
+from inspectkit.walkdown.visit import start_inspection  # noqa: E402
 
 ANCHOR = date(2026, 6, 1)
 

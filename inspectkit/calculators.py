@@ -17,11 +17,29 @@ from typing import Any, TypeVar
 
 from inspectkit.earthing_input import parse_traverse, traverse_as_typed
 from inspectkit.earthing_values import read_traverse
-from inspectkit.engine import earthing
-from inspectkit.engine.earthing import EarthingError
+from inspectkit.engine.electrode_resistance import (
+    RODS_IN_LINE_LAMBDA,
+    parallel_resistance,
+    rod_resistance,
+    rods_in_line_spacing_factor,
+)
 from inspectkit.engine.electrodes import judge_traverse
+from inspectkit.engine.fall_of_potential import (
+    PLATEAU_FRACTIONS,
+    current_probe_min_distance,
+    potential_probe_distance,
+)
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.engine.history import in_service
+from inspectkit.engine.iec62305 import (
+    SEPARATION_KI,
+    SEPARATION_KM,
+    min_electrode_length_l1,
+    separation_distance_m,
+    separation_kc,
+)
 from inspectkit.engine.soil import design_resistivity
+from inspectkit.engine.wenner import wenner_resistivity, wenner_resistivity_simple
 from inspectkit.model import (
     Component,
     ComponentKind,
@@ -130,7 +148,7 @@ def rod(resistivity: str, length: str, diameter: str) -> Answer:
     rho = _quantity("resistivity", resistivity, Quantity.SOIL_RESISTIVITY)
     length_m, diameter_m = _length("length", length), _length("diameter", diameter)
     names = {"resistivity_ohm_m": "resistivity", "length_m": "length", "diameter_m": "diameter"}
-    ohm = _formula(names, lambda: earthing.rod_resistance(rho, length_m, diameter_m))
+    ohm = _formula(names, lambda: rod_resistance(rho, length_m, diameter_m))
     return Answer(
         "rod",
         (
@@ -151,8 +169,8 @@ def wenner(spacing: str, resistance: str, depth: str = "") -> Answer:
     r = _quantity("resistance", resistance, Quantity.EARTH_ISOLATED)
     b = _length("depth", depth) if depth.strip() else 0.0
     names = {"spacing_m": "spacing", "resistance_ohm": "resistance", "depth_m": "depth"}
-    full = _formula(names, lambda: earthing.wenner_resistivity(a, r, b))
-    simple = _formula(names, lambda: earthing.wenner_resistivity_simple(a, r))
+    full = _formula(names, lambda: wenner_resistivity(a, r, b))
+    simple = _formula(names, lambda: wenner_resistivity_simple(a, r))
     lines = [f"ρ = {full:.4g} Ω·m at a = {a:g} m"]
     if b:
         lines.append(
@@ -180,13 +198,13 @@ def traverse(
     size = _length("electrode_size", electrode_size) if electrode_size.strip() else None
     tol = _read("tolerance", lambda t: parse_fraction(t, "tolerance"), tolerance)
     at = _formula({"current_probe_distance_m": "current_probe"},
-                  lambda: earthing.potential_probe_distance(c))  # fmt: skip
-    low, high = (f * c for f in earthing.PLATEAU_FRACTIONS)
+                  lambda: potential_probe_distance(c))  # fmt: skip
+    low, high = (f * c for f in PLATEAU_FRACTIONS)
     lines = [f"potential probe at {at:.3g} m (61.8 % of {c:g} m); checks at {low:.3g} m "
              f"(52 %) and {high:.3g} m (72 %)"]  # fmt: skip
     results: dict[str, Any] = {"potential_probe_m": at, "check_positions_m": [low, high]}
     if size is not None:
-        least = earthing.current_probe_min_distance(size)
+        least = current_probe_min_distance(size)
         results["current_probe_min_m"] = least
         verdict = "far enough" if c >= least else "too close: move it out"
         lines.append(f"current probe at least {least:g} m (5 × {size:g} m): {verdict}")
@@ -223,23 +241,23 @@ def parallel(
     if not texts:
         raise CalcInputError("resistances", "nothing typed; type each electrode's Ω, e.g. 12; 15")
     values = [_quantity("resistances", t, Quantity.EARTH_ISOLATED) for t in texts]
-    ideal = earthing.parallel_resistance(values)
+    ideal = parallel_resistance(values)
     lines = [f"R = {_ohm(ideal)} for {len(values)} electrode(s) far apart: 1/Σ(1/Rᵢ)"]
     results: dict[str, Any] = {"ideal_ohm": ideal}
     source = "parallel combination (circuit law)"
     if spacing.strip() or length.strip():
         s, length_m = _length("spacing", spacing), _length("length", length)
         d = _length("diameter", diameter)
-        most = max(earthing.RODS_IN_LINE_LAMBDA)
+        most = max(RODS_IN_LINE_LAMBDA)
         if len(values) > most:
             raise CalcInputError(
                 "resistances", f"rods in line: 1 to {most} rods; the method's table goes no further"
             )
         names = {"spacing_m": "spacing", "length_m": "length", "diameter_m": "diameter"}
         factor = _formula(
-            names, lambda: earthing.rods_in_line_spacing_factor(len(values), s, length_m, d)
+            names, lambda: rods_in_line_spacing_factor(len(values), s, length_m, d)
         )
-        coupled = earthing.parallel_resistance(values, factor)
+        coupled = parallel_resistance(values, factor)
         lines.append(
             f"in line {s:g} m apart ({length_m:g} m rods): R ≈ {_ohm(coupled)} "
             f"(spacing factor {factor:.3f})"
@@ -254,7 +272,7 @@ def l1(level: str, resistivity: str, orientation: str = "") -> Answer:
     lvl = _level(level)
     rho = _quantity("resistivity", resistivity, Quantity.SOIL_RESISTIVITY)
     names = {"resistivity_ohm_m": "resistivity", "level": "level"}
-    length = _formula(names, lambda: earthing.min_electrode_length_l1(lvl, rho))
+    length = _formula(names, lambda: min_electrode_length_l1(lvl, rho))
     lines = [
         f"l1 = {length:.3g} m for level {lvl.value} in {rho:g} Ω·m soil",
         f"type A: horizontal ≥ {length:.3g} m, vertical or inclined ≥ {0.5 * length:.3g} m "
@@ -289,13 +307,13 @@ def separation(
              "length_m": "length"}  # fmt: skip
     s = _formula(
         names,
-        lambda: earthing.separation_distance_m(
+        lambda: separation_distance_m(
             lvl, n, length_m, material.strip().lower(), edition.strip()  # type: ignore[arg-type]
         ),
     )
-    kc = earthing.separation_kc(n, edition.strip())  # type: ignore[arg-type]
-    ki = earthing.SEPARATION_KI[lvl]
-    km = earthing.SEPARATION_KM[material.strip().lower()]
+    kc = separation_kc(n, edition.strip())  # type: ignore[arg-type]
+    ki = SEPARATION_KI[lvl]
+    km = SEPARATION_KM[material.strip().lower()]
     return Answer(
         "separation",
         (
@@ -378,7 +396,7 @@ def prefill(
     traverse_inputs = {"electrode_size": rod_length, "tolerance": "5 %", "current_probe": "",
                        "points": ""}  # fmt: skip
     if length:
-        traverse_inputs["current_probe"] = f"{earthing.current_probe_min_distance(length):g} m"
+        traverse_inputs["current_probe"] = f"{current_probe_min_distance(length):g} m"
     own = latest.get((component.id, Quantity.EARTH_ISOLATED)) if component else None
     if own is not None and own.traverse:
         series = read_traverse(own.traverse)

@@ -9,7 +9,7 @@ import pytest
 
 from inspectkit.engine.check import check_site
 from inspectkit.engine.conformity import assess
-from inspectkit.engine.earthing import (
+from inspectkit.engine.iec62305 import (
     DOWN_CONDUCTOR_SPACING_M,
     MESH_SIZE_M,
     MIN_PEAK_CURRENT_KA,

@@ -9,28 +9,31 @@ from hypothesis import given
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
-from inspectkit.engine.earthing import (
+from inspectkit.engine.electrode_resistance import (
+    RODS_IN_LINE_LAMBDA,
+    parallel_resistance,
+    rod_resistance,
+    rods_in_line_spacing_factor,
+)
+from inspectkit.engine.fall_of_potential import (
+    PlateauResult,
+    current_probe_min_distance,
+    plateau_check,
+    potential_probe_distance,
+)
+from inspectkit.engine.formula_inputs import EarthingError
+from inspectkit.engine.iec62305 import (
     DOWN_CONDUCTOR_SPACING_M,
     MESH_SIZE_M,
     MIN_PEAK_CURRENT_KA,
-    RODS_IN_LINE_LAMBDA,
     ROLLING_SPHERE_RADIUS_M,
-    EarthingError,
-    PlateauResult,
-    current_probe_min_distance,
     min_electrode_length,
     min_electrode_length_l1,
-    parallel_resistance,
-    plateau_check,
-    potential_probe_distance,
-    rod_resistance,
-    rods_in_line_spacing_factor,
     separation_distance_m,
     separation_kc,
     striking_distance_m,
-    wenner_resistivity,
-    wenner_resistivity_simple,
 )
+from inspectkit.engine.wenner import wenner_resistivity, wenner_resistivity_simple
 from inspectkit.model import ProtectionLevel
 
 I, II, III, IV = tuple(ProtectionLevel)  # noqa: E741 - the standard's own names

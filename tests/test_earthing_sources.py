@@ -14,8 +14,10 @@ from hypothesis import strategies as st
 
 from inspectkit import calculators
 from inspectkit.earthing_values import make_traverse
-from inspectkit.engine.earthing import plateau_check, rod_resistance, wenner_resistivity
+from inspectkit.engine.electrode_resistance import rod_resistance
 from inspectkit.engine.electrodes import judge_traverse
+from inspectkit.engine.fall_of_potential import plateau_check
+from inspectkit.engine.wenner import wenner_resistivity
 
 #: Where the potential probe goes in the synthetic traverses, as fractions of E–C.
 POSITIONS = (0.1, 0.2, 0.3, 0.4, 0.5, 0.52, 0.6, 0.618, 0.65, 0.72, 0.8, 0.9)

@@ -25,15 +25,11 @@ from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.csvimport import ColumnMap, CsvImportError, CsvOptions, import_readings_csv
 from inspectkit.sync.guard import BundleError
 from inspectkit.sync.merge import import_bundle
-from inspectkit.walkdown import (
-    WalkdownError,
-    choose_instrument,
-    chosen_instruments,
-    finish_inspection,
-    instrument_for,
-    record_reading,
-    start_inspection,
-)
+from inspectkit.walkdown.completion import finish_inspection
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.instruments import choose_instrument, chosen_instruments, instrument_for
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import start_inspection
 from tests.walkdown_factories import WalkSite, build_walk_site
 
 DAY = date(2026, 6, 1)

@@ -13,7 +13,7 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from inspectkit.engine.earthing import ROLLING_SPHERE_RADIUS_M
+from inspectkit.engine.iec62305 import ROLLING_SPHERE_RADIUS_M
 from inspectkit.engine.rolling_sphere import (
     GeometryError,
     Obstacles,

@@ -8,6 +8,11 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 SOURCES = ROOT / "docs" / "sources.md"
 STANDINGS = ("as quoted", "from memory", "common practice", "our default")
+#: The engine modules holding the formulas of standards and handbooks, each citing its source.
+FORMULAS = tuple(
+    ROOT / "inspectkit" / "engine" / f"{name}.py"
+    for name in ("electrode_resistance", "wenner", "fall_of_potential", "iec62305")
+)
 
 
 def _tracked() -> list[Path]:
@@ -32,6 +37,6 @@ def test_no_file_cites_a_document_outside_the_repository() -> None:
 
 
 def test_standards_are_said_to_be_as_quoted_not_published() -> None:
-    for path in (ROOT / "inspectkit" / "engine" / "earthing.py", *ROOT.glob("templates/**/*.toml")):
+    for path in (*FORMULAS, *ROOT.glob("templates/**/*.toml")):
         text = path.read_text(encoding="utf-8")
         assert "(published" not in text and "published)" not in text, path

@@ -16,9 +16,6 @@ PACKAGE = Path(__file__).resolve().parent.parent / "inspectkit"
 
 # Files still holding SQL, each for a reason; remove an entry once its SQL has moved.
 ALLOWED = (
-    # The walkdown job is being split in another step of the redesign, which moves its
-    # queries into the store (the prefix covers walkdown.py and a walkdown/ package).
-    "walkdown",
     # The CSV import is reworked in another step; its two selects move then.
     "sync/csvimport.py",
 )

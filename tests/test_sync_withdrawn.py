@@ -11,7 +11,7 @@ from inspectkit.model import Inspection, Photo, Quantity, Reading
 from inspectkit.store import Store
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
-from inspectkit.walkdown import withdraw_reading
+from inspectkit.walkdown.readings import withdraw_reading
 
 
 @pytest.fixture

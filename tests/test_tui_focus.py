@@ -19,7 +19,7 @@ from inspectkit.store import Store
 from inspectkit.tui.app import make_app
 from inspectkit.tui.dialogs.record_form import RecordDialog
 from inspectkit.tui.screens.walkdown import WalkdownScreen
-from inspectkit.walkdown import start_inspection
+from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import status_of, walk_db, walking  # noqa: F401
 from tests.walkdown_factories import TODAY, build_walk_site, write_photo
 

@@ -199,15 +199,19 @@ async def test_long_list_filters_once_typing_pauses(
     from inspectkit.tui.screens import sites
 
     monkeypatch.setattr(sites, "LONG_LIST", 1)
-    # Long enough that a loaded machine's gaps between pilot keys stay inside it.
-    monkeypatch.setattr(sites, "TYPING_PAUSE", 0.6)
+    # A pause no loaded machine's gap between two pilot keys reaches: nothing is filtered
+    # while typing goes on.
+    monkeypatch.setattr(sites, "TYPING_PAUSE", 60.0)
     app = make_app(tui_db, today=ANCHOR)
     async with app.run_test(size=(80, 24)) as pilot:
         await settled(pilot)
         table = app.screen.query_one("#sites", DataTable)
         await pilot.press(*"porth")
         assert table.row_count == 3
-        await pilot.pause(sites.TYPING_PAUSE * 3)
+        # The next key waits the (now short) pause again, and then the list is filtered.
+        monkeypatch.setattr(sites, "TYPING_PAUSE", 0.05)
+        await pilot.press("backspace", "h")
+        await pilot.pause(0.5)
         assert sorted(column(table, "name")) == ["Harbour Depot", "Orchard Tower"]
 
 

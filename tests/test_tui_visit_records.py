@@ -26,7 +26,9 @@ from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.screens.site import SiteScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
-from inspectkit.walkdown import finish_inspection, record_reading, start_inspection
+from inspectkit.walkdown.completion import finish_inspection
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import walking
 from tests.walkdown_factories import TODAY, build_walk_site, on_the_day
 

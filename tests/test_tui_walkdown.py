@@ -42,13 +42,9 @@ from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.reading_entry import ReadingEntry, entry_label
 from inspectkit.tui.widgets.saving_field import SavingField
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
-from inspectkit.walkdown import (
-    grade_component,
-    record_reading,
-    set_details,
-    start_inspection,
-    walk_for,
-)
+from inspectkit.walkdown.grades import grade_component
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import set_details, start_inspection, walk_for
 from tests.walkdown_factories import TODAY, build_walk_site, on_the_day, write_photo
 
 

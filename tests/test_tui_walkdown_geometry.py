@@ -12,7 +12,7 @@ from inspectkit.store import Store
 from inspectkit.store.geometry import save_geometry_item, site_geometry
 from inspectkit.tui.dialogs.geometry import GeometryDialog
 from inspectkit.tui.screens.walkdown import WalkdownScreen
-from inspectkit.walkdown import start_inspection
+from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness
 from tests.walkdown_factories import TODAY, build_walk_site
 

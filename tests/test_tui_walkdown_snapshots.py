@@ -11,7 +11,9 @@ from textual.pilot import Pilot
 from textual.widgets import Input
 
 from inspectkit.store import Store
-from inspectkit.walkdown import grade_component, record_reading, start_inspection, walk_for
+from inspectkit.walkdown.grades import grade_component
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import start_inspection, walk_for
 from tests.test_tui_walkdown import WalkHarness
 from tests.walkdown_factories import build_walk_site
 

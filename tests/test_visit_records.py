@@ -32,17 +32,17 @@ from inspectkit.store.database import apply_migrations
 from inspectkit.store.queries import load_site_records
 from inspectkit.sync.bundle import export_bundle
 from inspectkit.sync.merge import import_bundle
-from inspectkit.walkdown import (
-    WalkdownError,
-    clear_not_inspected,
-    discard_inspection,
+from inspectkit.walkdown.completion import (
     finish_inspection,
-    grade_component,
     joints_not_retested,
-    mark_not_inspected,
     missing_for_completion,
     opened_joints,
-    record_reading,
+)
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import clear_not_inspected, grade_component, mark_not_inspected
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import (
+    discard_inspection,
     same_day_draft,
     set_inspector,
     start_inspection,

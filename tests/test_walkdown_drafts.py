@@ -15,14 +15,9 @@ from inspectkit.model import Finding, Inspection, Quantity, Reading
 from inspectkit.report.gather import build_report
 from inspectkit.store import Store
 from inspectkit.sync.bundle import export_bundle
-from inspectkit.walkdown import (
-    drafts_for,
-    drafts_told,
-    keep_drafts,
-    record_reading,
-    saved_entries,
-    start_inspection,
-)
+from inspectkit.walkdown.continuing import drafts_for, drafts_told, keep_drafts, saved_entries
+from inspectkit.walkdown.readings import record_reading
+from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness, screen_of, status_of
 from tests.walkdown_drafts_child import NOTE, VALUE
 from tests.walkdown_factories import TODAY, build_walk_site, on_the_day

@@ -17,7 +17,7 @@ from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import CalculatorScreen
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.traverse_view import TraverseView
-from inspectkit.walkdown import start_inspection
+from inspectkit.walkdown.visit import start_inspection
 
 SITE = "Aldermere"
 

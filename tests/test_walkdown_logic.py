@@ -10,7 +10,6 @@ from typing import Any
 
 import pytest
 
-from inspectkit import walkdown
 from inspectkit.checklists import load_checklist
 from inspectkit.model import (
     ComponentKind,
@@ -26,21 +25,15 @@ from inspectkit.model import (
 )
 from inspectkit.store import Store
 from inspectkit.store.queries import last_write
-from inspectkit.walkdown import (
-    WalkdownError,
-    attach_photo_file,
-    attach_photo_folder,
-    attach_photos,
-    finish_inspection,
-    grade_component,
-    missing_for_completion,
-    saved_entries,
-    set_details,
-    set_soil,
-    start_inspection,
-    walk_for,
-    withdraw_reading,
-)
+from inspectkit.walkdown import readings as walkdown_readings
+from inspectkit.walkdown.completion import finish_inspection, missing_for_completion
+from inspectkit.walkdown.continuing import saved_entries
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import grade_component
+from inspectkit.walkdown.judging import ReadingOutcome
+from inspectkit.walkdown.photos import attach_photo_file, attach_photo_folder, attach_photos
+from inspectkit.walkdown.readings import withdraw_reading
+from inspectkit.walkdown.visit import set_details, set_soil, start_inspection, walk_for
 from tests.walkdown_factories import EARLIER, WalkSite, build_walk_site, write_photo
 
 TODAY = date(2026, 6, 1)
@@ -48,10 +41,10 @@ TODAY = date(2026, 6, 1)
 AT = datetime(2026, 6, 1, 10, 0, tzinfo=UTC)
 
 
-def record_reading(*args: Any, **kwargs: Any) -> walkdown.ReadingOutcome:
+def record_reading(*args: Any, **kwargs: Any) -> ReadingOutcome:
     """The walkdown's own, with the readings taken on the visit's day rather than the clock's."""
     kwargs.setdefault("taken_at", AT)
-    return walkdown.record_reading(*args, **kwargs)
+    return walkdown_readings.record_reading(*args, **kwargs)
 
 
 @pytest.fixture
@@ -334,7 +327,12 @@ def test_every_kind_has_a_checklist(kind: ComponentKind) -> None:
 
 def test_the_walkdown_logic_imports_without_textual() -> None:
     """A command or a test can walk a site without the screen's framework loaded."""
-    code = "import sys, inspectkit.walkdown, inspectkit.checklists; print('textual' in sys.modules)"
+    code = (
+        "import sys, pkgutil, importlib, inspectkit.walkdown as w, inspectkit.checklists\n"
+        "for m in pkgutil.iter_modules(w.__path__):\n"
+        "    importlib.import_module(f'inspectkit.walkdown.{m.name}')\n"
+        "print('textual' in sys.modules)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 

@@ -19,7 +19,7 @@ import pytest
 from inspectkit.model import Finding, Quantity, Reading
 from inspectkit.store import Store
 from inspectkit.units import parse
-from inspectkit.walkdown import start_inspection, walk_for
+from inspectkit.walkdown.visit import start_inspection, walk_for
 from tests.walkdown_factories import TODAY, build_walk_site
 
 #: Seconds between keys: about five keys a second, a brisk typist on a keyboard.

@@ -19,13 +19,15 @@ import pytest
 from textual import events
 
 from inspectkit.demo.generate import build_demo
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Finding, Grade, Quantity, Reading
 from inspectkit.store import Store
 from inspectkit.store.queries import find_site
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.tui.widgets.stop_pane import StopPane
 from inspectkit.units import parse
-from inspectkit.walkdown import Stop, judge_reading, site_context, start_inspection, walk_for
+from inspectkit.walkdown.judging import judge_reading, site_context
+from inspectkit.walkdown.visit import start_inspection, walk_for
 from tests.test_tui_walkdown import WalkHarness, screen_of, walk_db, walking  # noqa: F401
 
 ANCHOR = date(2026, 6, 1)

@@ -11,7 +11,7 @@ import sys
 from pathlib import Path
 
 from inspectkit.store import Store
-from inspectkit.walkdown import start_inspection
+from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness
 from tests.walkdown_factories import TODAY, build_walk_site
 

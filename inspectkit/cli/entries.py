@@ -30,18 +30,12 @@ from inspectkit.model import (
 from inspectkit.repeats import RepeatError, mark_repeat
 from inspectkit.store.record_queries import site_components
 from inspectkit.units import UnitError, format_value
-from inspectkit.walkdown import (
-    ReadingOutcome,
-    WalkdownError,
-    attach_photos,
-    chosen_instruments,
-    clear_not_inspected,
-    grade_component,
-    instrument_for,
-    mark_not_inspected,
-    record_reading,
-    withdraw_reading,
-)
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import clear_not_inspected, grade_component, mark_not_inspected
+from inspectkit.walkdown.instruments import chosen_instruments, instrument_for
+from inspectkit.walkdown.judging import ReadingOutcome
+from inspectkit.walkdown.photos import attach_photos
+from inspectkit.walkdown.readings import record_reading, withdraw_reading
 from inspectkit.wording import counted
 
 photo_app = typer.Typer(

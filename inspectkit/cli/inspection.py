@@ -12,19 +12,16 @@ import typer
 from inspectkit.cli import lookups
 from inspectkit.cli.common import DbOption, Exit, JsonOption, emit_json, open_store
 from inspectkit.cli.entries import outcome_json, outcome_line
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Inspection, Inspector, Site
 from inspectkit.store.preferences import Preferences
 from inspectkit.store.record_queries import site_inspections
-from inspectkit.walkdown import (
+from inspectkit.walkdown.completion import Missing, finish_inspection, missing_for_completion
+from inspectkit.walkdown.continuing import SavedEntries, saved_entries
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.visit import (
     DETAIL_LABELS,
-    Missing,
-    SavedEntries,
-    Stop,
-    WalkdownError,
     discard_inspection,
-    finish_inspection,
-    missing_for_completion,
-    saved_entries,
     set_details,
     set_inspector,
     start_inspection,

@@ -24,7 +24,8 @@ from inspectkit.store.record_queries import (
     records_with_id_prefix,
     site_inspections,
 )
-from inspectkit.walkdown import WalkdownError, walk_for
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.visit import walk_for
 
 R = TypeVar("R", bound=Record)
 

@@ -16,7 +16,8 @@ from datetime import UTC, datetime, time, timedelta
 from typing import TYPE_CHECKING
 
 from inspectkit.earthing_values import Traverse, make_traverse, survey_text
-from inspectkit.engine.earthing import plateau_check, wenner_resistivity
+from inspectkit.engine.fall_of_potential import plateau_check
+from inspectkit.engine.wenner import wenner_resistivity
 from inspectkit.model import (
     ComponentKind,
     ElectrodeOrientation,

@@ -8,8 +8,9 @@ from datetime import date
 
 from inspectkit.engine.history import as_of, series
 from inspectkit.engine.results import SEVERITY_WORDS, Result
-from inspectkit.engine.rules import RULES, SiteFacts, facts_for
+from inspectkit.engine.rules import RULES
 from inspectkit.engine.schedule import SiteSchedule, schedule_site
+from inspectkit.engine.site_facts import SiteFacts, facts_for
 from inspectkit.engine.trend import ElectrodeTrend, electrode_trends
 from inspectkit.model import Severity, SiteRecords
 from inspectkit.profiles import Profile, ProfileError

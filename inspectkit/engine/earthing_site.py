@@ -13,7 +13,6 @@ from datetime import date
 from typing import TYPE_CHECKING
 
 from inspectkit.earthing_values import SeriesError, Traverse, read_traverse
-from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import (
     ExpectedResistance,
     LengthCheck,
@@ -22,6 +21,7 @@ from inspectkit.engine.electrodes import (
     judge_traverse,
     length_check,
 )
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.engine.history import in_service
 from inspectkit.engine.soil import (
     DesignResistivity,
@@ -43,7 +43,7 @@ from inspectkit.profiles import EarthingFigures, Profile
 
 if TYPE_CHECKING:
     from inspectkit.engine.results import Result
-    from inspectkit.engine.rules import SiteFacts
+    from inspectkit.engine.site_facts import SiteFacts
 
 #: Least number of type A electrodes (IEC 62305-3 clause 5.4.2.1, as quoted).
 MIN_TYPE_A_ELECTRODES = 2

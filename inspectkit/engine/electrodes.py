@@ -2,9 +2,10 @@
 
 Pure: each takes the electrode's record, the site's level and design resistivity
 and the profile's figures, and returns a plain result with a sentence. The
-formulas are those of `engine.earthing`; what is a verdict (a traverse with no
-plateau proves nothing) and what is advice (a reading far from what the soil
-allows) is said in each docstring.
+formulas are those of `engine.fall_of_potential`, `engine.iec62305` and
+`engine.electrode_resistance`; what is a verdict (a traverse with no plateau proves
+nothing) and what is advice (a reading far from what the soil allows) is said in
+each docstring.
 """
 
 from __future__ import annotations
@@ -13,15 +14,14 @@ import math
 from dataclasses import dataclass
 
 from inspectkit.earthing_values import Traverse
-from inspectkit.engine.earthing import (
-    EarthingError,
+from inspectkit.engine.electrode_resistance import rod_resistance
+from inspectkit.engine.fall_of_potential import (
     PlateauResult,
     current_probe_min_distance,
-    min_electrode_length,
-    min_electrode_length_l1,
     plateau_check,
-    rod_resistance,
 )
+from inspectkit.engine.formula_inputs import EarthingError
+from inspectkit.engine.iec62305 import min_electrode_length, min_electrode_length_l1
 from inspectkit.model import (
     Component,
     EarthingArrangement,

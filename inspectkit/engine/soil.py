@@ -2,7 +2,7 @@
 
 Pure: takes the survey's numbers (or `SoilSurvey` records) and the profile's
 tolerances, returns plain results with a sentence. The formulas are in
-`engine.earthing` (IEEE Std 81); the thresholds come from the profile.
+`engine.wenner` (IEEE Std 81); the thresholds come from the profile.
 """
 
 from __future__ import annotations
@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from datetime import date
 
 from inspectkit.earthing_values import read_survey
-from inspectkit.engine.earthing import wenner_resistivity, wenner_resistivity_simple
+from inspectkit.engine.wenner import wenner_resistivity, wenner_resistivity_simple
 from inspectkit.model import Quantity, Reading, SoilSurvey
 from inspectkit.units import format_value
 

@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from inspectkit.cautions import CAUTIONS
-from inspectkit.engine.conformity import Conformity
+from inspectkit.engine.conformity_verdicts import Conformity
 from inspectkit.geometry_model import GeometryItem
 from inspectkit.wording import counted
 

@@ -14,7 +14,7 @@ from reportlab.lib import colors
 from reportlab.lib.units import mm
 from reportlab.platypus import CondPageBreak, Flowable, KeepTogether, Table
 
-from inspectkit.engine.earthing import POTENTIAL_PROBE_FRACTION
+from inspectkit.engine.fall_of_potential import POTENTIAL_PROBE_FRACTION
 from inspectkit.report.content import ReportContent
 from inspectkit.report.earthing_content import SurveyBlock, TraverseBlock
 from inspectkit.report.layout import Kit, grid

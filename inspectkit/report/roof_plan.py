@@ -19,7 +19,7 @@ from reportlab.lib.styles import ParagraphStyle
 from reportlab.lib.units import mm
 from reportlab.platypus import CondPageBreak, Flowable, Paragraph, Spacer, Table, TableStyle
 
-from inspectkit.engine.conformity import Verdict
+from inspectkit.engine.conformity_verdicts import Verdict
 from inspectkit.engine.lps_layout import Layout
 from inspectkit.engine.rolling_sphere import protected_radius
 from inspectkit.geometry_model import GeometryItem

@@ -23,8 +23,8 @@ from pydantic import ValidationError
 from inspectkit import intake, units
 from inspectkit.earthing_input import parse_traverse
 from inspectkit.earthing_values import Traverse
-from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import traverse_reading
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.model import (
     JOINT_FOR,
     METHODS_FOR,

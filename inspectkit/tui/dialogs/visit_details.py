@@ -6,7 +6,8 @@ from collections.abc import Callable
 
 from inspectkit.model import Inspection
 from inspectkit.tui.dialogs.record_form import Field, RecordDialog
-from inspectkit.walkdown import DETAIL_LABELS, WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.visit import DETAIL_LABELS
 
 #: What to type in each detail, shown as the placeholder and after a refusal.
 _HINTS = {
@@ -32,7 +33,7 @@ class VisitDetailsDialog(RecordDialog[Inspection]):
     def __init__(self, inspection: Inspection, save: SaveDetails) -> None:
         """Args:
         inspection: The visit, for the fields' current values.
-        save: Called with the five fields by name (`walkdown.set_details` bound to
+        save: Called with the five fields by name (`walkdown.visit.set_details` bound to
             the store and the inspection).
         """
         fields = [Field(name, label, _HINTS[name]) for name, label in DETAIL_LABELS.items()]

@@ -13,8 +13,8 @@ from inspectkit.model import Inspection, InspectionKind, InspectionState, Inspec
 from inspectkit.retiring import in_service
 from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
-from inspectkit.walkdown import (
-    WalkdownError,
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.visit import (
     discard_inspection,
     same_day_draft,
     set_inspector,

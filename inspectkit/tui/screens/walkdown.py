@@ -18,6 +18,7 @@ from textual.screen import Screen
 from textual.widgets import Header, OptionList, Static
 from textual.widgets.option_list import Option
 
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Inspection, Method, Quantity
 from inspectkit.printable import printable
 from inspectkit.store import Store
@@ -31,16 +32,15 @@ from inspectkit.tui.widgets.stop_list import StopList, complete, prompt
 from inspectkit.tui.widgets.stop_pane import StopPane
 from inspectkit.tui.widgets.walk_bar import WalkBar
 from inspectkit.tui.widgets.walkdown_earthing import EARTHING_BINDINGS, WalkdownEarthing
-from inspectkit.walkdown import (
+from inspectkit.walkdown.continuing import (
     SavedEntries,
-    Stop,
     drafts_for,
     drafts_told,
     keep_drafts,
     saved_entries,
-    site_context,
-    walk_for,
 )
+from inspectkit.walkdown.judging import site_context
+from inspectkit.walkdown.visit import walk_for
 from inspectkit.wording import counted
 
 #: How often what is typed and not saved is kept in the database (seconds).

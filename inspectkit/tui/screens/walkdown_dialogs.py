@@ -20,13 +20,10 @@ from inspectkit.tui.dialogs.visit_details import VisitDetailsDialog
 from inspectkit.tui.screens.walkdown_parts import WalkdownParts
 from inspectkit.tui.widgets.reading_entry import ReadingEntry
 from inspectkit.units import format_value
-from inspectkit.walkdown import (
-    WalkdownError,
-    clear_not_inspected,
-    mark_not_inspected,
-    set_details,
-    withdraw_reading,
-)
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.grades import clear_not_inspected, mark_not_inspected
+from inspectkit.walkdown.readings import withdraw_reading
+from inspectkit.walkdown.visit import set_details
 
 DIALOG_BINDINGS = [
     Binding(

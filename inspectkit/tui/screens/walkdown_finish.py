@@ -17,15 +17,15 @@ from inspectkit.tui.dialogs.choice import ChoiceDialog
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
 from inspectkit.tui.dialogs.text_prompt import TextPrompt
 from inspectkit.tui.screens.walkdown_parts import WalkdownParts
-from inspectkit.walkdown import (
+from inspectkit.walkdown.completion import (
     Missing,
-    WalkdownError,
     finish_inspection,
-    forget_drafts,
     joints_not_retested,
     missing_for_completion,
     opened_joints,
 )
+from inspectkit.walkdown.continuing import forget_drafts
+from inspectkit.walkdown.errors import WalkdownError
 
 #: How many ungraded tags the finish question names before "and N more".
 _UNGRADED_SHOWN = 20

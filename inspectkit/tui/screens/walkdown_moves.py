@@ -13,10 +13,10 @@ import asyncio
 
 from textual.binding import Binding
 
+from inspectkit.engine.walking import Stop
 from inspectkit.tui.screens.walkdown_parts import WalkdownParts
 from inspectkit.tui.widgets.stop_pane import StopView
 from inspectkit.tui.widgets.tag_prompt import TagPrompt
-from inspectkit.walkdown import Stop
 
 #: How long a move waits at most for keys sent to the field being left (seconds).
 _SETTLE_TIMEOUT = 0.5

@@ -16,13 +16,15 @@ from typing import Any, Protocol
 from textual.widget import Widget
 
 from inspectkit.earthing_values import Traverse
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Inspection, Method, Quantity
 from inspectkit.store import Store
 from inspectkit.tui.widgets.held_paint import HeldPaint
 from inspectkit.tui.widgets.stop_list import StopList
 from inspectkit.tui.widgets.stop_pane import StopPane, StopView
 from inspectkit.tui.widgets.walk_bar import WalkBar
-from inspectkit.walkdown import ReadingOutcome, SavedEntries, SiteContext, Stop
+from inspectkit.walkdown.continuing import SavedEntries
+from inspectkit.walkdown.judging import ReadingOutcome, SiteContext
 
 
 class WalkdownParts(Protocol):

@@ -13,14 +13,11 @@ from inspectkit.earthing_values import Traverse
 from inspectkit.model import JOINT_FOR, Finding, Grade, Method, Quantity
 from inspectkit.tui.screens.walkdown_parts import WalkdownParts
 from inspectkit.tui.widgets.stop_pane import photo_label
-from inspectkit.walkdown import (
-    ReadingOutcome,
-    attach_photos,
-    chosen_instruments,
-    grade_component,
-    instrument_for,
-    record_reading,
-)
+from inspectkit.walkdown.grades import grade_component
+from inspectkit.walkdown.instruments import chosen_instruments, instrument_for
+from inspectkit.walkdown.judging import ReadingOutcome
+from inspectkit.walkdown.photos import attach_photos
+from inspectkit.walkdown.readings import record_reading
 from inspectkit.wording import counted
 
 

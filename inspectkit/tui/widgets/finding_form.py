@@ -12,7 +12,7 @@ from textual.widgets import Label, Static
 from inspectkit.model import Finding, Grade
 from inspectkit.tui.widgets.held_keys import GradeButton, GradeButtons
 from inspectkit.tui.widgets.saving_field import SAVED, SavingField
-from inspectkit.walkdown import WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
 
 #: Grade words as the inspector reads them, in the order of the buttons.
 GRADE_WORDS: dict[Grade, str] = {

@@ -23,7 +23,8 @@ from inspectkit.model import (
 from inspectkit.tui.widgets.held_keys import PickList, ShownCheckbox
 from inspectkit.tui.widgets.saving_field import SAVED, SavingField
 from inspectkit.units import format_value
-from inspectkit.walkdown import ReadingOutcome, WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.judging import ReadingOutcome
 
 #: Saves, for a component and quantity, the text typed with the method chosen and whether
 #: it is doubtful, and judges it.

@@ -18,7 +18,8 @@ from textual.containers import Vertical
 from textual.widget import Widget
 from textual.widgets import DataTable, Static
 
-from inspectkit.engine.conformity import Conformity, assess
+from inspectkit.engine.conformity import assess
+from inspectkit.engine.conformity_verdicts import Conformity
 from inspectkit.geometry_model import GeometryItem, GeometryKind
 from inspectkit.model import SiteRecords
 from inspectkit.store.geometry import delete_geometry_item

@@ -11,7 +11,7 @@ from textual.message import Message
 from textual.widgets import Input, Label, Static
 
 from inspectkit.tui.widgets.held_keys import FieldInput
-from inspectkit.walkdown import WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
 
 #: Takes the text as typed, saves it, and returns what to show under the field;
 #: raises WalkdownError (nothing saved) when the text is not valid.

@@ -8,9 +8,10 @@ from rich.text import Text
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
+from inspectkit.engine.walking import Stop
 from inspectkit.model import Grade, Quantity, Severity
 from inspectkit.tui.widgets.held_keys import HeldKeys
-from inspectkit.walkdown import SavedEntries, Stop
+from inspectkit.walkdown.continuing import SavedEntries
 
 #: A stop's state in the list: the word carries the meaning, the colour repeats it.
 MARK_STYLES = {

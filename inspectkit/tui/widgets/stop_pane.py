@@ -20,12 +20,13 @@ from textual.widget import Widget
 from textual.widgets import Static
 
 from inspectkit.checklists import ChecklistError, load_checklist
+from inspectkit.engine.walking import Stop
 from inspectkit.model import QUANTITIES_FOR, ComponentKind, Finding, Method, Quantity
 from inspectkit.tui.widgets.finding_form import FindingForm, FindingSaver
 from inspectkit.tui.widgets.reading_entry import ReadingEntry, Recorder
 from inspectkit.tui.widgets.saving_field import SavingField
 from inspectkit.tui.widgets.traverse_view import TraverseView
-from inspectkit.walkdown import ReadingOutcome, Stop
+from inspectkit.walkdown.judging import ReadingOutcome
 
 #: Reading entries the pane holds: as many as any component has quantities.
 SLOTS = max(len(quantities) for quantities in QUANTITIES_FOR.values())

@@ -8,10 +8,10 @@ from rich.text import Text
 from textual.widgets import Static
 
 from inspectkit.earthing_values import SeriesError, Traverse, read_traverse
-from inspectkit.engine.earthing import EarthingError
 from inspectkit.engine.electrodes import judge_traverse
+from inspectkit.engine.formula_inputs import EarthingError
 from inspectkit.model import Quantity
-from inspectkit.walkdown import ReadingOutcome
+from inspectkit.walkdown.judging import ReadingOutcome
 
 #: Earth readings a traverse can give, in the order the walkdown asks for them.
 EARTH = (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED)

@@ -19,7 +19,9 @@ from inspectkit.retiring import in_service
 from inspectkit.store import Store
 from inspectkit.store.preferences import INSTRUMENT_SETTING
 from inspectkit.tui.widgets.held_keys import PickList
-from inspectkit.walkdown import WalkdownError, choose_instrument, set_soil
+from inspectkit.walkdown.errors import WalkdownError
+from inspectkit.walkdown.instruments import choose_instrument
+from inspectkit.walkdown.visit import set_soil
 
 
 class WalkBar(Horizontal):

@@ -20,7 +20,7 @@ from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import calculator_for
 from inspectkit.tui.screens.walkdown_parts import WalkdownParts
 from inspectkit.tui.widgets.traverse_view import EARTH
-from inspectkit.walkdown import WalkdownError
+from inspectkit.walkdown.errors import WalkdownError
 
 EARTHING_BINDINGS = [
     Binding(
