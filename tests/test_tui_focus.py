@@ -6,7 +6,7 @@ pick lists open on Enter only, boxes show their state, and Settings reach an ope
 
 from __future__ import annotations
 
-from datetime import UTC, date, datetime
+from datetime import date
 from pathlib import Path
 
 from textual.widgets import Button, Input, Select
@@ -21,7 +21,7 @@ from inspectkit.tui.dialogs.record_form import RecordDialog
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import status_of, walk_db, walking  # noqa: F401
-from tests.walkdown_factories import build_walk_site, write_photo
+from tests.walkdown_factories import TODAY, build_walk_site, write_photo
 
 
 async def _dialog(pilot, key: str) -> RecordDialog:  # type: ignore[no-untyped-def, type-arg]
@@ -127,6 +127,7 @@ async def test_an_instrument_added_in_settings_reaches_the_open_walkdown(tmp_pat
 
 
 def test_retired_inspectors_and_instruments_leave_the_pickers(tmp_path: Path) -> None:
+    """On the real day: `retire` with no `--on` retires as of the clock's today."""
     path = tmp_path / "walk.sqlite"
     with Store.open(path) as store:
         site = build_walk_site(store)
@@ -151,7 +152,7 @@ async def test_retiring_in_settings_hides_it_from_the_walkdown(walk_db: tuple[Pa
         spare = store.save(Instrument(description="Typo tester", serial="X-1"))
         store.set_setting("cautions_acknowledged", "yes")
         store.set_setting("instrument_id", spare.id)
-    app = make_app(path, today=ANCHOR)
+    app = make_app(path, today=TODAY)  # the day of walk_db's visit
     async with app.run_test(size=(80, 24)) as pilot:
         await settled(pilot)
         await pilot.press("f4")
@@ -161,7 +162,7 @@ async def test_retiring_in_settings_hides_it_from_the_walkdown(walk_db: tuple[Pa
         await pilot.pause()
         await pilot.press("y")
         await pilot.pause()
-        assert app.store.get(Instrument, spare.id).retired_on == ANCHOR
+        assert app.store.get(Instrument, spare.id).retired_on == TODAY
         settings = app.screen
         assert spare.id not in {v for _, v in settings.query_one("#instrument", Select)._options}  # noqa: SLF001
         app.switch_mode("sites")
@@ -177,7 +178,7 @@ async def test_the_photo_line_is_in_view_at_80x24(
     async with walking(walk_db) as (app, pilot, screen):
         tags = [s.component.tag for s in screen.stops]
         await screen.show_stop(tags.index("TJ-01"))
-        photo = write_photo(tmp_path / "card" / "IMG_7.jpg", datetime.now(UTC))
+        photo = write_photo(tmp_path / "card" / "IMG_7.jpg", app.now())
         field = screen.pane.photo
         field.input.focus()
         field.input.value = str(photo)

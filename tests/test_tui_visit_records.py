@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from datetime import date
 from pathlib import Path
 
 import pytest
@@ -31,9 +30,7 @@ from inspectkit.walkdown.completion import finish_inspection
 from inspectkit.walkdown.readings import record_reading
 from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import walking
-from tests.walkdown_factories import build_walk_site
-
-TODAY = date.today()
+from tests.walkdown_factories import TODAY, build_walk_site, on_the_day
 
 
 @pytest.fixture
@@ -139,7 +136,7 @@ async def test_finishing_asks_about_the_joints_and_keeps_why_not(walk_db) -> Non
     _, visit_id = walk_db
     with Store.open(walk_db[0]) as store:
         [er] = store.select(Component, "tag = ?", ["ER-02"])
-        record_reading(store, visit_id, er.id, "earth_isolated", "4.4")
+        record_reading(store, visit_id, er.id, "earth_isolated", "4.4", taken_at=on_the_day())
     async with walking(walk_db) as (app, pilot, screen):
         await pilot.press("ctrl+f")
         await pilot.pause()

@@ -1,11 +1,11 @@
-"""Pilot tests of the walkdown screen: a whole walkdown on the demo database, and its details."""
+"""Pilot tests of the walkdown screen: a whole walkdown on a small site, and its details."""
 
 from __future__ import annotations
 
 import asyncio
 from collections.abc import AsyncIterator
 from contextlib import asynccontextmanager
-from datetime import UTC, date, datetime, timedelta
+from datetime import date, datetime, timedelta
 from pathlib import Path
 
 import pytest
@@ -14,7 +14,6 @@ from textual.pilot import Pilot
 from textual.widgets import Input, OptionList, RadioSet, Select, Static
 
 from inspectkit.cautions import ACKNOWLEDGED_SETTING
-from inspectkit.demo.generate import build_demo
 from inspectkit.engine.check import check_site
 from inspectkit.model import (
     ComponentKind,
@@ -33,7 +32,7 @@ from inspectkit.model import (
 )
 from inspectkit.profiles import load_profile
 from inspectkit.store import Store
-from inspectkit.store.queries import find_site, load_site_records
+from inspectkit.store.queries import load_site_records
 from inspectkit.tui.app import make_app
 from inspectkit.tui.commands import ActionsProvider
 from inspectkit.tui.dialogs.confirm import ConfirmDialog
@@ -46,24 +45,28 @@ from inspectkit.tui.widgets.tag_prompt import TagPrompt
 from inspectkit.walkdown.grades import grade_component
 from inspectkit.walkdown.readings import record_reading
 from inspectkit.walkdown.visit import set_details, start_inspection, walk_for
-from tests.walkdown_factories import build_walk_site, write_photo
-
-ANCHOR = date(2026, 6, 1)
-DEMO_SITE = "Pellow Ridge Quarry Offices"
+from tests.walkdown_factories import TODAY, build_walk_site, on_the_day, write_photo
 
 
 class WalkHarness(App[None]):
-    """The walkdown screen alone on a store, as the site screen would push it."""
+    """The walkdown screen alone on a store, as the site screen would push it.
 
-    def __init__(self, path: Path, inspection_id: str, today: date | None = None) -> None:
+    It runs on a fixed day (`TODAY` unless told), as `make_app(..., today=...)` does:
+    the walk bar judges calibration by it and readings typed are taken on it, so the
+    visit walked must be on the same day.
+    """
+
+    def __init__(self, path: Path, inspection_id: str, today: date = TODAY) -> None:
         super().__init__()
         self.store = Store.open(path)
-        self.today = today or date.today()
+        visit = self.store.get(Inspection, inspection_id)
+        assert visit is not None and visit.date == today, "walk a visit on the harness's day"
+        self.today = today
         self.inspection_id = inspection_id
 
     def now(self) -> datetime:
         """Readings typed now are taken on the harness's day, as the app's are on its own."""
-        return datetime.combine(self.today, datetime.now(UTC).timetz())
+        return on_the_day(self.today)
 
     def on_mount(self) -> None:
         self.push_screen(WalkdownScreen(self.inspection_id))
@@ -75,7 +78,7 @@ def walk_db(tmp_path: Path) -> tuple[Path, str]:
     path = tmp_path / "walk.sqlite"
     with Store.open(path) as store:
         site = build_walk_site(store)
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
     return path, visit.id
 
 
@@ -121,25 +124,28 @@ def status_of(field: SavingField) -> str:
 # ------------------------------------------------------------- the whole walk
 
 
-async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
-    db_path = build_demo(tmp_path / "demo.sqlite", anchor=ANCHOR)
-    today = date.today()
+async def test_a_whole_walkdown_on_a_small_site(tmp_path: Path) -> None:
+    """From the site screen to finished on the small site with one down conductor (9 stops):
+    each reading saved and judged as typed, the electrode failing, a photo, a defect.
+
+    Every kind of component on a demo site is walked in `test_walkdown_typing.py`.
+    """
+    db_path = tmp_path / "walk.sqlite"
     with Store.open(db_path) as store:
+        site = build_walk_site(store, down_conductors=1).site
         store.set_setting(ACKNOWLEDGED_SETTING, "yes")
         hired = store.save(
             Instrument(
                 description="Earth tester (hired)",
                 serial="HIRE-0042",
-                calibration_due=today + timedelta(days=365),
+                calibration_due=TODAY + timedelta(days=365),
             )
         )
-        site = find_site(store, DEMO_SITE)
-        assert site is not None
         inspector_id = store.select(Inspector)[0].id
         store.set_setting("inspector_id", inspector_id)
-    photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", datetime.now(UTC))
 
-    app = make_app(db_path, today=today)
+    app = make_app(db_path, today=TODAY)
+    photo = write_photo(tmp_path / "card" / "IMG_0100.jpg", app.now())
     async with app.run_test(size=(80, 24)) as pilot:
         # Open the site, press its walkdown key and choose a complete inspection.
         await app.workers.wait_for_complete()
@@ -157,6 +163,7 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         screen = screen_of(app)
         visit = screen.inspection
         assert visit.kind is InspectionKind.COMPLETE and visit.inspector_id == inspector_id
+        assert visit.date == TODAY
         screen.query_one("#instrument", Select).value = hired.id
         screen.query_one("#soil", Select).value = SoilCondition.NORMAL.value
         await pilot.pause()
@@ -168,23 +175,23 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
             for entry in screen.pane.entries:
                 if entry.quantity is Quantity.SOIL_RESISTIVITY:
                     continue
-                if tag == "E-02":
+                if tag == "ER-01":
                     await type_into(pilot, entry, "25", keys=True)  # the failing electrode
                 elif entry.quantity is Quantity.STRIKE_COUNT:
-                    await type_into(pilot, entry, "3")
+                    await type_into(pilot, entry, "9")
                 elif entry.quantity in (Quantity.EARTH_ISOLATED, Quantity.EARTH_COMBINED):
                     await type_into(pilot, entry, "4.2")
                 else:
                     await type_into(pilot, entry, "120 mΩ")
                 shown[f"{tag} {entry.quantity.value}"] = status_of(entry)
-            if tag == "DC-03":
+            if tag == "DC-01":
                 await grade(pilot, screen, Grade.DEFECT)
                 text = screen.query_one("#finding-text", SavingField)
                 await type_into(pilot, text, "guard at ground level broken")
                 remedy = screen.query_one("#finding-remedial", SavingField)
                 await type_into(pilot, remedy, "replace the guard")
                 due = screen.query_one("#finding-due", SavingField)
-                await type_into(pilot, due, (today + timedelta(days=30)).isoformat())
+                await type_into(pilot, due, (TODAY + timedelta(days=30)).isoformat())
             else:
                 await grade(pilot, screen, Grade.SOUND)
             if tag == "TJ-01":
@@ -194,9 +201,10 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
                 await pilot.pause()
 
         # Words beside the colours, the moment a reading is entered.
-        assert "FAIL 25 Ω > 10 Ω" in shown["E-02 earth_isolated"]
-        assert "PASS 4.2 Ω ≤ 10 Ω" in shown["E-01 earth_isolated"]
-        assert "% on " in shown["E-01 earth_isolated"]  # against the last visit
+        assert "FAIL 25 Ω > 10 Ω" in shown["ER-01 earth_isolated"]
+        assert "% on " in shown["ER-01 earth_isolated"]  # against the last visit's 4.0 Ω
+        assert "PASS 4.2 Ω ≤ 10 Ω" in shown["TJ-01 earth_combined"]
+        assert "PASS 120 mΩ" in shown["DC-01 continuity"]
         assert all("✓ saved" in s for s in shown.values())
 
         await pilot.press("ctrl+f")
@@ -223,27 +231,30 @@ async def test_a_whole_walkdown_on_the_demo_database(tmp_path: Path) -> None:
         joints = [c for c in parts.values() if c.kind is ComponentKind.TEST_JOINT]
         electrodes = [c for c in parts.values() if c.kind is ComponentKind.EARTH_ELECTRODE]
         by_part = {(parts[r.component_id].tag, r.quantity): r for r in readings}
+        assert joints and electrodes
         for joint in joints:
             assert (joint.tag, Quantity.EARTH_COMBINED) in by_part
         for electrode in electrodes:
             assert by_part[(electrode.tag, Quantity.EARTH_ISOLATED)].instrument_id == hired.id
-        assert by_part[("E-02", Quantity.EARTH_ISOLATED)].value == pytest.approx(25.0)
-        assert by_part[("E-01", Quantity.EARTH_ISOLATED)].soil is SoilCondition.NORMAL
+        assert by_part[("ER-01", Quantity.EARTH_ISOLATED)].value == pytest.approx(25.0)
+        assert by_part[("ER-01", Quantity.EARTH_ISOLATED)].soil is SoilCondition.NORMAL
+        assert by_part[("DC-01", Quantity.CONTINUITY)].soil is None  # not an earth reading
+        assert all(r.taken_at.date() == TODAY for r in readings)
         findings = [f for f in records.findings if f.inspection_id == visit.id]
         assert len(findings) == len([c for c in parts.values() if c.retired_on is None])
-        defect = next(f for f in findings if parts[f.component_id or ""].tag == "DC-03")
+        defect = next(f for f in findings if parts[f.component_id or ""].tag == "DC-01")
         assert defect.grade is Grade.DEFECT and defect.remedial_action == "replace the guard"
         photos = [p for p in records.photos if p.inspection_id == visit.id]
         assert [parts[p.component_id or ""].tag for p in photos] == ["TJ-01"]
         assert store.verify_audit() == []
 
-        check = check_site(records, load_profile(records.site.profile), today)
+        check = check_site(records, load_profile(records.site.profile), TODAY)
         about = {(r.rule, r.component_tag, r.severity) for r in check.results}
-        assert ("limit", "E-02", Severity.FAIL) in about
-        assert ("carried-defect", "DC-03", Severity.FAIL) in about  # graded a defect today
-        assert not any(r.rule == "limit" and r.component_tag == "E-01" for r in check.results)
+        assert ("limit", "ER-01", Severity.FAIL) in about
+        assert ("carried-defect", "DC-01", Severity.FAIL) in about  # graded a defect today
+        assert not any(r.rule == "limit" and r.component_tag == "TJ-01" for r in check.results)
         assert not any(
-            r.rule == "incomplete" and today.isoformat() in r.message for r in check.results
+            r.rule == "incomplete" and TODAY.isoformat() in r.message for r in check.results
         )
 
 
@@ -322,7 +333,7 @@ async def test_a_continued_draft_shows_what_was_saved(walk_db: tuple[Path, str])
     path, visit_id = walk_db
     with Store.open(path) as store:
         rc = walk_for(store, visit_id)[2].component
-        record_reading(store, visit_id, rc.id, "continuity", "0.15")
+        record_reading(store, visit_id, rc.id, "continuity", "0.15", taken_at=on_the_day())
         grade_component(store, visit_id, rc.id, "sound")
     async with walking(walk_db) as (app, pilot, screen):
         assert "done" in str(screen.stop_list.get_option_at_index(2).prompt)
@@ -353,7 +364,7 @@ async def test_a_folder_of_photos_is_matched_by_time(
     async with walking(walk_db) as (app, pilot, screen):
         await screen.show_stop(2)
         await type_into(pilot, screen.pane.entries[0], "0.1")
-        write_photo(tmp_path / "card" / "IMG_1.jpg", datetime.now(UTC))
+        write_photo(tmp_path / "card" / "IMG_1.jpg", app.now())
         await type_into(pilot, screen.query_one("#photo", SavingField), str(tmp_path / "card"))
         await pilot.pause()
         photos = app.store.select(Photo, "inspection_id = ?", [visit_id])
@@ -530,8 +541,9 @@ async def test_a_continued_draft_shows_the_method_and_doubt_saved(
     with Store.open(path) as store:
         er = next(s.component for s in walk_for(store, visit_id) if s.component.tag == "ER-01")
         record_reading(
-            store, visit_id, er.id, "earth_isolated", "4.4", Method.FOUR_POLE, unreliable=True
-        )
+            store, visit_id, er.id, "earth_isolated", "4.4", Method.FOUR_POLE,
+            unreliable=True, taken_at=on_the_day(),
+        )  # fmt: skip
     async with walking(walk_db) as (app, pilot, screen):
         entry = await entry_at(screen, "ER-01", Quantity.EARTH_ISOLATED)
         assert entry.method_select is not None

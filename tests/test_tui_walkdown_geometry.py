@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from datetime import date
 from pathlib import Path
 
 from textual.notifications import Notify
@@ -15,7 +14,7 @@ from inspectkit.tui.dialogs.geometry import GeometryDialog
 from inspectkit.tui.screens.walkdown import WalkdownScreen
 from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness
-from tests.walkdown_factories import build_walk_site
+from tests.walkdown_factories import TODAY, build_walk_site
 
 
 def _walk(tmp_path: Path) -> tuple[Path, str, str]:
@@ -30,7 +29,7 @@ def _walk(tmp_path: Path) -> tuple[Path, str, str]:
             z_m=9,
         )
         save_geometry_item(store, roof)
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
     return path, visit.id, site.site.id
 
 

@@ -38,7 +38,7 @@ def walk_app(tmp_path: Path) -> WalkHarness:
         )
         record_reading(store, visit.id, parts["ER-01"].id, "earth_isolated", "14", taken_at=TAKEN)
         assert walk_for(store, visit.id)[5].component.tag == "ER-01"
-    return WalkHarness(path, visit.id)
+    return WalkHarness(path, visit.id, today=VISIT_DAY)
 
 
 def _at_stop(index: int) -> Callable[[Pilot[None]], Awaitable[None]]:

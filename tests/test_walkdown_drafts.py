@@ -7,7 +7,6 @@ import signal
 import subprocess
 import sys
 import zipfile
-from datetime import date
 from pathlib import Path
 
 import pytest
@@ -21,7 +20,7 @@ from inspectkit.walkdown.readings import record_reading
 from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness, screen_of, status_of
 from tests.walkdown_drafts_child import NOTE, VALUE
-from tests.walkdown_factories import build_walk_site
+from tests.walkdown_factories import TODAY, build_walk_site, on_the_day
 
 
 @pytest.fixture
@@ -29,7 +28,7 @@ def walk(tmp_path: Path) -> tuple[Path, str, dict[str, str]]:
     path = tmp_path / "walk.sqlite"
     with Store.open(path) as store:
         site = build_walk_site(store)
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
     return path, visit.id, {tag: c.id for tag, c in site.parts.items()}
 
 
@@ -90,7 +89,7 @@ def test_drafts_are_not_readings(walk: tuple[Path, str, dict[str, str]], tmp_pat
     """Not judged, not counted, not in a report or a bundle: a draft is only text kept."""
     path, visit_id, ids = walk
     with Store.open(path) as store:
-        record_reading(store, visit_id, ids["DC-01"], "continuity", "0.12")
+        record_reading(store, visit_id, ids["DC-01"], "continuity", "0.12", taken_at=on_the_day())
         site_id = store.get(Inspection, visit_id).site_id
         typed = {(ids["ER-01"], "q-earth_isolated"): "25", (ids["DC-02"], "q-continuity"): "  "}
         keep_drafts(store, visit_id, typed, ids["ER-01"])

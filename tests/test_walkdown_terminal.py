@@ -12,7 +12,6 @@ import shutil
 import subprocess
 import sys
 import time
-from datetime import date
 from pathlib import Path
 
 import pytest
@@ -21,7 +20,7 @@ from inspectkit.model import Finding, Quantity, Reading
 from inspectkit.store import Store
 from inspectkit.units import parse
 from inspectkit.walkdown.visit import start_inspection, walk_for
-from tests.walkdown_factories import build_walk_site
+from tests.walkdown_factories import TODAY, build_walk_site
 
 #: Seconds between keys: about five keys a second, a brisk typist on a keyboard.
 KEY_GAP = 0.2
@@ -70,7 +69,7 @@ def test_values_typed_in_a_terminal_after_each_move_are_stored_where_typed(
     path = tmp_path / "walk.sqlite"
     with Store.open(path) as store:
         site = build_walk_site(store)
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
         stops = walk_for(store, visit.id)
     root = Path(__file__).resolve().parent.parent
     socket = f"inspectkit-test-{os.getpid()}"

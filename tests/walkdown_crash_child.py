@@ -8,20 +8,19 @@ from __future__ import annotations
 
 import asyncio
 import sys
-from datetime import date
 from pathlib import Path
 
 from inspectkit.store import Store
 from inspectkit.walkdown.visit import start_inspection
 from tests.test_tui_walkdown import WalkHarness
-from tests.walkdown_factories import build_walk_site
+from tests.walkdown_factories import TODAY, build_walk_site
 
 
 async def walk(path: Path) -> None:
     with Store.open(path) as store:
         site = build_walk_site(store, down_conductors=12)
-        # Today: the harness stamps readings with the clock, and they must fall on the visit's day.
-        visit = start_inspection(store, site.site.id, "complete", None, date.today())
+        # The harness's day: it stamps readings on it, and they must fall on the visit's day.
+        visit = start_inspection(store, site.site.id, "complete", None, TODAY)
     app = WalkHarness(path, visit.id)
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()

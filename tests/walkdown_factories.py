@@ -29,6 +29,10 @@ from inspectkit.store import Store
 
 #: The earlier visit every comparison is made against.
 EARLIER = date(2025, 6, 3)
+#: The day the walkdown tests' visits are on and their harness runs on, whatever the
+#: real date: a reading must lie on its visit's day, and calibration is judged against
+#: it. In the past, as the model refuses a visit or a reading later than the clock.
+TODAY = date(2026, 6, 2)
 
 
 @dataclass
@@ -136,6 +140,11 @@ def build_walk_site(store: Store, *, down_conductors: int = 3) -> WalkSite:
     ]
     store.save_all([site, inspector, instrument, *parts.values(), earlier, *readings, *findings])
     return WalkSite(site, inspector, instrument, earlier, parts)
+
+
+def on_the_day(day: date = TODAY) -> datetime:
+    """The clock's time of day on `day`, as the app stamps a reading when its day is fixed."""
+    return datetime.combine(day, datetime.now(UTC).timetz())
 
 
 def write_photo(path: Path, taken_at: datetime) -> Path:

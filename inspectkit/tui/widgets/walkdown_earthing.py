@@ -9,22 +9,18 @@ so it is judged and marked on the walk like any typed reading.
 from __future__ import annotations
 
 from datetime import date
-from typing import Any, Protocol
 
 from textual.binding import Binding
 
 from inspectkit.earthing_input import traverse_as_typed
 from inspectkit.earthing_values import SeriesError, Traverse, read_traverse
-from inspectkit.engine.walking import Stop
 from inspectkit.model import Method, Quantity
-from inspectkit.store import Store
 from inspectkit.store.queries import load_site_records
 from inspectkit.tui.dialogs.traverse_entry import TraverseDialog
 from inspectkit.tui.screens.calculator import calculator_for
+from inspectkit.tui.screens.walkdown_parts import WalkdownParts
 from inspectkit.tui.widgets.traverse_view import EARTH
-from inspectkit.walkdown.continuing import SavedEntries
 from inspectkit.walkdown.errors import WalkdownError
-from inspectkit.walkdown.judging import ReadingOutcome, SiteContext
 
 EARTHING_BINDINGS = [
     Binding(
@@ -38,31 +34,10 @@ EARTHING_BINDINGS = [
 ]
 
 
-class _Walkdown(Protocol):
-    """What the walkdown screen offers the mixin."""
-
-    app: Any
-    index: int
-    saved: SavedEntries
-    context: SiteContext
-
-    @property
-    def store(self) -> Store: ...
-    @property
-    def stop(self) -> Stop: ...
-    def notify(self, message: str, *, severity: str = ...) -> None: ...
-    def move_now(self, index: int, *, focus_entry: bool = ...) -> None: ...
-    def _save_reading(
-        self, component_id: str, quantity: Quantity, text: str, method: Method, doubtful: bool,
-        traverse: Traverse | None = None,
-    ) -> ReadingOutcome: ...  # fmt: skip
-    def _save_traverse(self, quantity: Quantity, traverse: Traverse | None) -> None: ...
-
-
 class WalkdownEarthing:
-    """The walkdown's earthing actions, mixed into the walkdown screen (`_Walkdown`)."""
+    """The walkdown's earthing actions, mixed into the walkdown screen."""
 
-    def action_traverse(self: _Walkdown) -> None:
+    def action_traverse(self: WalkdownParts) -> None:
         stop = self.stop
         quantity = next((q for q in EARTH if q in stop.quantities), None)
         if quantity is None:
@@ -83,7 +58,7 @@ class WalkdownEarthing:
         dialog = TraverseDialog(stop.component.tag, tolerance, *start)
         self.app.push_screen(dialog, lambda traverse: self._save_traverse(quantity, traverse))
 
-    def _save_traverse(self: _Walkdown, quantity: Quantity, traverse: Traverse | None) -> None:
+    def _save_traverse(self: WalkdownParts, quantity: Quantity, traverse: Traverse | None) -> None:
         if traverse is None:
             return
         tag = self.stop.component.tag
@@ -98,7 +73,7 @@ class WalkdownEarthing:
         self.notify(f"{tag}: {outcome.verdict}, saved")
         self.move_now(self.index)
 
-    def action_calculators(self: _Walkdown) -> None:
+    def action_calculators(self: WalkdownParts) -> None:
         records = load_site_records(self.store, self.context.site.id)
         today: date = self.app.today
         self.app.push_screen(calculator_for(records, self.stop.component, today))
