@@ -6,6 +6,8 @@ from datetime import UTC, date, datetime
 from typing import Any
 
 from inspectkit.model import (
+    DEFAULT_METHOD,
+    JOINT_FOR,
     Component,
     ComponentKind,
     Finding,
@@ -14,8 +16,6 @@ from inspectkit.model import (
     InspectionKind,
     InspectionState,
     Instrument,
-    JointState,
-    Method,
     NotInspected,
     Quantity,
     Reading,
@@ -25,17 +25,6 @@ from inspectkit.model import (
 
 #: Validation clock for records made here: far enough ahead for any test date.
 NOW = {"now": datetime(2100, 1, 1, tzinfo=UTC)}
-
-_METHOD = {
-    Quantity.EARTH_ISOLATED: Method.FALL_OF_POTENTIAL_3P,
-    Quantity.EARTH_COMBINED: Method.FALL_OF_POTENTIAL_3P,
-    Quantity.CONTINUITY: Method.LOW_OHM_4W,
-    Quantity.BONDING: Method.LOW_OHM_4W,
-    Quantity.SOIL_RESISTIVITY: Method.WENNER,
-    Quantity.STRIKE_COUNT: Method.COUNTER_READ,
-}
-_JOINT = {Quantity.EARTH_ISOLATED: JointState.OPEN, Quantity.EARTH_COMBINED: JointState.CLOSED}
-
 
 class SiteBuilder:
     """Builds one site's records step by step: components, visits, readings, findings."""
@@ -116,8 +105,8 @@ class SiteBuilder:
                 "component_id": component.id,
                 "quantity": quantity,
                 "value": value,
-                "method": _METHOD[quantity],
-                "joint_state": _JOINT.get(quantity),
+                "method": DEFAULT_METHOD[quantity],
+                "joint_state": JOINT_FOR.get(quantity),
                 "taken_at": datetime(day.year, day.month, day.day, hour, tzinfo=UTC),
                 **fields,
             },
