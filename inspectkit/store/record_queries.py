@@ -116,9 +116,13 @@ def site_soil_readings(store: Store, site_id: str) -> list[Reading]:
     )
 
 
-def site_inspections(store: Store, site_id: str) -> list[Inspection]:
-    """Every inspection of a site, the latest first (by date, then by when recorded)."""
-    return store.select(Inspection, "site_id = ?", [site_id], order_by="date DESC, created_at DESC")
+def site_inspections(
+    store: Store, site_id: str, *, oldest_first: bool = False
+) -> list[Inspection]:
+    """Every inspection of a site by date, then by when recorded: the latest first, or the
+    earliest first where a history is read forwards."""
+    order = "date, created_at" if oldest_first else "date DESC, created_at DESC"
+    return store.select(Inspection, "site_id = ?", [site_id], order_by=order)
 
 
 def inspection_records(store: Store, model: type[R], inspection_id: str) -> list[R]:

@@ -49,11 +49,6 @@ def drafts_of_day(store: Store, site_id: str, kind: InspectionKind, day: date) -
     )
 
 
-def site_visits_oldest_first(store: Store, site_id: str) -> list[Inspection]:
-    """Every inspection of a site, the earliest first (by date, then by when recorded)."""
-    return store.select(Inspection, "site_id = ?", [site_id], order_by="date, created_at")
-
-
 def findings_resolved_by(store: Store, inspection_id: str) -> list[Finding]:
     """The findings of other visits that this visit marked as put right."""
     return store.select(

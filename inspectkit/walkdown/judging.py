@@ -28,8 +28,8 @@ from inspectkit.model import (
 )
 from inspectkit.profiles import Profile, ProfileError, load_profile
 from inspectkit.store import Store
-from inspectkit.store.record_queries import site_components
-from inspectkit.store.visit_queries import earlier_series, site_visits_oldest_first
+from inspectkit.store.record_queries import site_components, site_inspections
+from inspectkit.store.visit_queries import earlier_series
 from inspectkit.units import format_value
 from inspectkit.walkdown.errors import WalkdownError
 
@@ -134,7 +134,7 @@ def site_context(store: Store, site_id: str) -> SiteContext:
     except ProfileError as exc:
         raise WalkdownError("profile", str(exc)) from None
     components = tuple(site_components(store, site_id))
-    visits = tuple(site_visits_oldest_first(store, site_id))
+    visits = tuple(site_inspections(store, site_id, oldest_first=True))
     return SiteContext(site, profile, components, visits)
 
 
